@@ -1,0 +1,4 @@
+using System.CommandLine;
+using ModeSolver.Cli;
+
+return CliApp.Run(args);

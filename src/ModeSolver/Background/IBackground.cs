@@ -1,0 +1,39 @@
+namespace ModeSolver.Background;
+
+/// <summary>The homogeneous background at one instant. N = ln a (origin at the start of the integration), M_pl = 1.</summary>
+/// <param name="N">E-folds since the start.</param>
+/// <param name="Phi">Field value (as the user wrote it).</param>
+/// <param name="DPhi">d phi / dN.</param>
+/// <param name="H">Hubble rate in reduced Planck units, with the potential multiplied by the current V scale.</param>
+/// <param name="Epsilon1">First Hubble-flow parameter, -d ln H / dN = K phi'^2 / 2.</param>
+/// <param name="Epsilon2">d ln epsilon_1 / dN.</param>
+/// <param name="Epsilon3">d ln |epsilon_2| / dN.</param>
+public readonly record struct BackgroundPoint(double N, double Phi, double DPhi, double H, double Epsilon1, double Epsilon2, double Epsilon3);
+
+/// <summary>
+/// A dense, interpolable background solution. The perturbation stage reads it only through this interface,
+/// so tests may supply exact analytic backgrounds (power-law inflation).
+/// </summary>
+public interface IBackground
+{
+    /// <summary>First N of the solution (usually 0).</summary>
+    double NStart { get; }
+
+    /// <summary>Last N of the solution (after the end of inflation when the run continued through reheating).</summary>
+    double NStop { get; }
+
+    /// <summary>The N taken as the end of inflation (by default the last epsilon_1 = 1 crossing).</summary>
+    double NEnd { get; }
+
+    /// <summary>Every N where epsilon_1 crosses 1, either way, ascending.</summary>
+    IReadOnlyList<double> EndCrossings { get; }
+
+    /// <summary>N values where the field passes a non-smooth point of the theory; mode integrations stop and restart there.</summary>
+    IReadOnlyList<double> NonSmoothTimes { get; }
+
+    /// <summary>The factor multiplying the theory's potential; H scales as its square root.</summary>
+    double VScale { get; }
+
+    /// <summary>The background at N (dense output). Allocation-free.</summary>
+    BackgroundPoint At(double n);
+}
