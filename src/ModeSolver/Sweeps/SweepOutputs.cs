@@ -71,7 +71,7 @@ public static class SweepOutputs
             }
             else
             {
-                sb.Append(",,,,,,,,failed,").Append(Quote(r.Message));
+                sb.Append(",,,,,,,,,failed,").Append(Quote(r.Message));
             }
             sb.Append('\n');
         }

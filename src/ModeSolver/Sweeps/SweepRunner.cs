@@ -201,6 +201,12 @@ public static class SweepRunner
         {
             return false;
         }
+        catch (AggregateException ae) when (ae.InnerExceptions.Count > 0 && ae.InnerExceptions.All(e => e is IOException or UnauthorizedAccessException))
+        {
+            // A journal write failed (disk full, permissions): surface the first cause as itself.
+            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(ae.InnerExceptions[0]).Throw();
+            throw;
+        }
     }
 
     private static void WriteOutputs(string dir, SweepSpec spec, string fingerprint, ConcurrentDictionary<long, SweepRecord> records, object gate)
@@ -303,7 +309,7 @@ public static class SweepRunner
         private readonly object _gate = new();
         private readonly Stopwatch _clock = Stopwatch.StartNew();
         private long _doneRun, _failed = failedBefore;
-        private TimeSpan _last = TimeSpan.MinValue;
+        private TimeSpan? _last;
 
         public void PointDone(bool ok)
         {
@@ -318,7 +324,7 @@ public static class SweepRunner
             lock (_gate)
             {
                 var now = _clock.Elapsed;
-                if (!force && now - _last < interval) return;
+                if (!force && _last is { } last && now - last < interval) return;
                 _last = now;
                 long run = Interlocked.Read(ref _doneRun);
                 double rate = now.TotalSeconds > 0 ? run / now.TotalSeconds : 0;
