@@ -19,7 +19,7 @@ public sealed class SweepPlotOptions
     /// <summary>Next-generation B-mode target (common practice).</summary>
     public double TargetR { get; init; } = 1e-3;
     /// <summary>Image width in pixels.</summary>
-    public int Width { get; init; } = 1000;
+    public int Width { get; init; } = 1300;
     /// <summary>Image height in pixels.</summary>
     public int Height { get; init; } = 700;
 }
@@ -30,11 +30,11 @@ public static class SweepPalette
     /// <summary>Text and frame.</summary>
     public const string Ink = "#1E2233";
     /// <summary>n_s one-sigma band.</summary>
-    public const string NsOneSigma = "#5B8DB855";
+    public const string NsOneSigma = "#6C9BC438";
     /// <summary>n_s two-sigma band.</summary>
-    public const string NsTwoSigma = "#5B8DB826";
+    public const string NsTwoSigma = "#6C9BC41C";
     /// <summary>Region excluded by the r bound.</summary>
-    public const string RExcluded = "#B0413E22";
+    public const string RExcluded = "#B0413E14";
     /// <summary>The r bound line.</summary>
     public const string RBound = "#B0413E";
     /// <summary>The next-generation target line.</summary>
@@ -163,7 +163,7 @@ public static class SweepPlot
         {
             plot.Axes.SetLimitsY(0, Math.Max(ymax, options.RUpper95) * 1.15);
         }
-        plot.ShowLegend(Alignment.UpperLeft);
+        plot.ShowLegend(Edge.Right);
         return plot;
     }
 
