@@ -203,4 +203,21 @@ public class SweepRunnerTests
         var linear = SweepPlot.Build(spec, records, new SweepPlotOptions());
         Assert.Equal(0, linear.Axes.GetLimits().Bottom);
     }
+
+    [SkippableFact]
+    public void HdfFileIsReadableByTheReferenceHdf5Tools()
+    {
+        // h5dump (HDF Group's hdf5-tools) is the reference reader; skipped where it is not installed.
+        string? h5dump = new[] { "/usr/bin/h5dump", "/usr/local/bin/h5dump" }.FirstOrDefault(File.Exists);
+        Skip.If(h5dump is null, "h5dump is not installed: apt-get install -y hdf5-tools");
+        var dir = SweepTestSupport.ReferenceRun();
+        var psi = new System.Diagnostics.ProcessStartInfo(h5dump!, ["-d", "/points/status", Path.Combine(dir, SweepFiles.Hdf5)])
+        { RedirectStandardOutput = true, RedirectStandardError = true };
+        using var p = System.Diagnostics.Process.Start(psi)!;
+        string output = p.StandardOutput.ReadToEnd();
+        p.WaitForExit();
+        Assert.Equal(0, p.ExitCode);
+        Assert.Contains("( 15 )", output);
+        Assert.Contains("\"failed\"", output);
+    }
 }
