@@ -1,0 +1,116 @@
+using System.CommandLine;
+using ModeSolver.Parallel;
+using ModeSolver.Sweeps;
+using Spectre.Console;
+
+namespace ModeSolver.Cli.Commands;
+
+/// <summary><c>modesolver sweep DECK</c>: runs a parameter sweep over every core (and over MPI ranks under mpirun), resumable.</summary>
+public static class SweepCommand
+{
+    /// <summary>Exit code when the run was interrupted (common practice for SIGINT).</summary>
+    public const int InterruptedExitCode = 130;
+
+    /// <summary>Builds the command.</summary>
+    public static Command Create()
+    {
+        var deck = new Argument<FileInfo>("deck") { Description = "TOML deck: the run deck plus a [sweep] table" };
+        var output = new Option<DirectoryInfo?>("--out", "-o") { Description = "Output directory (default: <deck name>-sweep beside the deck)" };
+        var threads = new Option<int?>("--threads", "-j") { Description = "Worker threads per process (default: every core, shared between the MPI ranks of a node)" };
+        var shard = new Option<string?>("--shard") { Description = "Run only the points with index % N == I (I/N), e.g. 0/4; merge with sweep-merge" };
+        var restart = new Option<bool>("--restart") { Description = "Discard the journal in the output directory and start over" };
+        var quiet = new Option<bool>("--quiet", "-q") { Description = "No progress bar" };
+        var logR = new Option<bool>("--log-r") { Description = "Plot r on a logarithmic axis" };
+        var command = new Command("sweep", "Sweep settings over a grid and map the predictions in the (n_s, r) plane (resumable; MPI-aware)")
+        {
+            deck, output, threads, shard, restart, quiet, logR,
+        };
+        command.SetAction((parseResult, ct) => Task.FromResult(Run(
+            parseResult.GetValue(deck)!, parseResult.GetValue(output), parseResult.GetValue(threads), parseResult.GetValue(shard),
+            parseResult.GetValue(restart), parseResult.GetValue(quiet), parseResult.GetValue(logR), ct)));
+        return command;
+    }
+
+    /// <summary>
+    /// Builds the physics evaluator for a deck. Not wired yet: the physics pipeline plugs in here.
+    /// </summary>
+    public static ISweepEvaluator CreateEvaluator(string deckPath) =>
+        throw new SweepException($"{deckPath}: the physics evaluator is not wired yet");
+
+    private static int Run(FileInfo deckFile, DirectoryInfo? outDir, int? threads, string? shardText, bool restart, bool quiet, bool logR, CancellationToken ct)
+    {
+        IMessagePassing? comm = null;
+        try
+        {
+            comm = MessagePassing.Create();
+            if (!deckFile.Exists) throw new SweepException($"{deckFile.FullName}: deck not found");
+            if (threads is < 1) throw new SweepException($"--threads: must be at least 1, got {threads}");
+            var shard = shardText is null ? ShardSpec.All : ShardSpec.Parse(shardText);
+            string deckText = File.ReadAllText(deckFile.FullName);
+            var spec = SweepDeck.ParseSpec(deckText, deckFile.FullName);
+            string dir = outDir?.FullName ?? Path.Combine(deckFile.DirectoryName ?? ".", Path.GetFileNameWithoutExtension(deckFile.Name) + "-sweep");
+            var evaluator = CreateEvaluator(deckFile.FullName);
+            bool showProgress = comm.Rank == 0 && !quiet && !Console.IsErrorRedirected;
+            var options = new Func<Action<SweepProgress>?, SweepRunOptions>(progress => new SweepRunOptions
+            {
+                OutputDirectory = dir, Threads = threads ?? DefaultThreads(comm), Shard = shard, Restart = restart, Progress = progress,
+            });
+            SweepSummary summary;
+            if (showProgress)
+            {
+                var console = AnsiConsole.Create(new AnsiConsoleSettings { Out = new AnsiConsoleOutput(Console.Error) });
+                SweepSummary? result = null;
+                console.Progress()
+                    .Columns(new TaskDescriptionColumn(), new ProgressBarColumn(), new PercentageColumn(), new RemainingTimeColumn(), new SpinnerColumn())
+                    .Start(ctx =>
+                    {
+                        var task = ctx.AddTask("sweep", maxValue: Math.Max(1, spec.PointCount));
+                        result = SweepRunner.Run(spec, deckText, evaluator, options(p =>
+                        {
+                            task.MaxValue = Math.Max(1, p.Total);
+                            task.Value = p.Done;
+                            task.Description = $"sweep {p.Done}/{p.Total}, {p.Failed} failed, {p.PointsPerSecond:F1}/s";
+                        }), comm, ct);
+                    });
+                summary = result!;
+            }
+            else
+            {
+                summary = SweepRunner.Run(spec, deckText, evaluator, options(null), comm, ct);
+            }
+            if (comm.Rank != 0) return summary.Completed ? 0 : InterruptedExitCode;
+            var (_, records) = SweepResults.Load(dir);
+            SweepPlot.Write(dir, spec, records, new SweepPlotOptions { LogR = logR });
+            if (!summary.Completed)
+            {
+                Console.Error.WriteLine($"sweep interrupted: {summary.Done} of {summary.Total} points done in {dir}; run the same command again to resume");
+                return InterruptedExitCode;
+            }
+            Console.WriteLine($"sweep: {summary.Total} points, {summary.Done - summary.Failed} ok, {summary.Failed} failed ({summary.Resumed} from an earlier run) -> {dir}");
+            return 0;
+        }
+        catch (Exception e) when (e is SweepException or MessagePassingException)
+        {
+            Console.Error.WriteLine($"error: {e.Message}");
+            return 2;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            Console.Error.WriteLine($"error: {SweepDeckMessage(e.Message)}");
+            return 2;
+        }
+        finally
+        {
+            comm?.Dispose();
+        }
+    }
+
+    private static int DefaultThreads(IMessagePassing comm)
+    {
+        if (comm.Size == 1) return Environment.ProcessorCount;
+        int perNode = int.TryParse(Environment.GetEnvironmentVariable("OMPI_COMM_WORLD_LOCAL_SIZE"), out int n) && n > 0 ? n : 1;
+        return Math.Max(1, Environment.ProcessorCount / perNode);
+    }
+
+    private static string SweepDeckMessage(string s) => s.Replace('\n', ' ').Replace('\r', ' ');
+}

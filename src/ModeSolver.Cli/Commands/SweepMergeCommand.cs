@@ -1,0 +1,34 @@
+using System.CommandLine;
+using ModeSolver.Sweeps;
+
+namespace ModeSolver.Cli.Commands;
+
+/// <summary><c>modesolver sweep-merge DIR... --out DIR</c>: merges the shard outputs of one sweep into the files of an unsharded run.</summary>
+public static class SweepMergeCommand
+{
+    /// <summary>Builds the command.</summary>
+    public static Command Create()
+    {
+        var dirs = new Argument<DirectoryInfo[]>("shards") { Description = "Output directories of the shards I/N (all N of them)", Arity = ArgumentArity.OneOrMore };
+        var output = new Option<DirectoryInfo>("--out", "-o") { Description = "Directory for the merged files", Required = true };
+        var logR = new Option<bool>("--log-r") { Description = "Plot r on a logarithmic axis" };
+        var command = new Command("sweep-merge", "Merge the shard outputs of a sweep (sweep --shard I/N) into one set of files") { dirs, output, logR };
+        command.SetAction(parseResult =>
+        {
+            try
+            {
+                var outDir = parseResult.GetValue(output)!.FullName;
+                var (spec, records, summary) = SweepMerge.Merge(parseResult.GetValue(dirs)!.Select(d => d.FullName).ToArray(), outDir);
+                SweepPlot.Write(outDir, spec, records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) });
+                Console.WriteLine($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}");
+                return 0;
+            }
+            catch (Exception e) when (e is SweepException or IOException or UnauthorizedAccessException)
+            {
+                Console.Error.WriteLine($"error: {e.Message.Replace('\n', ' ')}");
+                return 2;
+            }
+        });
+        return command;
+    }
+}

@@ -1,0 +1,97 @@
+namespace ModeSolver.Sweeps;
+
+/// <summary>Computes one sweep point. Implementations must be thread-safe (points are evaluated concurrently) and deterministic.</summary>
+public interface ISweepEvaluator
+{
+    /// <summary>
+    /// Evaluates the point. Exceptions are caught by the runner and recorded as a failed point with their one-line
+    /// message (an <see cref="OperationCanceledException"/> while <paramref name="ct"/> is cancelled is not: the point
+    /// then stays unfinished and is computed again on resume).
+    /// </summary>
+    SweepPointResult Evaluate(SweepPoint point, CancellationToken ct);
+}
+
+/// <summary>One point of a sweep: its stable index and the ordered (key, value) settings.</summary>
+public sealed class SweepPoint
+{
+    private readonly double[] _values;
+
+    /// <summary>Creates a point; <paramref name="values"/> is kept (not copied).</summary>
+    public SweepPoint(long index, IReadOnlyList<string> keys, double[] values, bool wantSpectrum)
+    {
+        if (keys.Count != values.Length) throw new ArgumentException("keys and values differ in length");
+        Index = index;
+        Keys = keys;
+        _values = values;
+        WantSpectrum = wantSpectrum;
+    }
+
+    /// <summary>The point's index in the sweep's deterministic order.</summary>
+    public long Index { get; }
+
+    /// <summary>The swept keys in deck order.</summary>
+    public IReadOnlyList<string> Keys { get; }
+
+    /// <summary>The values, in the order of <see cref="Keys"/>.</summary>
+    public IReadOnlyList<double> Values => _values;
+
+    /// <summary>Whether the sweep asks for the spectrum arrays.</summary>
+    public bool WantSpectrum { get; }
+
+    /// <summary>The ordered (key, value) pairs.</summary>
+    public IEnumerable<KeyValuePair<string, double>> Settings
+    {
+        get { for (int i = 0; i < _values.Length; i++) yield return new(Keys[i], _values[i]); }
+    }
+
+    /// <summary>The value of <paramref name="key"/>; throws a <see cref="KeyNotFoundException"/> naming it if absent.</summary>
+    public double this[string key] => TryGet(key, out var v) ? v : throw new KeyNotFoundException($"sweep point {Index}: no key '{key}'");
+
+    /// <summary>The value of <paramref name="key"/> if the point has it.</summary>
+    public bool TryGet(string key, out double value)
+    {
+        for (int i = 0; i < _values.Length; i++)
+            if (string.Equals(Keys[i], key, StringComparison.Ordinal)) { value = _values[i]; return true; }
+        value = double.NaN;
+        return false;
+    }
+
+    /// <inheritdoc />
+    public override string ToString() =>
+        $"#{Index} " + string.Join(", ", Settings.Select(kv => $"{kv.Key}={SweepAxis.Fmt(kv.Value)}"));
+}
+
+/// <summary>The pivot results of one point, or its failure reason.</summary>
+public sealed class SweepPointResult
+{
+    /// <summary>Scalar spectral index at the pivot.</summary>
+    public double Ns { get; init; } = double.NaN;
+    /// <summary>Tensor-to-scalar ratio at the pivot.</summary>
+    public double R { get; init; } = double.NaN;
+    /// <summary>Running of the scalar index.</summary>
+    public double AlphaS { get; init; } = double.NaN;
+    /// <summary>Tensor spectral index.</summary>
+    public double Nt { get; init; } = double.NaN;
+    /// <summary>Scalar amplitude at the pivot.</summary>
+    public double As { get; init; } = double.NaN;
+    /// <summary>e-folds from pivot crossing to the end of inflation.</summary>
+    public double NStar { get; init; } = double.NaN;
+    /// <summary>Overall potential scale fixed by the normalisation.</summary>
+    public double VScale { get; init; } = double.NaN;
+    /// <summary>Diagnostic flags (short words without ';').</summary>
+    public IReadOnlyList<string> Flags { get; init; } = [];
+    /// <summary>Wavenumbers of the spectrum (1/Mpc), when asked for.</summary>
+    public double[]? K { get; init; }
+    /// <summary>Scalar power spectrum at <see cref="K"/>.</summary>
+    public double[]? Ps { get; init; }
+    /// <summary>Tensor power spectrum at <see cref="K"/>.</summary>
+    public double[]? Pt { get; init; }
+    /// <summary>Why the point failed, or null when it succeeded.</summary>
+    public string? FailureReason { get; init; }
+
+    /// <summary>True when the point produced results.</summary>
+    public bool Succeeded => FailureReason is null;
+
+    /// <summary>A failed point with its reason.</summary>
+    public static SweepPointResult Failed(string reason) => new() { FailureReason = reason };
+}

@@ -1,0 +1,130 @@
+using System.Globalization;
+using System.Text.Json;
+
+namespace ModeSolver.Sweeps;
+
+/// <summary>A finished point as stored in the journal and the outputs (the evaluator's result, or its failure).</summary>
+public sealed class SweepRecord
+{
+    /// <summary>The point index.</summary>
+    public required long Index { get; init; }
+    /// <summary>True when the point succeeded.</summary>
+    public required bool Ok { get; init; }
+    /// <summary>The failure reason (one line), empty when the point succeeded.</summary>
+    public string Message { get; init; } = "";
+    /// <summary>n_s.</summary>
+    public double Ns { get; init; } = double.NaN;
+    /// <summary>r.</summary>
+    public double R { get; init; } = double.NaN;
+    /// <summary>alpha_s.</summary>
+    public double AlphaS { get; init; } = double.NaN;
+    /// <summary>n_t.</summary>
+    public double Nt { get; init; } = double.NaN;
+    /// <summary>A_s.</summary>
+    public double As { get; init; } = double.NaN;
+    /// <summary>N_*.</summary>
+    public double NStar { get; init; } = double.NaN;
+    /// <summary>V scale.</summary>
+    public double VScale { get; init; } = double.NaN;
+    /// <summary>Flags.</summary>
+    public IReadOnlyList<string> Flags { get; init; } = [];
+    /// <summary>Spectrum wavenumbers, if stored.</summary>
+    public double[]? K { get; init; }
+    /// <summary>Scalar spectrum, if stored.</summary>
+    public double[]? Ps { get; init; }
+    /// <summary>Tensor spectrum, if stored.</summary>
+    public double[]? Pt { get; init; }
+
+    /// <summary>Builds the record of an evaluator result.</summary>
+    public static SweepRecord FromResult(long index, SweepPointResult r, bool keepSpectrum)
+    {
+        if (!r.Succeeded) return Failure(index, r.FailureReason!);
+        return new SweepRecord
+        {
+            Index = index, Ok = true, Ns = r.Ns, R = r.R, AlphaS = r.AlphaS, Nt = r.Nt, As = r.As, NStar = r.NStar, VScale = r.VScale,
+            Flags = r.Flags.Select(f => SweepDeck.OneLine(f).Replace(';', ',')).ToArray(),
+            K = keepSpectrum ? r.K : null, Ps = keepSpectrum ? r.Ps : null, Pt = keepSpectrum ? r.Pt : null,
+        };
+    }
+
+    /// <summary>A failed point.</summary>
+    public static SweepRecord Failure(long index, string reason) =>
+        new() { Index = index, Ok = false, Message = SweepDeck.OneLine(reason.Length == 0 ? "failed" : reason) };
+
+    /// <summary>The journal line of this record (UTF-8 JSON, ending in '\n').</summary>
+    public byte[] ToJsonLine()
+    {
+        using var ms = new MemoryStream();
+        using (var w = new Utf8JsonWriter(ms))
+        {
+            w.WriteStartObject();
+            w.WriteNumber("i", Index);
+            w.WriteBoolean("ok", Ok);
+            if (!Ok) w.WriteString("msg", Message);
+            else
+            {
+                Num(w, "n_s", Ns); Num(w, "r", R); Num(w, "alpha_s", AlphaS); Num(w, "n_t", Nt);
+                Num(w, "A_s", As); Num(w, "N_star", NStar); Num(w, "V_scale", VScale);
+                if (Flags.Count > 0)
+                {
+                    w.WriteStartArray("flags");
+                    foreach (var f in Flags) w.WriteStringValue(f);
+                    w.WriteEndArray();
+                }
+                Arr(w, "k", K); Arr(w, "P_s", Ps); Arr(w, "P_t", Pt);
+            }
+            w.WriteEndObject();
+        }
+        ms.WriteByte((byte)'\n');
+        return ms.ToArray();
+    }
+
+    /// <summary>Parses a journal line (without its newline); throws on malformed input.</summary>
+    public static SweepRecord FromJson(ReadOnlySpan<byte> line)
+    {
+        using var doc = JsonDocument.Parse(line.ToArray());
+        var e = doc.RootElement;
+        long i = e.GetProperty("i").GetInt64();
+        bool ok = e.GetProperty("ok").GetBoolean();
+        if (!ok) return new SweepRecord { Index = i, Ok = false, Message = e.GetProperty("msg").GetString() ?? "" };
+        return new SweepRecord
+        {
+            Index = i, Ok = true,
+            Ns = D(e, "n_s"), R = D(e, "r"), AlphaS = D(e, "alpha_s"), Nt = D(e, "n_t"), As = D(e, "A_s"), NStar = D(e, "N_star"), VScale = D(e, "V_scale"),
+            Flags = e.TryGetProperty("flags", out var f) ? f.EnumerateArray().Select(x => x.GetString() ?? "").ToArray() : [],
+            K = A(e, "k"), Ps = A(e, "P_s"), Pt = A(e, "P_t"),
+        };
+    }
+
+    private static void Num(Utf8JsonWriter w, string name, double x)
+    {
+        if (double.IsFinite(x)) w.WriteNumber(name, x);
+        else w.WriteString(name, x.ToString(CultureInfo.InvariantCulture));
+    }
+
+    private static void Arr(Utf8JsonWriter w, string name, double[]? a)
+    {
+        if (a is null) return;
+        w.WriteStartArray(name);
+        foreach (var x in a)
+        {
+            if (double.IsFinite(x)) w.WriteNumberValue(x);
+            else w.WriteStringValue(x.ToString(CultureInfo.InvariantCulture));
+        }
+        w.WriteEndArray();
+    }
+
+    private static double D(JsonElement x) =>
+        x.ValueKind == JsonValueKind.String ? double.Parse(x.GetString()!, CultureInfo.InvariantCulture) : x.GetDouble();
+
+    private static double D(JsonElement e, string name) => e.TryGetProperty(name, out var x) ? D(x) : double.NaN;
+
+    private static double[]? A(JsonElement e, string name)
+    {
+        if (!e.TryGetProperty(name, out var x)) return null;
+        var r = new double[x.GetArrayLength()];
+        int j = 0;
+        foreach (var y in x.EnumerateArray()) r[j++] = D(y);
+        return r;
+    }
+}
