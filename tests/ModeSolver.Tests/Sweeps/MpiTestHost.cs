@@ -17,7 +17,7 @@ public static class MpiTestHost
     public static bool MpirunAvailable => FindOnPath("mpirun") is not null && System.Runtime.InteropServices.NativeLibrary.TryLoad("libmpi.so.40", out _);
 
     /// <summary>The CLI assembly built beside the test assembly.</summary>
-    public static string CliDll => Path.Combine(AppContext.BaseDirectory, "modesolver.dll");
+    public static string CliDll => Path.Combine(AppContext.BaseDirectory, "ModeSolver.Cli.dll");
 
     /// <summary>Runs <c>mpirun ... -np ranks dotnet modesolver.dll args</c>; returns exit code, stdout and stderr. Kills it after <paramref name="timeout"/>.</summary>
     public static (int ExitCode, string Stdout, string Stderr) RunModesolver(int ranks, string[] args, TimeSpan? timeout = null)
