@@ -107,9 +107,10 @@ public static class RunPlots
             }
         }
         double pad = Math.Max(0.05 * (yMax - yMin), 0.05);
-        top.Axes.SetLimits(xMin, xMax, yMin - pad, yMax + 3 * pad);
+        double headroom = 0.5 * (yMax - yMin) + 2 * pad; // room for the legend above the curves
+        top.Axes.SetLimits(xMin, xMax, yMin - pad, yMax + headroom);
         top.Axes.Bottom.TickGenerator = LogTicks(xMin, xMax, labels: false);
-        top.Axes.Left.TickGenerator = LogTicks(yMin - pad, yMax + 3 * pad, labels: true);
+        top.Axes.Left.TickGenerator = LogTicks(yMin - pad, yMax + headroom, labels: true);
         top.YLabel("P(k)");
         top.Title(string.Create(Inv, $"{report.Model.Id}: primordial spectra (n_s = {report.Pivot.Ns:0.0000}, r = {report.Pivot.R:0.###e+0})"));
         top.ShowLegend(Alignment.UpperRight);
@@ -297,12 +298,16 @@ public static class RunPlots
 
     private static void SaveStackedPng(string path, Plot top, int hTop, Plot bottom, int hBottom)
     {
+        // Each panel is rendered on its own (a plot render clears the whole canvas it is given), then composed.
         var info = new SKImageInfo(Width, hTop + hBottom);
         using var surface = SKSurface.Create(info) ?? throw new InvalidOperationException("cannot create a drawing surface");
         var canvas = surface.Canvas;
         canvas.Clear(SKColor.Parse(PlotPalette.Paper));
-        top.Render(canvas, new PixelRect(0, Width, hTop, 0));
-        bottom.Render(canvas, new PixelRect(0, Width, hTop + hBottom, hTop));
+        using (var a = SKImage.FromEncodedData(top.GetImageBytes(Width, hTop, ImageFormat.Png)))
+            canvas.DrawImage(a, 0, 0);
+        using (var b = SKImage.FromEncodedData(bottom.GetImageBytes(Width, hBottom, ImageFormat.Png)))
+            canvas.DrawImage(b, 0, hTop);
+        canvas.Flush();
         using var image = surface.Snapshot();
         using var data = image.Encode(SKEncodedImageFormat.Png, 100);
         using var fs = new FileStream(path, FileMode.Create, FileAccess.Write, FileShare.None);
