@@ -5,7 +5,7 @@ namespace ModeSolver.Output;
 
 /// <summary>
 /// Writes the primordial table for Boltzmann codes: '#' comment lines (model, units, pivot, A_s, n_s, r, generator),
-/// then three whitespace-separated columns k [1/Mpc], P_s, P_t in %.10e format, one row per k, k increasing.
+/// then three space-separated columns k [1/Mpc], P_s, P_t in C's %.10e format (e.g. 2.1000000000e-09), one row per k, k increasing.
 /// </summary>
 public static class PrimordialTableWriter
 {
@@ -34,7 +34,7 @@ public static class PrimordialTableWriter
         if (m.Parameters.Length > 0)
         {
             var sb = new StringBuilder("# parameters:");
-            foreach (var par in m.Parameters) sb.Append(Inv, $" {par.Name} = {par.Value:R}");
+            foreach (var par in m.Parameters) sb.Append(' ').Append(par.Name).Append(" = ").Append(par.Value.ToString("R", Inv).ToLowerInvariant());
             writer.WriteLine(sb.ToString());
         }
         writer.WriteLine(string.Create(Inv, $"# pivot: k_* = {p.KPivot:R} 1/Mpc, N_* = {p.NStar:0.####}"));
@@ -44,7 +44,7 @@ public static class PrimordialTableWriter
         writer.WriteLine(string.Create(Inv, $"# rows: {t.K.Length}, log-spaced in k"));
         writer.WriteLine("# columns: k P_s P_t");
         for (int i = 0; i < t.K.Length; i++)
-            writer.WriteLine(string.Create(Inv, $"{t.K[i]:E10} {t.Ps[i]:E10} {t.Pt[i]:E10}").Replace("E", "e"));
+            writer.WriteLine(string.Create(Inv, $"{t.K[i]:0.0000000000e+00} {t.Ps[i]:0.0000000000e+00} {t.Pt[i]:0.0000000000e+00}"));
     }
 
     /// <summary>Writes the table to a file (overwriting).</summary>

@@ -138,7 +138,7 @@ public class WriterTests
         {
             var cols = rows[i].Split(' ', StringSplitOptions.RemoveEmptyEntries);
             Assert.Equal(3, cols.Length);
-            Assert.Matches(@"^\d\.\d{10}e[+-]\d{3}$", cols[0]);
+            foreach (var c in cols) Assert.Matches(@"^-?\d\.\d{10}e[+-](\d{2}|[1-9]\d{2})$", c); // C's %.10e: two-digit exponent at least
             double k = double.Parse(cols[0], CultureInfo.InvariantCulture);
             double ps = double.Parse(cols[1], CultureInfo.InvariantCulture);
             double pt = double.Parse(cols[2], CultureInfo.InvariantCulture);
