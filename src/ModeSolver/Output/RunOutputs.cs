@@ -37,14 +37,17 @@ public static class RunOutputs
     }
 
     /// <summary>
-    /// Writes every file into <paramref name="directory"/> all-or-nothing (see <see cref="OutputTransaction"/>).
-    /// Throws <see cref="OutputException"/> with a one-line message if anything fails; the directory is then unchanged.
+    /// Checks the report (<see cref="RunReportChecks.Validate"/>, <see cref="ArgumentException"/> before anything is
+    /// touched), then writes every file into <paramref name="directory"/> all-or-nothing (see
+    /// <see cref="OutputTransaction"/>). Throws <see cref="OutputException"/> with a one-line message if anything
+    /// fails; the directory is then unchanged.
     /// </summary>
     /// <returns>Final paths of the files written.</returns>
     public static IReadOnlyList<string> WriteAll(RunReport report, string directory, IEnumerable<OutputFile> files)
     {
         ArgumentNullException.ThrowIfNull(report);
         ArgumentNullException.ThrowIfNull(files);
+        RunReportChecks.Validate(report);
         using var tx = new OutputTransaction(directory);
         foreach (var f in files)
             tx.Stage(f.FileName, path => f.Write(report, path));

@@ -269,6 +269,18 @@ public static class RunPlots
     internal static ScottPlot.TickGenerators.NumericManual LogTicks(double lo, double hi, bool labels)
     {
         var gen = new ScottPlot.TickGenerators.NumericManual();
+        foreach (var (pos, label, major) in LogTickList(lo, hi, labels))
+        {
+            if (major) gen.AddMajor(pos, label);
+            else gen.AddMinor(pos);
+        }
+        return gen;
+    }
+
+    /// <summary>The ticks of <see cref="LogTicks"/> as (position in log10, label, is major).</summary>
+    internal static List<(double Position, string Label, bool Major)> LogTickList(double lo, double hi, bool labels)
+    {
+        var ticks = new List<(double, string, bool)>();
         if (hi - lo >= 1.0)
         {
             int e0 = (int)Math.Floor(lo), e1 = (int)Math.Ceiling(hi);
@@ -276,24 +288,27 @@ public static class RunPlots
             for (int e = e0; e <= e1; e++)
             {
                 if (e >= lo && e <= hi && (e - e0) % step == 0)
-                    gen.AddMajor(e, labels ? $"1e{e.ToString(Inv)}" : "");
+                    ticks.Add((e, labels ? $"1e{e.ToString(Inv)}" : "", true));
                 if (step == 1)
                     for (int m = 2; m <= 9; m++)
                     {
                         double v = e + Math.Log10(m);
-                        if (v >= lo && v <= hi) gen.AddMinor(v);
+                        if (v >= lo && v <= hi) ticks.Add((v, "", false));
                     }
             }
-            return gen;
+            return ticks;
         }
-        // Less than a decade: linear mantissa ticks.
+        // Less than a decade: linear mantissa ticks 1-2-5 times a power of ten.
         double a = Math.Pow(10, lo), b = Math.Pow(10, hi);
         double raw = (b - a) / 5;
         double p = Math.Pow(10, Math.Floor(Math.Log10(raw)));
         double stepLin = raw / p < 1.5 ? p : raw / p < 3.5 ? 2 * p : raw / p < 7.5 ? 5 * p : 10 * p;
-        for (double v = Math.Ceiling(a / stepLin) * stepLin; v <= b * (1 + 1e-12); v += stepLin)
-            gen.AddMajor(Math.Log10(v), labels ? v.ToString("0.###e+0", Inv) : "");
-        return gen;
+        for (long i = (long)Math.Ceiling(a / stepLin); i * stepLin <= b * (1 + 1e-12); i++)
+        {
+            double v = i * stepLin;
+            ticks.Add((Math.Log10(v), labels ? v.ToString("0.###e+0", Inv) : "", true));
+        }
+        return ticks;
     }
 
     private static void SaveStackedPng(string path, Plot top, int hTop, Plot bottom, int hBottom)

@@ -233,3 +233,59 @@ public sealed record StageTiming(string Stage, double Seconds);
 /// <param name="RhsEvaluations">Total right-hand-side evaluations over all modes.</param>
 /// <param name="Workers">Threads or ranks used.</param>
 public sealed record RunStatistics(double WallSeconds, ImmutableArray<StageTiming> Stages, int ModeCount, long RhsEvaluations, int Workers);
+
+/// <summary>Consistency checks of a <see cref="RunReport"/> before anything is written.</summary>
+public static class RunReportChecks
+{
+    /// <summary>
+    /// Throws <see cref="ArgumentException"/> with a one-line message naming the first problem: an array left
+    /// default (use ImmutableArray&lt;T&gt;.Empty), arrays of one group with different lengths, or k / N not increasing.
+    /// </summary>
+    public static void Validate(RunReport report)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        var b = report.Background;
+        Same("background", ("N", b.N), ("phi", b.Phi), ("dphi", b.DPhi), ("H", b.H), ("epsilon_1", b.Epsilon1),
+            ("epsilon_2", b.Epsilon2), ("epsilon_3", b.Epsilon3));
+        NotDefault("background.epsilon_1_crossings", b.Epsilon1Crossings);
+        Increasing("background.N", b.N);
+        var s = report.Spectrum;
+        Same("spectrum", ("k", s.K), ("P_s", s.Ps), ("P_t", s.Pt), ("r", s.R), ("n_s", s.Ns), ("n_t", s.Nt),
+            ("alpha_s", s.AlphaS), ("rel_error", s.RelError));
+        Increasing("spectrum.k", s.K);
+        var sr = report.SlowRollSpectra;
+        Same("slow-roll spectra", ("k", sr.K), ("P_s first order", sr.PsFirstOrder), ("P_t first order", sr.PtFirstOrder),
+            ("P_s second order", sr.PsSecondOrder), ("P_t second order", sr.PtSecondOrder),
+            ("n_s first order", sr.NsFirstOrder), ("n_s second order", sr.NsSecondOrder));
+        if (sr.K.Length != s.K.Length)
+            throw new ArgumentException($"run report: slow-roll spectra have {sr.K.Length} k values but the exact spectrum has {s.K.Length}");
+        Same("table", ("k", report.Table.K), ("P_s", report.Table.Ps), ("P_t", report.Table.Pt));
+        Increasing("table.k", report.Table.K);
+        if (report.Flags.IsDefault) throw new ArgumentException("run report: flags array is default (use an empty array)");
+        if (report.Warnings.IsDefault) throw new ArgumentException("run report: warnings array is default (use an empty array)");
+        if (report.Settings.Entries.IsDefault) throw new ArgumentException("run report: settings array is default (use an empty array)");
+        if (report.Model.Parameters.IsDefault) throw new ArgumentException("run report: model parameters array is default (use an empty array)");
+        if (report.Statistics.Stages.IsDefault) throw new ArgumentException("run report: stage timings array is default (use an empty array)");
+    }
+
+    private static void NotDefault(string name, ImmutableArray<double> a)
+    {
+        if (a.IsDefault) throw new ArgumentException($"run report: {name} is default (use an empty array)");
+    }
+
+    private static void Same(string group, params (string Name, ImmutableArray<double> Values)[] arrays)
+    {
+        foreach (var (name, values) in arrays) NotDefault($"{group}.{name}", values);
+        int n = arrays[0].Values.Length;
+        foreach (var (name, values) in arrays)
+            if (values.Length != n)
+                throw new ArgumentException($"run report: {group} arrays differ in length ({arrays[0].Name} has {n}, {name} has {values.Length})");
+    }
+
+    private static void Increasing(string name, ImmutableArray<double> a)
+    {
+        for (int i = 1; i < a.Length; i++)
+            if (!(a[i] > a[i - 1]))
+                throw new ArgumentException($"run report: {name} is not strictly increasing at index {i}");
+    }
+}

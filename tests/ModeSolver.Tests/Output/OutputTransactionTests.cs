@@ -1,3 +1,4 @@
+using System.Collections.Immutable;
 using ModeSolver.Output;
 
 namespace ModeSolver.Tests.Output;
@@ -108,5 +109,40 @@ public class OutputTransactionTests
             Assert.Throws<ArgumentException>(() => tx.Stage("a.txt", p => File.WriteAllText(p, "a")));
         }
         finally { Directory.Delete(dir, true); }
+    }
+}
+
+public class RunReportChecksTests
+{
+    [Fact]
+    public void Inconsistent_report_is_rejected_before_any_file_is_touched()
+    {
+        var r = SyntheticReport.Create(modes: 20);
+        var bad = r with { Spectrum = r.Spectrum with { Pt = r.Spectrum.Pt.RemoveAt(0) } };
+        string parent = SyntheticReport.TempDir();
+        try
+        {
+            string dir = Path.Combine(parent, "out");
+            var ex = Assert.Throws<ArgumentException>(() => RunOutputs.WriteAll(bad, dir, RunOutputs.Standard(plots: false)));
+            Assert.Contains("spectrum arrays differ in length", ex.Message);
+            Assert.False(Directory.Exists(dir));
+            var unsorted = r with { Table = r.Table with { K = r.Table.K.Reverse().ToImmutableArray() } };
+            Assert.Contains("table.k", Assert.Throws<ArgumentException>(() => RunReportChecks.Validate(unsorted)).Message);
+            RunReportChecks.Validate(r);
+        }
+        finally { Directory.Delete(parent, true); }
+    }
+
+    [Fact]
+    public void Log_ticks_below_one_decade_use_mantissa_labels()
+    {
+        var labels = RunPlots.LogTickList(Math.Log10(2.0e-9), Math.Log10(2.6e-9), labels: true)
+            .Where(t => t.Major).Select(t => t.Label).ToArray();
+        Assert.True(labels.Length >= 3, string.Join(",", labels));
+        Assert.Contains("2.2e-9", labels);
+        var wide = RunPlots.LogTickList(-11.2, -8.4, labels: true);
+        Assert.Equal(["1e-11", "1e-10", "1e-9"], wide.Where(t => t.Major).Select(t => t.Label).ToArray());
+        // m x 10^e (m = 2..9) inside [-11.2, -8.4], counted by hand: 3 in 1e-12 (7e-12..9e-12), 8 in 1e-11, 8 in 1e-10, 2 in 1e-9.
+        Assert.Equal(21, wide.Count(t => !t.Major));
     }
 }
