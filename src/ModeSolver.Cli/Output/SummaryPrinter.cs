@@ -1,0 +1,129 @@
+using System.Globalization;
+using ModeSolver.Diagnostics;
+using ModeSolver.Output;
+using Spectre.Console;
+
+namespace ModeSolver.Cli.Output;
+
+/// <summary>
+/// Terminal summary of a run: a table of the exact pivot values beside the slow-roll ones (first order, second order,
+/// potential form) with the differences exact minus slow roll (relative for A_s), then N_*, phi_*, H_*, V_*^(1/4),
+/// N_total, then the flags (one line each) and warnings.
+/// </summary>
+public static class SummaryPrinter
+{
+    private static readonly CultureInfo Inv = CultureInfo.InvariantCulture;
+
+    /// <summary>
+    /// A console writing to <paramref name="writer"/>: plain text (no colour, no ANSI codes, ASCII borders, 120
+    /// columns) when <paramref name="plain"/> is true, e.g. when the output is redirected.
+    /// </summary>
+    public static IAnsiConsole CreateConsole(TextWriter writer, bool plain)
+    {
+        var console = AnsiConsole.Create(new AnsiConsoleSettings
+        {
+            Out = new AnsiConsoleOutput(writer),
+            Ansi = plain ? AnsiSupport.No : AnsiSupport.Detect,
+            ColorSystem = plain ? ColorSystemSupport.NoColors : ColorSystemSupport.Detect,
+            Interactive = InteractionSupport.No,
+        });
+        if (plain) console.Profile.Width = 120;
+        return console;
+    }
+
+    /// <summary>Console for standard output, plain when standard output is redirected.</summary>
+    public static IAnsiConsole ForStandardOutput() => CreateConsole(Console.Out, Console.IsOutputRedirected);
+
+    /// <summary>Prints the summary to a text writer.</summary>
+    public static void Print(RunReport report, TextWriter writer, bool plain) => Print(report, CreateConsole(writer, plain), plain);
+
+    /// <summary>Prints the summary to a console.</summary>
+    public static void Print(RunReport report, IAnsiConsole console, bool plain = false)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        ArgumentNullException.ThrowIfNull(console);
+        var p = report.Pivot;
+        var sr = report.SlowRoll;
+        var border = plain ? TableBorder.Ascii : TableBorder.Rounded;
+
+        var m = report.Model;
+        console.MarkupLine($"[bold]{Markup.Escape(m.Id)}[/] ({Markup.Escape(m.Frame.Code())}): {Markup.Escape(m.Description)}");
+        console.MarkupLine(Markup.Escape(string.Create(Inv, $"pivot k_* = {p.KPivot:G6} /Mpc, amplitude: {report.AmplitudeMethod}")));
+
+        var table = new Table().Border(border);
+        table.AddColumn("quantity");
+        table.AddColumn(new TableColumn("exact").RightAligned());
+        table.AddColumn(new TableColumn("SR 1st").RightAligned());
+        table.AddColumn(new TableColumn("diff").RightAligned());
+        table.AddColumn(new TableColumn("SR 2nd").RightAligned());
+        table.AddColumn(new TableColumn("diff").RightAligned());
+        table.AddColumn(new TableColumn("SR potential").RightAligned());
+        table.AddColumn(new TableColumn("diff").RightAligned());
+        Row(table, "A_s", p.As, sr.FirstOrder.As, sr.SecondOrder.As, sr.Potential.As, relative: true);
+        Row(table, "n_s", p.Ns, sr.FirstOrder.Ns, sr.SecondOrder.Ns, sr.Potential.Ns);
+        Row(table, "alpha_s", p.AlphaS, sr.FirstOrder.AlphaS, sr.SecondOrder.AlphaS, sr.Potential.AlphaS);
+        Row(table, "r", p.R, sr.FirstOrder.R, sr.SecondOrder.R, sr.Potential.R);
+        Row(table, "n_t", p.Nt, sr.FirstOrder.Nt, sr.SecondOrder.Nt, sr.Potential.Nt);
+        table.Caption("diff = exact - slow roll (A_s: relative, exact/SR - 1)");
+        console.Write(table);
+
+        var info = new Table().Border(border).HideHeaders();
+        info.AddColumn("name");
+        info.AddColumn(new TableColumn("value").RightAligned());
+        info.AddColumn("unit");
+        info.AddRow("N_*", Num(p.NStar, "0.00"), "e-folds");
+        info.AddRow("phi_*", Num(p.PhiStar, "G6"), "M_pl");
+        info.AddRow("H_*", Num(p.HStar, "0.0000e+00"), "M_pl");
+        info.AddRow("H_*", Num(p.HStarGeV, "0.0000e+00"), "GeV");
+        info.AddRow("V_*^(1/4)", Num(p.EnergyScaleGeV, "0.0000e+00"), "GeV");
+        info.AddRow("N_total", Num(p.NTotal, "0.00"), "e-folds");
+        info.AddRow("N_reh", Num(p.NReh, "0.00"), "e-folds");
+        info.AddRow("max rel. error", Num(p.MaxRelError, "0.0e+00"), "");
+        info.AddRow("RHS evals / mode", Num(p.RhsEvaluationsPerMode, "0"), "");
+        console.Write(info);
+
+        // Flags and warnings: one line each. Plain output bypasses Spectre's wrapping so a line is never split.
+        if (report.Flags.IsDefaultOrEmpty)
+            Line(console, plain, "flags: none", "green");
+        else
+        {
+            Line(console, plain, $"flags: {report.Flags.Length}", null);
+            foreach (var f in report.Flags) Line(console, plain, $"  [{f.Kind}] {f.Message}", "yellow");
+        }
+        if (!report.Warnings.IsDefaultOrEmpty)
+            foreach (var w in report.Warnings) Line(console, plain, $"warning: {w}", "red");
+    }
+
+    private static void Line(IAnsiConsole console, bool plain, string text, string? colour)
+    {
+        if (plain)
+        {
+            console.Profile.Out.Writer.WriteLine(text);
+            return;
+        }
+        string escaped = Markup.Escape(text);
+        console.MarkupLine(colour is null ? escaped : $"[{colour}]{escaped}[/]");
+    }
+
+    private static void Row(Table t, string name, double exact, double first, double second, double potential, bool relative = false)
+    {
+        t.AddRow(name, Num(exact), Num(first), Diff(exact, first, relative), Num(second), Diff(exact, second, relative),
+            Num(potential), Diff(exact, potential, relative));
+    }
+
+    /// <summary>A value for the table: 6 significant digits, exponent form outside [1e-3, 1e4); "n/a" when not finite.</summary>
+    internal static string Num(double v, string? format = null)
+    {
+        if (!double.IsFinite(v)) return "n/a";
+        if (format is not null) return v.ToString(format, Inv);
+        double a = Math.Abs(v);
+        return a != 0 && (a < 1e-3 || a >= 1e4) ? v.ToString("0.00000e+00", Inv) : v.ToString("0.######", Inv);
+    }
+
+    private static string Diff(double exact, double sr, bool relative)
+    {
+        if (!double.IsFinite(exact) || !double.IsFinite(sr)) return "n/a";
+        if (relative) return sr == 0 ? "n/a" : ((exact / sr - 1) * 100).ToString("+0.000;-0.000", Inv) + "%";
+        return (exact - sr).ToString("+0.00e+00;-0.00e+00", Inv);
+    }
+}

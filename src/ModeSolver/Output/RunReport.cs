@@ -1,0 +1,291 @@
+using System.Collections.Immutable;
+using System.Reflection;
+using ModeSolver.Diagnostics;
+
+namespace ModeSolver.Output;
+
+/// <summary>
+/// Everything a finished spectrum run hands to the output stage: an immutable record tree filled by the pipeline
+/// and read by the writers (JSON, HDF5, primordial table, plots, terminal summary). Units: reduced Planck units for
+/// background quantities, k in 1/Mpc, energies also in GeV where the field name says so.
+/// </summary>
+/// <param name="Model">The theory that was run.</param>
+/// <param name="Settings">Every setting used, flat and ordered, plus typed fields.</param>
+/// <param name="Pivot">Exact results at the pivot.</param>
+/// <param name="SlowRoll">Slow-roll predictions at the pivot (first order, second order, potential form).</param>
+/// <param name="Background">Background samples and markers.</param>
+/// <param name="Spectrum">Exact spectrum samples.</param>
+/// <param name="SlowRollSpectra">Slow-roll spectra on the same k as <paramref name="Spectrum"/>.</param>
+/// <param name="Table">Dense log-spaced (k, P_s, P_t) table for Boltzmann codes.</param>
+/// <param name="Flags">Slow-roll disagreement flags (see <see cref="Diagnostics.Flags"/>).</param>
+/// <param name="AmplitudeMethod">How the potential was normalised to A_s ("exact" or "slow-roll-2", see IPivotAmplitude.Name).</param>
+/// <param name="Statistics">Timings and counters.</param>
+/// <param name="Warnings">Human-readable warnings collected during the run, one line each.</param>
+public sealed record RunReport(
+    ModelInfo Model,
+    RunSettings Settings,
+    PivotResults Pivot,
+    PivotSlowRoll SlowRoll,
+    BackgroundSamples Background,
+    SpectrumSamples Spectrum,
+    SlowRollSpectra SlowRollSpectra,
+    PrimordialTable Table,
+    ImmutableArray<Flag> Flags,
+    string AmplitudeMethod,
+    RunStatistics Statistics,
+    ImmutableArray<string> Warnings)
+{
+    /// <summary>Generator name and version written into every file; defaults to this assembly's informational version.</summary>
+    public string Generator { get; init; } = DefaultGenerator;
+
+    /// <summary>"modesolver &lt;informational version&gt;" of the library assembly.</summary>
+    public static string DefaultGenerator { get; } = "modesolver " + LibraryVersion;
+
+    /// <summary>Informational version of the ModeSolver library assembly (no build metadata).</summary>
+    public static string LibraryVersion
+    {
+        get
+        {
+            var asm = typeof(RunReport).Assembly;
+            var info = asm.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion
+                       ?? asm.GetName().Version?.ToString() ?? "0.0.0";
+            int plus = info.IndexOf('+');
+            return plus >= 0 ? info[..plus] : info;
+        }
+    }
+}
+
+/// <summary>Formulation of the theory as entered by the user (physics.md section 1).</summary>
+public enum TheoryFrame
+{
+    /// <summary>Einstein frame: V and K given directly.</summary>
+    Einstein,
+    /// <summary>Jordan frame, metric formulation.</summary>
+    JordanMetric,
+    /// <summary>Jordan frame, Palatini formulation.</summary>
+    JordanPalatini,
+}
+
+/// <summary>Helpers for <see cref="TheoryFrame"/>.</summary>
+public static class TheoryFrameText
+{
+    /// <summary>File and screen code: "einstein", "jordan-metric" or "jordan-palatini".</summary>
+    public static string Code(this TheoryFrame frame) => frame switch
+    {
+        TheoryFrame.Einstein => "einstein",
+        TheoryFrame.JordanMetric => "jordan-metric",
+        TheoryFrame.JordanPalatini => "jordan-palatini",
+        _ => throw new ArgumentOutOfRangeException(nameof(frame), frame, "unknown theory frame"),
+    };
+}
+
+/// <summary>A named model parameter and its value (in the units of the model's formulas).</summary>
+public sealed record ModelParameter(string Name, double Value);
+
+/// <summary>The theory that was run.</summary>
+/// <param name="Id">Catalogue id of the model, or "formula" for a user formula.</param>
+/// <param name="Description">One-line description.</param>
+/// <param name="Potential">Formula text of V (Jordan-frame V_J when the frame is Jordan).</param>
+/// <param name="Kinetic">Formula text of K (or K_J); "1" when canonical.</param>
+/// <param name="ConformalFactor">Formula text of Omega^2; null in the Einstein frame.</param>
+/// <param name="Parameters">Parameters in the order the user gave them.</param>
+/// <param name="Frame">Formulation.</param>
+public sealed record ModelInfo(
+    string Id,
+    string Description,
+    string Potential,
+    string Kinetic,
+    string? ConformalFactor,
+    ImmutableArray<ModelParameter> Parameters,
+    TheoryFrame Frame);
+
+/// <summary>One setting as used by the run: key and value rendered as a string (invariant culture).</summary>
+public sealed record Setting(string Key, string Value);
+
+/// <summary>Every setting used by the run.</summary>
+/// <param name="Entries">Flat, ordered (key, value) list: this is what the files record.</param>
+/// <param name="FlagSettings">Thresholds the flags were computed with.</param>
+public sealed record RunSettings(ImmutableArray<Setting> Entries, FlagSettings FlagSettings)
+{
+    /// <summary>Value of the first entry with the given key, or null.</summary>
+    public string? Get(string key)
+    {
+        foreach (var e in Entries)
+            if (e.Key == key) return e.Value;
+        return null;
+    }
+}
+
+/// <summary>Exact results at the pivot.</summary>
+/// <param name="Ns">Scalar spectral index n_s.</param>
+/// <param name="AlphaS">Running alpha_s = d n_s / d ln k.</param>
+/// <param name="R">Tensor-to-scalar ratio r.</param>
+/// <param name="Nt">Tensor index n_t.</param>
+/// <param name="As">Scalar amplitude A_s = P_s(k_*).</param>
+/// <param name="KPivot">Pivot wavenumber k_* in 1/Mpc.</param>
+/// <param name="NStar">e-folds between pivot exit and the end of inflation, N_*.</param>
+/// <param name="PhiStar">Field value at pivot exit (input field, M_pl).</param>
+/// <param name="HStar">Hubble rate at pivot exit in M_pl.</param>
+/// <param name="EnergyScaleGeV">V_*^(1/4) in GeV.</param>
+/// <param name="VScale">Factor applied to the potential to reach the target A_s (1 if not normalised).</param>
+/// <param name="NTotal">Total e-folds of inflation integrated (start to the last end of inflation).</param>
+/// <param name="NReh">e-folds of reheating; 0 for instantaneous reheating; NaN when N_* was given directly.</param>
+/// <param name="MaxRelError">Largest estimated relative error of the exact spectrum samples.</param>
+/// <param name="RhsEvaluationsPerMode">Mean number of right-hand-side evaluations per mode.</param>
+public sealed record PivotResults(
+    double Ns,
+    double AlphaS,
+    double R,
+    double Nt,
+    double As,
+    double KPivot,
+    double NStar,
+    double PhiStar,
+    double HStar,
+    double EnergyScaleGeV,
+    double VScale,
+    double NTotal,
+    double NReh,
+    double MaxRelError,
+    double RhsEvaluationsPerMode)
+{
+    /// <summary>H_* in GeV (H_* times the reduced Planck mass, physics.md section 0).</summary>
+    public double HStarGeV => HStar * Physics.Constants.ReducedPlanckMassGeV;
+}
+
+/// <summary>One slow-roll estimate at the pivot. Quantities the approximation does not give are NaN.</summary>
+/// <param name="As">Scalar power P_s at the pivot.</param>
+/// <param name="Ns">n_s.</param>
+/// <param name="R">r.</param>
+/// <param name="AlphaS">alpha_s.</param>
+/// <param name="Nt">n_t.</param>
+public sealed record SlowRollEstimate(double As, double Ns, double R, double AlphaS, double Nt);
+
+/// <summary>Slow-roll predictions at the pivot (physics.md section 4c).</summary>
+public sealed record PivotSlowRoll(SlowRollEstimate FirstOrder, SlowRollEstimate SecondOrder, SlowRollEstimate Potential);
+
+/// <summary>Background samples (all arrays the same length, increasing N) and markers.</summary>
+/// <param name="N">e-folds N = ln a.</param>
+/// <param name="Phi">Field (input field, M_pl).</param>
+/// <param name="DPhi">d phi / dN.</param>
+/// <param name="H">Hubble rate in M_pl (after normalisation).</param>
+/// <param name="Epsilon1">epsilon_1.</param>
+/// <param name="Epsilon2">epsilon_2.</param>
+/// <param name="Epsilon3">epsilon_3.</param>
+/// <param name="NEnd">N at the end of inflation (the epsilon_1 = 1 crossing used).</param>
+/// <param name="NPivot">N at which the pivot exits (k_* = aH).</param>
+/// <param name="WindowStart">N at which k_min exits the horizon.</param>
+/// <param name="WindowEnd">N at which k_max exits the horizon.</param>
+/// <param name="Epsilon1Crossings">Every N where epsilon_1 crosses 1, in order.</param>
+public sealed record BackgroundSamples(
+    ImmutableArray<double> N,
+    ImmutableArray<double> Phi,
+    ImmutableArray<double> DPhi,
+    ImmutableArray<double> H,
+    ImmutableArray<double> Epsilon1,
+    ImmutableArray<double> Epsilon2,
+    ImmutableArray<double> Epsilon3,
+    double NEnd,
+    double NPivot,
+    double WindowStart,
+    double WindowEnd,
+    ImmutableArray<double> Epsilon1Crossings);
+
+/// <summary>Exact spectrum samples, increasing k (all arrays the same length).</summary>
+/// <param name="K">k in 1/Mpc.</param>
+/// <param name="Ps">Scalar power P_s.</param>
+/// <param name="Pt">Tensor power P_t (both polarisations).</param>
+/// <param name="R">r = P_t/P_s.</param>
+/// <param name="Ns">n_s(k).</param>
+/// <param name="Nt">n_t(k).</param>
+/// <param name="AlphaS">alpha_s(k).</param>
+/// <param name="RelError">Estimated relative error of P_s at each k.</param>
+public sealed record SpectrumSamples(
+    ImmutableArray<double> K,
+    ImmutableArray<double> Ps,
+    ImmutableArray<double> Pt,
+    ImmutableArray<double> R,
+    ImmutableArray<double> Ns,
+    ImmutableArray<double> Nt,
+    ImmutableArray<double> AlphaS,
+    ImmutableArray<double> RelError);
+
+/// <summary>Slow-roll spectra on the k of <see cref="SpectrumSamples"/> (each evaluated at that mode's horizon exit).</summary>
+public sealed record SlowRollSpectra(
+    ImmutableArray<double> K,
+    ImmutableArray<double> PsFirstOrder,
+    ImmutableArray<double> PtFirstOrder,
+    ImmutableArray<double> PsSecondOrder,
+    ImmutableArray<double> PtSecondOrder,
+    ImmutableArray<double> NsFirstOrder,
+    ImmutableArray<double> NsSecondOrder);
+
+/// <summary>Dense log-spaced primordial table for Boltzmann codes: k in 1/Mpc, P_s, P_t.</summary>
+public sealed record PrimordialTable(ImmutableArray<double> K, ImmutableArray<double> Ps, ImmutableArray<double> Pt);
+
+/// <summary>Wall time of one pipeline stage.</summary>
+public sealed record StageTiming(string Stage, double Seconds);
+
+/// <summary>Timings and counters of the run.</summary>
+/// <param name="WallSeconds">Total wall time.</param>
+/// <param name="Stages">Per-stage wall times, in pipeline order.</param>
+/// <param name="ModeCount">Number of k modes integrated.</param>
+/// <param name="RhsEvaluations">Total right-hand-side evaluations over all modes.</param>
+/// <param name="Workers">Threads or ranks used.</param>
+public sealed record RunStatistics(double WallSeconds, ImmutableArray<StageTiming> Stages, int ModeCount, long RhsEvaluations, int Workers);
+
+/// <summary>Consistency checks of a <see cref="RunReport"/> before anything is written.</summary>
+public static class RunReportChecks
+{
+    /// <summary>
+    /// Throws <see cref="ArgumentException"/> with a one-line message naming the first problem: an array left
+    /// default (use ImmutableArray&lt;T&gt;.Empty), arrays of one group with different lengths, or k / N not increasing.
+    /// </summary>
+    public static void Validate(RunReport report)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        var b = report.Background;
+        Same("background", ("N", b.N), ("phi", b.Phi), ("dphi", b.DPhi), ("H", b.H), ("epsilon_1", b.Epsilon1),
+            ("epsilon_2", b.Epsilon2), ("epsilon_3", b.Epsilon3));
+        NotDefault("background.epsilon_1_crossings", b.Epsilon1Crossings);
+        Increasing("background.N", b.N);
+        var s = report.Spectrum;
+        Same("spectrum", ("k", s.K), ("P_s", s.Ps), ("P_t", s.Pt), ("r", s.R), ("n_s", s.Ns), ("n_t", s.Nt),
+            ("alpha_s", s.AlphaS), ("rel_error", s.RelError));
+        Increasing("spectrum.k", s.K);
+        var sr = report.SlowRollSpectra;
+        Same("slow-roll spectra", ("k", sr.K), ("P_s first order", sr.PsFirstOrder), ("P_t first order", sr.PtFirstOrder),
+            ("P_s second order", sr.PsSecondOrder), ("P_t second order", sr.PtSecondOrder),
+            ("n_s first order", sr.NsFirstOrder), ("n_s second order", sr.NsSecondOrder));
+        if (sr.K.Length != s.K.Length)
+            throw new ArgumentException($"run report: slow-roll spectra have {sr.K.Length} k values but the exact spectrum has {s.K.Length}");
+        Same("table", ("k", report.Table.K), ("P_s", report.Table.Ps), ("P_t", report.Table.Pt));
+        Increasing("table.k", report.Table.K);
+        if (report.Flags.IsDefault) throw new ArgumentException("run report: flags array is default (use an empty array)");
+        if (report.Warnings.IsDefault) throw new ArgumentException("run report: warnings array is default (use an empty array)");
+        if (report.Settings.Entries.IsDefault) throw new ArgumentException("run report: settings array is default (use an empty array)");
+        if (report.Model.Parameters.IsDefault) throw new ArgumentException("run report: model parameters array is default (use an empty array)");
+        if (report.Statistics.Stages.IsDefault) throw new ArgumentException("run report: stage timings array is default (use an empty array)");
+    }
+
+    private static void NotDefault(string name, ImmutableArray<double> a)
+    {
+        if (a.IsDefault) throw new ArgumentException($"run report: {name} is default (use an empty array)");
+    }
+
+    private static void Same(string group, params (string Name, ImmutableArray<double> Values)[] arrays)
+    {
+        foreach (var (name, values) in arrays) NotDefault($"{group}.{name}", values);
+        int n = arrays[0].Values.Length;
+        foreach (var (name, values) in arrays)
+            if (values.Length != n)
+                throw new ArgumentException($"run report: {group} arrays differ in length ({arrays[0].Name} has {n}, {name} has {values.Length})");
+    }
+
+    private static void Increasing(string name, ImmutableArray<double> a)
+    {
+        for (int i = 1; i < a.Length; i++)
+            if (!(a[i] > a[i - 1]))
+                throw new ArgumentException($"run report: {name} is not strictly increasing at index {i}");
+    }
+}
