@@ -25,7 +25,7 @@ internal static class DeckErrors
 /// <summary>
 /// Unvalidated run input gathered from a deck or from command-line options; every field is optional. Merge a deck
 /// with command-line overrides by <see cref="Merge"/>, then turn it into <see cref="RunSettings"/> with
-/// <see cref="SettingsResolver.Resolve"/>.
+/// <see cref="SettingsResolver.Resolve(RunInput)"/>.
 /// </summary>
 public sealed class RunInput
 {
