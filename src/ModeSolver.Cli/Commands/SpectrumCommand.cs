@@ -40,7 +40,10 @@ public static class SpectrumCommand
         output.WriteLine(settings.Summary());
         var (lo, hi) = theory.ValidRange;
         if (double.IsFinite(lo) || double.IsFinite(hi))
-            output.WriteLine(FormattableString.Invariant($"The theory is valid for {lo:G6} < phi < {hi:G6}."));
+            output.WriteLine(FormattableString.Invariant($"The theory is valid for {Bound(lo)} < phi < {Bound(hi)}."));
         return 0;
     }
+
+    private static string Bound(double x) =>
+        double.IsPositiveInfinity(x) ? "inf" : double.IsNegativeInfinity(x) ? "-inf" : x.ToString("G6", System.Globalization.CultureInfo.InvariantCulture);
 }

@@ -60,7 +60,9 @@ public static class DeckReader
             throw new DeckException(DeckErrors.OneLine(line is int l ? $"{sourceName}:{l}: TOML syntax error: {msg}" : $"{sourceName}: TOML syntax error: {msg}"), null, sourceName, line, e);
         }
         var reader = new Walker(sourceName, store);
-        return reader.Read(root);
+        var input = reader.Read(root);
+        input.DeckPath = sourceName;
+        return input;
     }
 
     private static string FirstLine(string s)
