@@ -31,6 +31,7 @@ public sealed class Formula : IFieldFunction
     private readonly Node _root;
     private readonly CompiledProgram _program;
     private readonly List<SwitchFunction> _switches;
+    private readonly Lazy<IReadOnlyList<double>> _nonSmooth;
 
     private Formula(string text, string variable, Node root, CompiledProgram program,
         IReadOnlyDictionary<string, double> parameters, IReadOnlyList<string> unused, List<SwitchFunction> switches)
@@ -42,7 +43,9 @@ public sealed class Formula : IFieldFunction
         Parameters = parameters;
         UnusedParameters = unused;
         _switches = switches;
-        NonSmoothPoints = NonSmoothPointsIn(-DefaultScanRange, DefaultScanRange, includeAllLinear: true);
+        _nonSmooth = new Lazy<IReadOnlyList<double>>(
+            () => NonSmoothPointsIn(-DefaultScanRange, DefaultScanRange, includeAllLinear: true).AsReadOnly(),
+            LazyThreadSafetyMode.ExecutionAndPublication);
     }
 
     /// <summary>The source text.</summary>
@@ -62,7 +65,8 @@ public sealed class Formula : IFieldFunction
     /// Switching arguments linear in the variable are solved exactly wherever the root lies; others are
     /// scanned over [-<see cref="DefaultScanRange"/>, <see cref="DefaultScanRange"/>] (see <see cref="NonSmoothPointsIn(double, double)"/>).
     /// </summary>
-    public IReadOnlyList<double> NonSmoothPoints { get; }
+    /// <remarks>Computed on first use (a scan costs a few milliseconds per non-linear switch), then cached.</remarks>
+    public IReadOnlyList<double> NonSmoothPoints => _nonSmooth.Value;
 
     /// <summary>Number of instructions of the compiled program (after constant folding).</summary>
     public int InstructionCount => _program.Code.Length;

@@ -75,9 +75,11 @@ internal sealed class SwitchFunction
         };
     }
 
-    private static unsafe (double Value, double Slope) ValueAndSlope(CompiledProgram p, double x)
+    private static (double Value, double Slope) ValueAndSlope(CompiledProgram p, double x)
+        => ValueAndSlope(p, x, new double[p.RegisterCount * 2]);
+
+    private static unsafe (double Value, double Slope) ValueAndSlope(CompiledProgram p, double x, double[] buffer)
     {
-        var buffer = new double[p.RegisterCount * 2];
         fixed (double* s = buffer)
         {
             double* r = p.RunSeries(x, 1, s);
@@ -94,14 +96,15 @@ internal sealed class SwitchFunction
             return;
         }
         var grid = Grid(min, max);
-        double xPrev = grid[0], gPrev = ValueAndSlope(_program, xPrev).Value;
+        var buffer = new double[_program.RegisterCount * 2];
+        double xPrev = grid[0], gPrev = ValueAndSlope(_program, xPrev, buffer).Value;
         if (gPrev == 0) roots.Add(xPrev);
         for (int i = 1; i < grid.Count; i++)
         {
-            double x = grid[i], g = ValueAndSlope(_program, x).Value;
+            double x = grid[i], g = ValueAndSlope(_program, x, buffer).Value;
             if (g == 0) roots.Add(x);
             else if (double.IsFinite(g) && double.IsFinite(gPrev) && gPrev != 0 && Math.Sign(g) != Math.Sign(gPrev))
-                roots.Add(Refine(xPrev, gPrev, x));
+                roots.Add(Refine(xPrev, gPrev, x, buffer));
             xPrev = x;
             gPrev = g;
         }
@@ -135,12 +138,12 @@ internal sealed class SwitchFunction
 
     private const double MachineEpsilon = 2.220446049250313e-16;
 
-    private double Refine(double a, double ga, double b)
+    private double Refine(double a, double ga, double b, double[] buffer)
     {
         double x = 0.5 * (a + b);
         for (int iter = 0; iter < 200; iter++)
         {
-            var (g, s) = ValueAndSlope(_program, x);
+            var (g, s) = ValueAndSlope(_program, x, buffer);
             if (g == 0 || !double.IsFinite(g)) return x;
             if (Math.Sign(g) == Math.Sign(ga)) { a = x; ga = g; } else b = x;
             double newton = x - g / s;
