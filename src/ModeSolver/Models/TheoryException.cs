@@ -49,7 +49,8 @@ internal static class TheoryValidity
         if (reason is null && (from < lo || from > hi)) reason = "outside the declared valid range";
         if (reason is not null)
             throw new TheoryException($"{reason} at phi = {F(from)}: the {what} is not valid there; choose a range that starts where it is valid") { Phi = from };
-        double prev = from;
+        double prev = from, prevPrev = double.NaN;
+        double ik = InverseK(theory, from), ikPrev = double.NaN;
         for (int i = 1; i <= ScanSamples; i++)
         {
             double x = i == ScanSamples ? to : from + (to - from) * i / ScanSamples;
@@ -60,8 +61,38 @@ internal static class TheoryValidity
                 double edge = Bisect(theory, prev, x);
                 throw new TheoryException($"{r} at phi = {F(edge)}: the {what} is not valid there; start inside {Interval(theory.FindValidInterval(from))}") { Phi = edge };
             }
+            double ikx = InverseK(theory, x);
+            if (i >= 2 && PoleNear(theory, prevPrev, prev, x, ikPrev, ik, ikx) is double pole)
+                throw new TheoryException($"K diverges at phi = {F(pole)}: the {what} is not valid there; start inside {Interval(theory.FindValidInterval(from))}") { Phi = pole };
+            prevPrev = prev;
+            ikPrev = ik;
             prev = x;
+            ik = ikx;
         }
+    }
+
+    private static double InverseK(IInflatonTheory theory, double phi) => 1.0 / theory.Kinetic(phi).Value;
+
+    /// <summary>
+    /// A pole of K where 1/K touches zero without changing sign (e.g. (1 - phi^2/6 alpha)^-2): when the middle of three
+    /// samples of 1/K is the smallest, a golden-section search finds the minimum; a minimum below 1e-12 of the
+    /// neighbouring values is a pole. Returns its position, or null.
+    /// </summary>
+    internal static double? PoleNear(IInflatonTheory theory, double a, double m, double b, double fa, double fm, double fb)
+    {
+        if (!(fm < fa && fm <= fb)) return null;
+        double lo = Math.Min(a, b), hi = Math.Max(a, b);
+        const double g = 0.6180339887498949;
+        double x1 = hi - g * (hi - lo), x2 = lo + g * (hi - lo);
+        double f1 = InverseK(theory, x1), f2 = InverseK(theory, x2);
+        for (int it = 0; it < 200 && hi - lo > 1e-15 * Math.Max(1.0, Math.Abs(lo)); it++)
+        {
+            if (f1 < f2) { hi = x2; x2 = x1; f2 = f1; x1 = hi - g * (hi - lo); f1 = InverseK(theory, x1); }
+            else { lo = x1; x1 = x2; f1 = f2; x2 = lo + g * (hi - lo); f2 = InverseK(theory, x2); }
+        }
+        double xm = f1 < f2 ? x1 : x2, fmin = Math.Min(f1, f2);
+        double scale = Math.Max(Math.Abs(fa), Math.Abs(fb));
+        return fmin <= 1e-12 * scale || !double.IsFinite(1.0 / fmin) ? xm : null;
     }
 
     public static (double, double) FindValidInterval(IValidatedTheory theory, double phiInside, double searchLimit)
@@ -73,13 +104,20 @@ internal static class TheoryValidity
 
     private static double Walk(IValidatedTheory theory, double start, int dir, double limit)
     {
-        double x = start;
+        double x = start, prev = double.NaN;
+        double ik = InverseK(theory, x), ikPrev = double.NaN;
         while (Math.Abs(x) <= limit)
         {
             double step = 0.005 * Math.Max(1.0, Math.Abs(x));
             double next = x + dir * step;
             if (theory.InvalidReason(next) is not null) return Bisect(theory, x, next);
+            double ikn = InverseK(theory, next);
+            if (!double.IsNaN(prev) && PoleNear(theory, prev, x, next, ikPrev, ik, ikn) is double pole)
+                return pole - dir * 1e-12 * Math.Max(1.0, Math.Abs(pole));
+            prev = x;
+            ikPrev = ik;
             x = next;
+            ik = ikn;
         }
         return dir < 0 ? double.NegativeInfinity : double.PositiveInfinity;
     }

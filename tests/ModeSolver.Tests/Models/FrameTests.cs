@@ -166,4 +166,24 @@ public class FrameTests
         Assert.Equal(2.5, map.Phi(1.5), 12);
         Assert.Equal(6.25, map.PotentialOfChi(1.5), 11);
     }
+
+    [Fact]
+    public void PoleOfKineticFunctionIsRefused()
+    {
+        // K = (1 - phi^2/(6 alpha))^(-2) diverges at phi = sqrt(6 alpha) (Kallosh, Linde & Roest 2013) without changing sign.
+        double s = Math.Sqrt(6.0);
+        var kinetic = new DerivativeFunction((phi, d) =>
+        {
+            var k = TaylorJet.Pow(TaylorJet.Constant(1.0) - (1.0 / 6.0) * TaylorJet.Square(TaylorJet.Variable(phi)), -2);
+            for (int i = 0; i < d.Length; i++) d[i] = k.Derivative(i);
+        }, 4);
+        var theory = new EinsteinFrameTheory(ClosedForms.Polynomial(0, 0, 1), kinetic, "pole");
+        var ex = Assert.Throws<TheoryException>(() => theory.ValidateRange(0.0, 4.0));
+        Assert.StartsWith("K diverges at phi = 2.44949", ex.Message);
+        Assert.Equal(s, ex.Phi!.Value, 6);
+        var (lo, hi) = theory.FindValidInterval(1.0);
+        Assert.Equal(-s, lo, 6);
+        Assert.Equal(s, hi, 6);
+        theory.ValidateRange(-2.4, 2.4); // inside: no throw
+    }
 }
