@@ -25,29 +25,29 @@ public static class FrameCommand
             TreatUnmatchedTokensAsErrors = false,
         };
         var model = RunOptions.AddModelOptions(cmd);
-        var phiMin = new Option<string?>("--phi-min") { Description = "Smallest field value (default: from 0, phi0 and phi_end)." };
-        var phiMax = new Option<string?>("--phi-max") { Description = "Largest field value (default: from 0, phi0 and phi_end)." };
-        var points = new Option<string?>("--points") { Description = "Number of field values (default 400)." };
-        var phiEndOpt = new Option<string?>("--phi-end") { Description = "Also include this field value in the default range." };
-        var outDir = new Option<string?>("--out") { Description = "Output directory (created if missing; default: frame-out)." };
+        var phiMin = RunOptions.Opt("--phi-min", "Smallest field value (default: from 0, phi0 and phi_end).");
+        var phiMax = RunOptions.Opt("--phi-max", "Largest field value (default: from 0, phi0 and phi_end).");
+        var points = RunOptions.Opt("--points", "Number of field values (default 400).");
+        var phiEndOpt = RunOptions.Opt("--phi-end", "Also include this field value in the default range.");
+        var outDir = RunOptions.Opt("--out", "Output directory (created if missing; default: frame-out).");
         foreach (var o in new Option[] { phiMin, phiMax, points, phiEndOpt, outDir }) cmd.Options.Add(o);
         cmd.SetAction(parse => CommandErrors.Guard(() =>
         {
             CommandErrors.ThrowOnUnmatched(parse);
             var input = model.Overrides(parse);
-            if (parse.GetValue(phiEndOpt) is string pe) input.PhiEnd = new(RunOptions.ParseNumber(pe, "--phi-end"), "--phi-end");
+            if (RunOptions.Value(parse, phiEndOpt) is string pe) input.PhiEnd = new(RunOptions.ParseNumber(pe, "--phi-end"), "--phi-end");
             if (input.ModelId is null && input.Potential is null)
                 throw new DeckException("frame needs a model: --model ID or --potential EXPR", "--model");
             var spec = ResolveModel(input, out double? phi0);
-            double? lo = parse.GetValue(phiMin) is string a ? RunOptions.ParseNumber(a, "--phi-min") : null;
-            double? hi = parse.GetValue(phiMax) is string b ? RunOptions.ParseNumber(b, "--phi-max") : null;
+            double? lo = RunOptions.Value(parse, phiMin) is string a ? RunOptions.ParseNumber(a, "--phi-min") : null;
+            double? hi = RunOptions.Value(parse, phiMax) is string b ? RunOptions.ParseNumber(b, "--phi-max") : null;
             int n = 400;
-            if (parse.GetValue(points) is string p)
+            if (RunOptions.Value(parse, points) is string p)
             {
                 if (!int.TryParse(p.Trim(), NumberStyles.Integer, CultureInfo.InvariantCulture, out n) || n < 2 || n > 1_000_000)
                     throw new DeckException($"--points expects a whole number from 2 to 1000000 (got '{p}')", "--points");
             }
-            string dir = parse.GetValue(outDir) ?? "frame-out";
+            string dir = RunOptions.Value(parse, outDir) ?? "frame-out";
             Write(spec, phi0, lo, hi, n, dir);
             Console.Out.WriteLine($"wrote {string.Join(", ", OutputFiles)} to {dir}");
             return 0;

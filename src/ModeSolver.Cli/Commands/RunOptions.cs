@@ -16,58 +16,73 @@ public sealed class RunOptions
     public Argument<string?> Deck { get; } = new("DECK") { Description = "Run deck (TOML); options given on the command line override it.", Arity = ArgumentArity.ZeroOrOne };
 
     /// <summary>--potential EXPR.</summary>
-    public Option<string?> Potential { get; } = new("--potential") { Description = "V(phi) as a formula (V_J with --coupling), reduced Planck units." };
+    public Option<string?> Potential { get; } = Opt("--potential", "V(phi) as a formula (V_J with --coupling), reduced Planck units.");
 
     /// <summary>--kinetic EXPR.</summary>
-    public Option<string?> Kinetic { get; } = new("--kinetic") { Description = "Non-canonical kinetic function K(phi) (K_J with --coupling)." };
+    public Option<string?> Kinetic { get; } = Opt("--kinetic", "Non-canonical kinetic function K(phi) (K_J with --coupling).");
 
     /// <summary>--coupling EXPR.</summary>
-    public Option<string?> Coupling { get; } = new("--coupling") { Description = "Omega^2(phi): the theory is then given in the Jordan frame." };
+    public Option<string?> Coupling { get; } = Opt("--coupling", "Omega^2(phi): the theory is then given in the Jordan frame.");
 
     /// <summary>--palatini.</summary>
     public Option<bool> Palatini { get; } = new("--palatini") { Description = "Palatini formulation of the Jordan-frame theory (default: metric)." };
 
     /// <summary>--param NAME=VALUE (repeatable).</summary>
-    public Option<string[]> Param { get; } = new("--param") { Description = "A formula parameter, NAME=VALUE; repeat for several.", AllowMultipleArgumentsPerToken = false };
+    public Option<string[]> Param { get; } = new("--param") { Description = "A formula parameter, NAME=VALUE; repeat for several.", AllowMultipleArgumentsPerToken = false, Arity = ArgumentArity.ZeroOrMore };
 
     /// <summary>--model ID.</summary>
-    public Option<string?> Model { get; } = new("--model") { Description = "A catalogue model id (see `modesolver models`)." };
+    public Option<string?> Model { get; } = Opt("--model", "A catalogue model id (see `modesolver models`).");
 
     /// <summary>--phi0 X.</summary>
-    public Option<string?> Phi0 { get; } = new("--phi0") { Description = "Initial field value (default: the catalogue's)." };
+    public Option<string?> Phi0 { get; } = Opt("--phi0", "Initial field value (default: the catalogue's).");
 
     /// <summary>--dphi0 Y.</summary>
-    public Option<string?> DPhi0 { get; } = new("--dphi0") { Description = "Initial d phi / dN (default: slow-roll attractor)." };
+    public Option<string?> DPhi0 { get; } = Opt("--dphi0", "Initial d phi / dN (default: slow-roll attractor).");
 
     /// <summary>--efolds N.</summary>
-    public Option<string?> Efolds { get; } = new("--efolds") { Description = "N_*: e-folds before the end of inflation at which k_pivot = aH." };
+    public Option<string?> Efolds { get; } = Opt("--efolds", "N_*: e-folds before the end of inflation at which k_pivot = aH.");
 
     /// <summary>--reheat-w W.</summary>
-    public Option<string?> ReheatW { get; } = new("--reheat-w") { Description = "Equation of state during reheating, -1/3 < w <= 1 (default 0 with --reheat-T)." };
+    public Option<string?> ReheatW { get; } = Opt("--reheat-w", "Equation of state during reheating, -1/3 < w <= 1 (default 0 with --reheat-T).");
 
     /// <summary>--reheat-T GEV.</summary>
-    public Option<string?> ReheatT { get; } = new("--reheat-T") { Description = "Reheating temperature in GeV." };
+    public Option<string?> ReheatT { get; } = Opt("--reheat-T", "Reheating temperature in GeV.");
 
     /// <summary>--k-pivot K.</summary>
-    public Option<string?> KPivot { get; } = new("--k-pivot") { Description = "Pivot wavenumber in 1/Mpc (default 0.05)." };
+    public Option<string?> KPivot { get; } = Opt("--k-pivot", "Pivot wavenumber in 1/Mpc (default 0.05).");
 
     /// <summary>--amplitude A_S or none.</summary>
-    public Option<string?> Amplitude { get; } = new("--amplitude") { Description = "Scalar amplitude A_s at the pivot (default 2.099e-9), or 'none'." };
+    public Option<string?> Amplitude { get; } = Opt("--amplitude", "Scalar amplitude A_s at the pivot (default 2.099e-9), or 'none'.");
 
     /// <summary>--k-min K.</summary>
-    public Option<string?> KMin { get; } = new("--k-min") { Description = "Smallest wavenumber, 1/Mpc." };
+    public Option<string?> KMin { get; } = Opt("--k-min", "Smallest wavenumber, 1/Mpc.");
 
     /// <summary>--k-max K.</summary>
-    public Option<string?> KMax { get; } = new("--k-max") { Description = "Largest wavenumber, 1/Mpc." };
+    public Option<string?> KMax { get; } = Opt("--k-max", "Largest wavenumber, 1/Mpc.");
 
     /// <summary>--k-count N.</summary>
-    public Option<string?> KCount { get; } = new("--k-count") { Description = "Number of log-spaced wavenumbers." };
+    public Option<string?> KCount { get; } = Opt("--k-count", "Number of log-spaced wavenumbers.");
 
     /// <summary>--tolerance T.</summary>
-    public Option<string?> Tolerance { get; } = new("--tolerance") { Description = "Relative accuracy target of the spectra." };
+    public Option<string?> Tolerance { get; } = Opt("--tolerance", "Relative accuracy target of the spectra.");
 
     /// <summary>--out DIR.</summary>
-    public Option<string?> Out { get; } = new("--out") { Description = "Output directory." };
+    public Option<string?> Out { get; } = Opt("--out", "Output directory.");
+
+    /// <summary>
+    /// A text-valued option whose value may be missing at parse time, so that a missing value becomes our own one-line
+    /// error (exit 2) instead of the parser's error-and-help output.
+    /// </summary>
+    public static Option<string?> Opt(string name, string description) =>
+        new(name) { Description = description, Arity = ArgumentArity.ZeroOrOne };
+
+    /// <summary>The option's text, null when absent; throws a one-line <see cref="DeckException"/> when given without a value.</summary>
+    public static string? Value(ParseResult parse, Option<string?> option)
+    {
+        if (parse.GetResult(option) is { } r && r.Tokens.Count == 0)
+            throw new DeckException($"{option.Name} needs a value", option.Name);
+        return parse.GetValue(option);
+    }
 
     /// <summary>Model options only (for commands that need a theory but no run: frame).</summary>
     public static RunOptions AddModelOptions(Command cmd)
@@ -115,6 +130,8 @@ public sealed class RunOptions
         r.Kinetic = Text(parse, Kinetic);
         r.Coupling = Text(parse, Coupling);
         if (parse.GetValue(Palatini)) r.Palatini = new(true, "--palatini");
+        if (parse.GetResult(Param) is { } pr && pr.Tokens.Count == 0)
+            throw new DeckException("--param needs a value NAME=VALUE", "--param");
         foreach (string item in parse.GetValue(Param) ?? [])
         {
             int eq = item.IndexOf('=');
@@ -131,7 +148,7 @@ public sealed class RunOptions
         r.ReheatW = Number(parse, ReheatW);
         r.ReheatTemperature = Number(parse, ReheatT);
         r.KPivot = Number(parse, KPivot);
-        if (parse.GetValue(Amplitude) is string a)
+        if (Value(parse, Amplitude) is string a)
         {
             r.Amplitude = string.Equals(a.Trim(), "none", StringComparison.OrdinalIgnoreCase)
                 ? new Located<double?>(null, "--amplitude")
@@ -139,7 +156,7 @@ public sealed class RunOptions
         }
         r.KMin = Number(parse, KMin);
         r.KMax = Number(parse, KMax);
-        if (parse.GetValue(KCount) is string kc)
+        if (Value(parse, KCount) is string kc)
         {
             if (!long.TryParse(kc.Trim(), NumberStyles.Integer, CultureInfo.InvariantCulture, out long n))
                 throw new DeckException($"--k-count expects a whole number (got '{kc}')", "--k-count");
@@ -151,10 +168,10 @@ public sealed class RunOptions
     }
 
     private static Located<string>? Text(ParseResult parse, Option<string?> option) =>
-        parse.GetValue(option) is string s ? new Located<string>(s, option.Name) : null;
+        Value(parse, option) is string s ? new Located<string>(s, option.Name) : null;
 
     private static Located<double>? Number(ParseResult parse, Option<string?> option) =>
-        parse.GetValue(option) is string s ? new Located<double>(ParseNumber(s, option.Name), option.Name) : null;
+        Value(parse, option) is string s ? new Located<double>(ParseNumber(s, option.Name), option.Name) : null;
 
     /// <summary>Parses a number in the invariant culture; throws a one-line <see cref="DeckException"/> naming <paramref name="key"/>.</summary>
     public static double ParseNumber(string text, string key, string expected = "a number")

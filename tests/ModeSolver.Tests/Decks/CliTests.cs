@@ -137,6 +137,8 @@ public class CliTests
     [InlineData(new[] { "spectrum", "--model", "t-model", "--amplitude", "-1" }, "modesolver: --amplitude must be a positive number below 1")]
     [InlineData(new[] { "spectrum", "--potential", "phi^2 * (", "--phi0", "1" }, "modesolver: --potential is not a valid formula: ")]
     [InlineData(new[] { "spectrum", "--model", "t-model", "--potential", "phi^2" }, "modesolver: --potential cannot be given together with --model")]
+    [InlineData(new[] { "spectrum", "--model", "t-model", "--phi0" }, "modesolver: --phi0 needs a value")]
+    [InlineData(new[] { "frame", "--model", "t-model", "--points", "1" }, "modesolver: --points expects a whole number from 2")]
     public void SpectrumRejectsBadInputWithOneLine(string[] args, string expectedStart)
     {
         var (code, output, err) = Run(args);
@@ -144,6 +146,14 @@ public class CliTests
         Assert.Equal("", output);
         Assert.StartsWith(expectedStart, err);
         Assert.Single(err.TrimEnd().Split('\n'));
+    }
+
+    [Fact]
+    public void NegativeNumbersAreOptionValues()
+    {
+        var (code, output, err) = Run("spectrum", "--model", "natural", "--phi0", "-3", "--dphi0", "-0.01");
+        Assert.True(code == 0, err);
+        Assert.Contains("phi0 = -3 with dphi/dN = -0.01", output);
     }
 
     [Fact]
