@@ -135,12 +135,15 @@ public sealed class Formula : IFieldFunction
     public unsafe double Value(double phi)
     {
         int count = _program.RegisterCount;
-        if (count <= StackDoubles)
-        {
-            double* r = stackalloc double[count];
-            return _program.RunValue(phi, r);
-        }
-        var rented = ArrayPool<double>.Shared.Rent(count);
+        if (count > StackDoubles) return ValueRented(phi);
+        double* r = stackalloc double[count];
+        return _program.RunValue(phi, r);
+    }
+
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private unsafe double ValueRented(double phi)
+    {
+        var rented = ArrayPool<double>.Shared.Rent(_program.RegisterCount);
         try
         {
             fixed (double* r = rented) return _program.RunValue(phi, r);
@@ -151,25 +154,23 @@ public sealed class Formula : IFieldFunction
         }
     }
 
-    /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding.</summary>
+    /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding (an unrolled third-order path).</summary>
     [SkipLocalsInit]
     public unsafe Jet3 Evaluate(double phi)
     {
         int count = _program.RegisterCount * 4;
-        if (count <= StackDoubles)
-        {
-            double* s = stackalloc double[count];
-            double* c = _program.RunSeries(phi, 3, s);
-            return new Jet3(c[0], c[1], 2 * c[2], 6 * c[3]);
-        }
-        var rented = ArrayPool<double>.Shared.Rent(count);
+        if (count > StackDoubles) return EvaluateRented(phi);
+        double* s = stackalloc double[count];
+        return Jet3Evaluator.Run(_program, phi, s);
+    }
+
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private unsafe Jet3 EvaluateRented(double phi)
+    {
+        var rented = ArrayPool<double>.Shared.Rent(_program.RegisterCount * 4);
         try
         {
-            fixed (double* s = rented)
-            {
-                double* c = _program.RunSeries(phi, 3, s);
-                return new Jet3(c[0], c[1], 2 * c[2], 6 * c[3]);
-            }
+            fixed (double* s = rented) return Jet3Evaluator.Run(_program, phi, s);
         }
         finally
         {
