@@ -10,6 +10,9 @@ public static class CliApp
     {
         var root = new RootCommand("ModeSolver: exact primordial spectra of inflaton models.");
         // Sub-commands register here, one line each.
+        root.Subcommands.Add(Commands.ModelsCommand.Create());
+        root.Subcommands.Add(Commands.FrameCommand.Create());
+        root.Subcommands.Add(Commands.SpectrumCommand.Create());
         root.Subcommands.Add(Commands.SweepCommand.Create());
         root.Subcommands.Add(Commands.SweepMergeCommand.Create());
         root.Subcommands.Add(Commands.MpiCheckCommand.Create());

@@ -1,0 +1,199 @@
+using System.Globalization;
+using Tomlyn;
+using Tomlyn.Model;
+using Tomlyn.Serialization;
+
+namespace ModeSolver.Decks;
+
+/// <summary>
+/// Reads a run deck (TOML, our own schema; see notes/models.md) into a <see cref="RunInput"/>. Unknown sections and
+/// keys are rejected with the valid ones listed; wrong types name the key, file and line.
+/// </summary>
+public static class DeckReader
+{
+    /// <summary>Sections and their keys.</summary>
+    public static IReadOnlyDictionary<string, string[]> Schema { get; } = new Dictionary<string, string[]>(StringComparer.Ordinal)
+    {
+        ["model"] = ["catalogue", "potential", "kinetic", "coupling", "palatini", "phi_end", "parameters"],
+        ["start"] = ["phi0", "dphi0"],
+        ["pivot"] = ["k", "efolds"],
+        ["reheating"] = ["w", "temperature_gev", "efolds", "dof"],
+        ["normalisation"] = ["a_s"],
+        ["modes"] = ["k_min", "k_max", "count", "tolerance"],
+        ["output"] = ["dir", "formats"],
+    };
+
+    private static readonly string[] TopLevelKeys = ["title"];
+
+    /// <summary>Reads the deck at <paramref name="path"/>.</summary>
+    /// <exception cref="DeckException">unreadable file, TOML syntax error, unknown key, wrong type.</exception>
+    public static RunInput Read(string path)
+    {
+        string text;
+        try
+        {
+            text = File.ReadAllText(path);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or ArgumentException or NotSupportedException)
+        {
+            throw new DeckException(DeckErrors.OneLine($"{path}: cannot read the deck: {e.Message}"), null, path);
+        }
+        var input = Parse(text, path);
+        input.DeckPath = path;
+        return input;
+    }
+
+    /// <summary>Parses deck text; <paramref name="sourceName"/> is used in messages.</summary>
+    public static RunInput Parse(string text, string sourceName)
+    {
+        var store = new TomlMetadataStore();
+        var options = new TomlSerializerOptions { SourceName = sourceName, MetadataStore = store, DuplicateKeyHandling = TomlDuplicateKeyHandling.Error };
+        TomlTable root;
+        try
+        {
+            root = TomlSerializer.Deserialize<TomlTable>(text, options) ?? new TomlTable();
+        }
+        catch (TomlException e)
+        {
+            int? line = e.Span is { } s ? s.Start.Line + 1 : null;
+            string msg = FirstLine(e.Message);
+            throw new DeckException(DeckErrors.OneLine(line is int l ? $"{sourceName}:{l}: TOML syntax error: {msg}" : $"{sourceName}: TOML syntax error: {msg}"), null, sourceName, line, e);
+        }
+        var reader = new Walker(sourceName, store);
+        var input = reader.Read(root);
+        input.DeckPath = sourceName;
+        return input;
+    }
+
+    private static string FirstLine(string s)
+    {
+        int i = s.IndexOf('\n');
+        return (i < 0 ? s : s[..i]).Trim();
+    }
+
+    private sealed class Walker(string file, TomlMetadataStore store)
+    {
+        private readonly RunInput _input = new();
+
+        public RunInput Read(TomlTable root)
+        {
+            foreach (var (key, value) in root)
+            {
+                if (Schema.ContainsKey(key))
+                {
+                    if (value is not TomlTable table) throw Error(root, key, key, "must be a table ([" + key + "])");
+                    ReadSection(key, table);
+                }
+                else if (key == "title")
+                {
+                    _input.Title = new Located<string>(String(root, key, key, value), key, file, LineOf(root, key));
+                }
+                else
+                {
+                    throw Error(root, key, key, $"is not a deck section or key (valid: {string.Join(", ", TopLevelKeys.Concat(Schema.Keys.Select(k => "[" + k + "]")))})");
+                }
+            }
+            return _input;
+        }
+
+        private void ReadSection(string section, TomlTable table)
+        {
+            string[] valid = Schema[section];
+            foreach (var (key, value) in table)
+            {
+                string full = section + "." + key;
+                if (!valid.Contains(key))
+                    throw Error(table, key, full, $"is not a key of [{section}] (valid: {string.Join(", ", valid)})");
+                int? line = LineOf(table, key);
+                switch (full)
+                {
+                    case "model.catalogue": _input.ModelId = new(String(table, key, full, value), full, file, line); break;
+                    case "model.potential": _input.Potential = new(String(table, key, full, value), full, file, line); break;
+                    case "model.kinetic": _input.Kinetic = new(String(table, key, full, value), full, file, line); break;
+                    case "model.coupling": _input.Coupling = new(String(table, key, full, value), full, file, line); break;
+                    case "model.palatini":
+                        if (value is not bool b) throw Error(table, key, full, $"must be true or false (got {Describe(value)})");
+                        _input.Palatini = new(b, full, file, line);
+                        break;
+                    case "model.phi_end": _input.PhiEnd = Number(table, key, full, value); break;
+                    case "model.parameters":
+                        if (value is not TomlTable pars) throw Error(table, key, full, "must be a table ([model.parameters])");
+                        foreach (var (name, pv) in pars)
+                            _input.Parameters[name] = Number(pars, name, full + "." + name, pv);
+                        break;
+                    case "start.phi0": _input.Phi0 = Number(table, key, full, value); break;
+                    case "start.dphi0": _input.DPhi0 = Number(table, key, full, value); break;
+                    case "pivot.k": _input.KPivot = Number(table, key, full, value); break;
+                    case "pivot.efolds": _input.Efolds = Number(table, key, full, value); break;
+                    case "reheating.w": _input.ReheatW = Number(table, key, full, value); break;
+                    case "reheating.temperature_gev": _input.ReheatTemperature = Number(table, key, full, value); break;
+                    case "reheating.efolds": _input.ReheatEfolds = Number(table, key, full, value); break;
+                    case "reheating.dof": _input.ReheatDof = Number(table, key, full, value); break;
+                    case "normalisation.a_s":
+                        if (value is string s && string.Equals(s.Trim(), "none", StringComparison.OrdinalIgnoreCase))
+                            _input.Amplitude = new(null, full, file, line);
+                        else
+                        {
+                            var n = Number(table, key, full, value, "a number or \"none\"");
+                            _input.Amplitude = new(n.Value, full, file, line);
+                        }
+                        break;
+                    case "modes.k_min": _input.KMin = Number(table, key, full, value); break;
+                    case "modes.k_max": _input.KMax = Number(table, key, full, value); break;
+                    case "modes.count":
+                        if (value is not long count) throw Error(table, key, full, $"must be a whole number (got {Describe(value)})");
+                        _input.KCount = new(count, full, file, line);
+                        break;
+                    case "modes.tolerance": _input.Tolerance = Number(table, key, full, value); break;
+                    case "output.dir": _input.OutDir = new(String(table, key, full, value), full, file, line); break;
+                    case "output.formats":
+                        if (value is not TomlArray arr) throw Error(table, key, full, $"must be an array of strings, e.g. [\"hdf5\", \"table\"] (got {Describe(value)})");
+                        var list = new List<string>();
+                        foreach (var item in arr)
+                        {
+                            if (item is not string f) throw Error(table, key, full, $"must be an array of strings (found {Describe(item)})");
+                            list.Add(f);
+                        }
+                        _input.Formats = new(list, full, file, line);
+                        break;
+                }
+            }
+        }
+
+        private Located<double> Number(TomlTable table, string key, string full, object? value, string expected = "a number")
+        {
+            double x = value switch
+            {
+                long l => l,
+                double d => d,
+                _ => throw Error(table, key, full, $"must be {expected} (got {Describe(value)})"),
+            };
+            return new Located<double>(x, full, file, LineOf(table, key));
+        }
+
+        private string String(TomlTable table, string key, string full, object? value) =>
+            value as string ?? throw Error(table, key, full, $"must be a string (got {Describe(value)})");
+
+        private DeckException Error(TomlTable table, string key, string full, string problem) =>
+            DeckErrors.At(full, file, LineOf(table, key), problem);
+
+        private int? LineOf(TomlTable table, string key)
+        {
+            if (store.TryGetProperties(table, out var props) && props is not null && props.TryGetProperty(key, out var meta) && meta?.Span is { } span)
+                return span.Start.Line + 1;
+            return null;
+        }
+
+        private static string Describe(object? value) => value switch
+        {
+            null => "nothing",
+            string s => $"the string \"{s}\"",
+            bool b => b ? "true" : "false",
+            long l => l.ToString(CultureInfo.InvariantCulture),
+            double d => d.ToString("R", CultureInfo.InvariantCulture),
+            TomlTable => "a table",
+            TomlArray => "an array",
+            _ => value.GetType().Name,
+        };
+    }
+}

@@ -1,0 +1,143 @@
+using System.Globalization;
+using ModeSolver.Physics;
+
+namespace ModeSolver.Decks;
+
+/// <summary>
+/// Everything one run needs, resolved from a deck and/or the command line and validated: a plain immutable tree.
+/// Units: reduced Planck for field values, 1/Mpc for wavenumbers, GeV for temperatures.
+/// </summary>
+/// <param name="Model">The theory to use.</param>
+/// <param name="Initial">Where the field starts.</param>
+/// <param name="Pivot">Pivot scale and how N_* is fixed (directly or from reheating).</param>
+/// <param name="Amplitude">Normalisation of the scalar spectrum at the pivot.</param>
+/// <param name="KRange">Wavenumbers to compute and the accuracy target.</param>
+/// <param name="Output">Where results go and in which formats.</param>
+public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, PivotSpec Pivot, AmplitudeSpec Amplitude, KRangeSpec KRange, OutputSpec Output)
+{
+    /// <summary>Free-text title from the deck (may be empty).</summary>
+    public string Title { get; init; } = "";
+
+    /// <summary>The deck file these settings came from, if any.</summary>
+    public string? DeckPath { get; init; }
+
+    /// <summary>Non-fatal remarks found while resolving (unused parameters, ...), one line each.</summary>
+    public IReadOnlyList<string> Warnings { get; init; } = [];
+
+    /// <summary>A one-paragraph human summary of the resolved settings.</summary>
+    public string Summary()
+    {
+        var c = CultureInfo.InvariantCulture;
+        var parts = new List<string>();
+        parts.Add($"Model: {Model.Describe()}.");
+        parts.Add(Initial.DPhi0 is double d
+            ? string.Create(c, $"Start at phi0 = {Initial.Phi0:G6} with dphi/dN = {d:G6}.")
+            : string.Create(c, $"Start at phi0 = {Initial.Phi0:G6} on the slow-roll attractor."));
+        if (Model.PhiEnd is double pe) parts.Add(string.Create(c, $"Inflation is ended abruptly at phi_end = {pe:G6}."));
+        parts.Add(Pivot.Describe());
+        parts.Add(Amplitude.ScalarAmplitude is double a
+            ? string.Create(c, $"Normalised to A_s = {a:G4} at the pivot.")
+            : "Not normalised (V used as given).");
+        parts.Add(string.Create(c, $"Modes: {KRange.Count} wavenumbers in [{KRange.KMin:G4}, {KRange.KMax:G4}]/Mpc, tolerance {KRange.Tolerance:G3}."));
+        parts.Add($"Output: {Output.Directory} ({string.Join(", ", Output.Formats)}).");
+        return string.Join(" ", parts);
+    }
+}
+
+/// <summary>
+/// The theory: a potential (Einstein-frame V, or Jordan-frame V_J when <see cref="Coupling"/> is set), optional kinetic
+/// function (K, or K_J in the Jordan frame), optional Omega^2 coupling with the Palatini flag, parameter values, and
+/// the resolved phi_end (catalogue default or given). Formula texts are already resolved from the catalogue.
+/// </summary>
+public sealed record ModelSpec(string? CatalogueId, string Potential, string? Kinetic, string? Coupling, bool Palatini,
+    IReadOnlyDictionary<string, double> Parameters, double? PhiEnd)
+{
+    /// <summary>True when the input is in the Jordan frame (a coupling is given).</summary>
+    public bool IsJordanFrame => Coupling is not null;
+
+    /// <summary>One-line description: catalogue id or formulas with parameter values.</summary>
+    public string Describe()
+    {
+        var c = CultureInfo.InvariantCulture;
+        string head = CatalogueId is null ? "" : CatalogueId + ", ";
+        string pot = IsJordanFrame ? $"V_J = {Potential}, Omega^2 = {Coupling}" : $"V = {Potential}";
+        if (Kinetic is not null) pot += IsJordanFrame ? $", K_J = {Kinetic}" : $", K = {Kinetic}";
+        if (IsJordanFrame) pot += Palatini ? " (Jordan frame, Palatini)" : " (Jordan frame, metric)";
+        string pars = Parameters.Count == 0 ? "" :
+            " with " + string.Join(", ", Parameters.OrderBy(p => p.Key, StringComparer.Ordinal).Select(p => string.Create(c, $"{p.Key} = {p.Value:G6}")));
+        return head + pot + pars;
+    }
+}
+
+/// <summary>Initial field value and, optionally, initial velocity d phi / dN (the slow-roll attractor when null).</summary>
+public sealed record InitialConditions(double Phi0, double? DPhi0);
+
+/// <summary>How reheating is specified.</summary>
+public enum ReheatingKind
+{
+    /// <summary>rho_reh = rho_end (the default).</summary>
+    Instantaneous,
+
+    /// <summary>A fluid of constant w until the temperature T_reh.</summary>
+    Temperature,
+
+    /// <summary>A fluid of constant w lasting N_reh e-folds.</summary>
+    Efolds,
+}
+
+/// <summary>Reheating history after inflation (physics.md section 5).</summary>
+/// <param name="Kind">Instantaneous, or a constant-w phase ending at a temperature or after a number of e-folds.</param>
+/// <param name="W">Equation of state during reheating, -1/3 &lt; w &lt;= 1 (unused when instantaneous).</param>
+/// <param name="TemperatureGeV">T_reh in GeV (Kind = Temperature).</param>
+/// <param name="Efolds">N_reh (Kind = Efolds).</param>
+/// <param name="Dof">g_reh = g_s,reh, relativistic degrees of freedom at reheating.</param>
+public sealed record ReheatingSpec(ReheatingKind Kind, double W, double? TemperatureGeV, double? Efolds, double Dof)
+{
+    /// <summary>Instantaneous reheating with the default g_reh.</summary>
+    public static ReheatingSpec Instantaneous { get; } = new(ReheatingKind.Instantaneous, 0.0, null, null, Constants.DefaultReheatingDof);
+}
+
+/// <summary>
+/// The pivot k_* and how N_* (e-folds before the end of inflation at which k_* = aH) is found: given directly
+/// (<see cref="Efolds"/>), else from <see cref="Reheating"/>.
+/// </summary>
+public sealed record PivotSpec(double KPivot, double? Efolds, ReheatingSpec Reheating)
+{
+    /// <summary>One sentence.</summary>
+    public string Describe()
+    {
+        var c = CultureInfo.InvariantCulture;
+        string head = string.Create(c, $"Pivot k_* = {KPivot:G4}/Mpc");
+        if (Efolds is double n) return string.Create(c, $"{head} at N_* = {n:G6} e-folds before the end.");
+        return Reheating.Kind switch
+        {
+            ReheatingKind.Temperature => string.Create(c, $"{head}, N_* from reheating with w = {Reheating.W:G4} to T_reh = {Reheating.TemperatureGeV:G4} GeV (g_reh = {Reheating.Dof:G5})."),
+            ReheatingKind.Efolds => string.Create(c, $"{head}, N_* from reheating with w = {Reheating.W:G4} lasting N_reh = {Reheating.Efolds:G4} (g_reh = {Reheating.Dof:G5})."),
+            _ => string.Create(c, $"{head}, N_* from instantaneous reheating (g_reh = {Reheating.Dof:G5})."),
+        };
+    }
+}
+
+/// <summary>Normalisation: the scalar amplitude A_s at the pivot, or null for none (V as given).</summary>
+public sealed record AmplitudeSpec(double? ScalarAmplitude)
+{
+    /// <summary>The default: A_s = 2.099e-9 (physics.md section 6).</summary>
+    public static AmplitudeSpec Default { get; } = new(Constants.DefaultScalarAmplitude);
+}
+
+/// <summary>Wavenumbers (1/Mpc, log-spaced from KMin to KMax, Count of them) and the relative accuracy target.</summary>
+public sealed record KRangeSpec(double KMin, double KMax, int Count, double Tolerance)
+{
+    /// <summary>Defaults: 1e-5 to 10 /Mpc, 120 wavenumbers, tolerance 1e-6.</summary>
+    public static KRangeSpec Default { get; } = new(1e-5, 10.0, 120, 1e-6);
+}
+
+/// <summary>Output directory and formats (a subset of <see cref="KnownFormats"/>).</summary>
+public sealed record OutputSpec(string Directory, IReadOnlyList<string> Formats)
+{
+    /// <summary>Format names accepted in decks and on the command line.</summary>
+    public static IReadOnlyList<string> KnownFormats { get; } = ["hdf5", "table", "json", "plots"];
+
+    /// <summary>Defaults: directory "modesolver-out", all formats.</summary>
+    public static OutputSpec Default { get; } = new("modesolver-out", KnownFormats);
+}

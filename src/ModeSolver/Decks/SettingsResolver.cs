@@ -1,0 +1,248 @@
+using ModeSolver.Formulas;
+using ModeSolver.Models;
+using ModeSolver.Physics;
+
+namespace ModeSolver.Decks;
+
+/// <summary>Turns <see cref="RunInput"/> (deck merged with command line) into validated <see cref="RunSettings"/>.</summary>
+public static class SettingsResolver
+{
+    /// <summary>Smallest accepted reheating temperature, GeV (a few MeV for nucleosynthesis, common practice).</summary>
+    public const double MinReheatingTemperatureGeV = 4e-3;
+
+    /// <summary>Reads, merges and resolves: the deck at <paramref name="deckPath"/> (if any) overridden by <paramref name="overrides"/>.</summary>
+    public static RunSettings Load(string? deckPath, RunInput? overrides = null)
+    {
+        var deck = deckPath is null ? new RunInput() : DeckReader.Read(deckPath);
+        return Resolve(overrides is null ? deck : RunInput.Merge(deck, overrides));
+    }
+
+    /// <summary>Validates and resolves. Throws <see cref="DeckException"/> with a one-line message naming the key.</summary>
+    public static RunSettings Resolve(RunInput input)
+    {
+        ArgumentNullException.ThrowIfNull(input);
+        var warnings = new List<string>();
+        string where = input.DeckPath ?? "command line";
+
+        // ---- model ----
+        ModelEntry? entry = null;
+        if (input.ModelId is { } id)
+        {
+            entry = ModelCatalogue.Find(id.Value.Trim()) ?? throw id.Error($"names no catalogue model '{id.Value}' (catalogue: {string.Join(", ", ModelCatalogue.Ids)})");
+            if (input.Potential is { } p) throw p.Error($"cannot be given together with {id.Key} = {entry.Id}; choose one model source");
+        }
+        else if (input.Potential is null)
+        {
+            throw new DeckException($"{where}: no model: give model.catalogue or model.potential in the deck, or --model or --potential", "model");
+        }
+
+        string potential = input.Potential?.Value ?? entry!.Potential;
+        string? kinetic = input.Kinetic?.Value ?? entry?.Kinetic;
+        string? coupling = input.Coupling?.Value ?? entry?.Coupling;
+        bool palatini = input.Palatini?.Value ?? entry?.Palatini ?? false;
+        if (input.Palatini is { Value: true } pal && coupling is null)
+            throw pal.Error("needs a coupling Omega^2 (model.coupling or --coupling): the Palatini formulation only applies to a Jordan-frame theory");
+        CheckText(input.Potential, "is empty");
+        CheckText(input.Kinetic, "is empty");
+        CheckText(input.Coupling, "is empty");
+
+        var pars = new Dictionary<string, double>(StringComparer.Ordinal);
+        if (entry is not null) foreach (var p in entry.Parameters) pars[p.Name] = p.Default;
+        foreach (var (name, v) in input.Parameters)
+        {
+            if (!double.IsFinite(v.Value)) throw v.Error($"must be finite (got {v.Value})");
+            pars[name] = v.Value;
+        }
+
+        // Every formula must parse with these parameters; report the key whose formula fails.
+        var formulas = new List<(string Text, Located<string>? Source, string Role)>
+        {
+            (potential, input.Potential, "potential"),
+        };
+        if (kinetic is not null) formulas.Add((kinetic, input.Kinetic, "kinetic"));
+        if (coupling is not null) formulas.Add((coupling, input.Coupling, "coupling"));
+        var referenced = new HashSet<string>(StringComparer.Ordinal);
+        foreach (var (text, source, role) in formulas)
+        {
+            try
+            {
+                _ = Formula.Parse(text, pars);
+                foreach (string nm in Formula.ReferencedNames(text)) referenced.Add(nm);
+            }
+            catch (FormulaException e)
+            {
+                if (source is { } s) throw s.Error($"is not a valid formula: {e.Message}");
+                throw input.ModelId!.Value.Error($"has a {role} formula that does not work with these parameters: {e.Message}");
+            }
+        }
+        foreach (var (name, v) in input.Parameters)
+            if (!referenced.Contains(name))
+                warnings.Add($"{Where(v)}{v.Key} is not used by the model's formulas");
+
+        double? phiEnd = input.PhiEnd?.Value ?? entry?.PhiEnd;
+        if (input.PhiEnd is { } pe && !double.IsFinite(pe.Value)) throw pe.Error($"must be finite (got {pe.Value})");
+        var model = new ModelSpec(entry?.Id, potential, kinetic, coupling, palatini, pars, phiEnd);
+
+        // ---- start ----
+        double phi0;
+        if (input.Phi0 is { } ph)
+        {
+            if (!double.IsFinite(ph.Value)) throw ph.Error($"must be finite (got {ph.Value})");
+            phi0 = ph.Value;
+        }
+        else if (entry is not null) phi0 = entry.DefaultPhi0;
+        else throw new DeckException($"{where}: start.phi0 (or --phi0) is required when the model is given by formulas", "start.phi0");
+        if (input.DPhi0 is { } dp && !double.IsFinite(dp.Value)) throw dp.Error($"must be finite (got {dp.Value})");
+        var initial = new InitialConditions(phi0, input.DPhi0?.Value);
+
+        // ---- pivot and reheating ----
+        double kPivot = Positive(input.KPivot) ?? Constants.DefaultPivotK;
+        double? efolds = null;
+        if (input.Efolds is { } ef)
+        {
+            if (!(ef.Value > 0 && ef.Value < 1000)) throw ef.Error($"must be a number of e-folds between 0 and 1000 (got {ef.Value})");
+            efolds = ef.Value;
+            var clash = input.ReheatTemperature ?? input.ReheatEfolds ?? input.ReheatW;
+            if (clash is { } c) throw c.Error($"cannot be combined with {ef.Key}: N_* is either given or computed from reheating");
+        }
+        double dof = Positive(input.ReheatDof) ?? Constants.DefaultReheatingDof;
+        ReheatingSpec reheating;
+        if (input.ReheatTemperature is { } t && input.ReheatEfolds is { } n)
+            throw n.Error($"cannot be combined with {t.Key}: give the reheating temperature or its duration, not both");
+        double w = 0.0;
+        if (input.ReheatW is { } ww)
+        {
+            if (!(ww.Value > -1.0 / 3.0 && ww.Value <= 1.0)) throw ww.Error($"must satisfy -1/3 < w <= 1 (got {ww.Value})");
+            w = ww.Value;
+        }
+        if (input.ReheatTemperature is { } temp)
+        {
+            if (!(temp.Value >= MinReheatingTemperatureGeV) || !double.IsFinite(temp.Value))
+                throw temp.Error($"must be at least {MinReheatingTemperatureGeV} GeV (nucleosynthesis) and finite (got {temp.Value})");
+            reheating = new ReheatingSpec(ReheatingKind.Temperature, w, temp.Value, null, dof);
+        }
+        else if (input.ReheatEfolds is { } nr)
+        {
+            if (!(nr.Value >= 0 && nr.Value < 200)) throw nr.Error($"must be a number of e-folds between 0 and 200 (got {nr.Value})");
+            reheating = new ReheatingSpec(ReheatingKind.Efolds, w, null, nr.Value, dof);
+        }
+        else
+        {
+            if (input.ReheatW is { } lone)
+                throw lone.Error("needs the end of reheating too: a temperature (reheating.temperature_gev or --reheat-T) or a duration (reheating.efolds)");
+            reheating = ReheatingSpec.Instantaneous with { Dof = dof };
+        }
+        var pivot = new PivotSpec(kPivot, efolds, reheating);
+
+        // ---- amplitude ----
+        AmplitudeSpec amplitude = AmplitudeSpec.Default;
+        if (input.Amplitude is { } a)
+        {
+            if (a.Value is double av && !(av > 0 && av < 1)) throw a.Error($"must be a positive number below 1, or \"none\" (got {av})");
+            amplitude = new AmplitudeSpec(a.Value);
+        }
+
+        // ---- k range ----
+        var kd = KRangeSpec.Default;
+        double kMin = Positive(input.KMin) ?? kd.KMin;
+        double kMax = Positive(input.KMax) ?? kd.KMax;
+        long count = kd.Count;
+        if (input.KCount is { } kc)
+        {
+            if (kc.Value < 1 || kc.Value > 1_000_000) throw kc.Error($"must be a whole number from 1 to 1000000 (got {kc.Value})");
+            count = kc.Value;
+        }
+        if (kMin > kMax)
+        {
+            var blame = input.KMin ?? input.KMax!.Value;
+            throw blame.Error($"gives k_min = {kMin} above k_max = {kMax}");
+        }
+        if (count == 1 && kMin != kMax)
+            throw (input.KCount!.Value).Error($"= 1 needs k_min = k_max (got {kMin} and {kMax})");
+        if (count > 1 && kMin == kMax)
+            throw (input.KMin ?? input.KMax ?? input.KCount!.Value.WithKey()).Error($"gives k_min = k_max = {kMin} with {count} wavenumbers");
+        double tol = kd.Tolerance;
+        if (input.Tolerance is { } tt)
+        {
+            if (!(tt.Value > 0 && tt.Value <= 0.1)) throw tt.Error($"must lie in (0, 0.1] (got {tt.Value})");
+            tol = tt.Value;
+        }
+        var kRange = new KRangeSpec(kMin, kMax, (int)count, tol);
+
+        // ---- output ----
+        string dir = OutputSpec.Default.Directory;
+        if (input.OutDir is { } od)
+        {
+            if (string.IsNullOrWhiteSpace(od.Value)) throw od.Error("is empty");
+            if (od.Value.IndexOfAny(Path.GetInvalidPathChars()) >= 0) throw od.Error($"is not a valid path (\"{od.Value}\")");
+            dir = od.Value;
+        }
+        IReadOnlyList<string> formats = OutputSpec.Default.Formats;
+        if (input.Formats is { } fm)
+        {
+            var list = new List<string>();
+            foreach (string f in fm.Value)
+            {
+                string norm = f.Trim().ToLowerInvariant();
+                if (!OutputSpec.KnownFormats.Contains(norm))
+                    throw fm.Error($"has an unknown format '{f}' (valid: {string.Join(", ", OutputSpec.KnownFormats)})");
+                if (!list.Contains(norm)) list.Add(norm);
+            }
+            if (list.Count == 0) throw fm.Error($"is empty (valid: {string.Join(", ", OutputSpec.KnownFormats)})");
+            formats = list;
+        }
+        var output = new OutputSpec(dir, formats);
+
+        var settings = new RunSettings(model, initial, pivot, amplitude, kRange, output)
+        {
+            Title = input.Title?.Value ?? "",
+            DeckPath = input.DeckPath,
+            Warnings = warnings,
+        };
+        CheckTheory(settings, input, entry);
+        return settings;
+    }
+
+    /// <summary>The theory must be valid at phi0 with V &gt; 0 there, and phi_end must lie ahead in the roll direction.</summary>
+    private static void CheckTheory(RunSettings settings, RunInput input, ModelEntry? entry)
+    {
+        var phi0Key = input.Phi0 ?? new Located<double>(settings.Initial.Phi0, entry is null ? "start.phi0" : $"start.phi0 (catalogue default for {entry.Id})");
+        IValidatedTheory theory;
+        try
+        {
+            theory = TheoryFactory.Build(settings.Model);
+        }
+        catch (FormulaException e)
+        {
+            throw new DeckException(DeckErrors.OneLine($"model: {e.Message}"), "model");
+        }
+        if (theory.InvalidReason(settings.Initial.Phi0) is { } reason)
+            throw phi0Key.Error($"= {settings.Initial.Phi0:G6} is outside the theory's valid region: {reason} there");
+        var v = theory.Potential(settings.Initial.Phi0);
+        if (!(v.Value > 0)) throw phi0Key.Error($"= {settings.Initial.Phi0:G6} gives V = {v.Value:G6}; inflation needs V > 0");
+        if (settings.Model.PhiEnd is double end)
+        {
+            double dir = -Math.Sign(v.D1);
+            var endKey = input.PhiEnd ?? new Located<double>(end, $"model.phi_end (catalogue default for {entry?.Id})");
+            if (dir == 0 && settings.Initial.DPhi0 is double d0) dir = Math.Sign(d0);
+            if (dir != 0 && (end - settings.Initial.Phi0) * dir <= 0)
+                throw endKey.Error($"= {end:G6} is not ahead of phi0 = {settings.Initial.Phi0:G6} in the roll direction (the field {(dir > 0 ? "increases" : "decreases")})");
+        }
+    }
+
+    private static Located<double> WithKey(this Located<long> v) => new(v.Value, v.Key, v.File, v.Line);
+
+    private static void CheckText(Located<string>? s, string problem)
+    {
+        if (s is { } v && string.IsNullOrWhiteSpace(v.Value)) throw v.Error(problem);
+    }
+
+    private static double? Positive(Located<double>? v)
+    {
+        if (v is not { } x) return null;
+        if (!(x.Value > 0) || !double.IsFinite(x.Value)) throw x.Error($"must be a positive number (got {x.Value})");
+        return x.Value;
+    }
+
+    private static string Where<T>(Located<T> v) => v.File is null ? "" : v.Line is int l ? $"{v.File}:{l}: " : $"{v.File}: ";
+}

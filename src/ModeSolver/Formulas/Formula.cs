@@ -1,0 +1,254 @@
+using System.Buffers;
+using System.Runtime.CompilerServices;
+using ModeSolver.Models;
+
+namespace ModeSolver.Formulas;
+
+/// <summary>
+/// A formula in one variable (default <c>phi</c>) and named parameters, e.g. <c>V0*tanh(phi/sqrt(6*alpha))^2</c>,
+/// parsed by our own recursive-descent parser and compiled once into a flat register program. Values and exact
+/// derivatives of any order come from truncated Taylor arithmetic (automatic differentiation), never from finite
+/// differences. Evaluation allocates nothing and is thread-safe: any number of threads may evaluate one instance.
+/// </summary>
+/// <remarks>
+/// Language: numbers (1, 1.5, .5, 1e-10, 2.5E+3); + - * / ^ (^ is right-associative and binds tighter than unary minus,
+/// so -phi^2 = -(phi^2)); parentheses; exp, log (natural; also ln), log10, sqrt, sin, cos, tan, sinh, cosh, tanh, asin, acos,
+/// atan, asinh, acosh, atanh, abs, min(a,b), max(a,b), step(x) (0 for x &lt; 0, 1 for x &gt;= 0),
+/// piecewise(cond1, value1, ..., otherwise) with conditions a &lt; b, a &lt;= b, a &gt; b, a &gt;= b; constants pi and e.
+/// At a switch point (abs at 0, min/max at a tie) derivatives are the right-hand ones (phi approaching from above).
+/// </remarks>
+public sealed class Formula : IFieldFunction
+{
+    /// <summary>Highest derivative order <see cref="EvaluateDerivatives"/> accepts.</summary>
+    public const int MaxOrder = 30;
+
+    /// <summary>Default half-width of the range scanned for non-linear switching arguments by <see cref="NonSmoothPoints"/>.</summary>
+    public const double DefaultScanRange = 1e3;
+
+    private const int StackDoubles = 2048;
+    private static readonly double[] Factorials = BuildFactorials();
+
+    private readonly Node _root;
+    private readonly CompiledProgram _program;
+    private readonly List<SwitchFunction> _switches;
+    private readonly Lazy<IReadOnlyList<double>> _nonSmooth;
+
+    private Formula(string text, string variable, Node root, CompiledProgram program,
+        IReadOnlyDictionary<string, double> parameters, IReadOnlyList<string> unused, List<SwitchFunction> switches)
+    {
+        Text = text;
+        Variable = variable;
+        _root = root;
+        _program = program;
+        Parameters = parameters;
+        UnusedParameters = unused;
+        _switches = switches;
+        _nonSmooth = new Lazy<IReadOnlyList<double>>(
+            () => NonSmoothPointsIn(-DefaultScanRange, DefaultScanRange, includeAllLinear: true).AsReadOnly(),
+            LazyThreadSafetyMode.ExecutionAndPublication);
+    }
+
+    /// <summary>The source text.</summary>
+    public string Text { get; }
+
+    /// <summary>The name of the variable (default <c>phi</c>).</summary>
+    public string Variable { get; }
+
+    /// <summary>The parameters the formula was parsed with (a copy).</summary>
+    public IReadOnlyDictionary<string, double> Parameters { get; }
+
+    /// <summary>Parameters given but not used by the formula, sorted by name (the caller warns).</summary>
+    public IReadOnlyList<string> UnusedParameters { get; }
+
+    /// <summary>
+    /// Field values where abs, min, max, step or a piecewise condition switches, sorted and unique.
+    /// Switching arguments linear in the variable are solved exactly wherever the root lies; others are
+    /// scanned over [-<see cref="DefaultScanRange"/>, <see cref="DefaultScanRange"/>] (see <see cref="NonSmoothPointsIn(double, double)"/>).
+    /// </summary>
+    /// <remarks>Computed on first use (a scan costs a few milliseconds per non-linear switch), then cached.</remarks>
+    public IReadOnlyList<double> NonSmoothPoints => _nonSmooth.Value;
+
+    /// <summary>Number of instructions of the compiled program (after constant folding).</summary>
+    public int InstructionCount => _program.Code.Length;
+
+    /// <summary>
+    /// Parses <paramref name="text"/> in <paramref name="variable"/> and the named <paramref name="parameters"/>.
+    /// Throws <see cref="FormulaException"/> on any error (syntax, unknown or missing names, bad parameter names,
+    /// constant parts that are not finite, text longer than 10,000 characters or nested deeper than 200 levels).
+    /// </summary>
+    public static Formula Parse(string text, IReadOnlyDictionary<string, double>? parameters = null, string variable = "phi")
+    {
+        ArgumentNullException.ThrowIfNull(text);
+        ArgumentNullException.ThrowIfNull(variable);
+        if (!Builtins.IsIdentifier(variable) || Builtins.IsReserved(variable))
+            throw new FormulaException(text, 0, "a variable name",
+                $"formula error: '{variable}' cannot be the variable name (it must be a name that is not a function or constant)");
+        var copy = new SortedDictionary<string, double>(StringComparer.Ordinal);
+        if (parameters != null)
+        {
+            foreach (var (name, value) in parameters)
+            {
+                if (!Builtins.IsIdentifier(name))
+                    throw new FormulaException(text, 0, "a parameter name", $"formula error: parameter name '{name}' is not a valid name (letters, digits, '_', not starting with a digit)");
+                if (name == variable)
+                    throw new FormulaException(text, 0, "a parameter name", $"formula error: parameter '{name}' has the same name as the variable");
+                if (Builtins.IsReserved(name))
+                    throw new FormulaException(text, 0, "a parameter name", $"formula error: parameter '{name}' has the name of a built-in function or constant");
+                if (!double.IsFinite(value))
+                    throw new FormulaException(text, 0, "a finite value", $"formula error: parameter '{name}' is not a finite number ({value})");
+                copy[name] = value;
+            }
+        }
+        var (root, names) = Parser.ParseTree(text, variable, copy);
+        var missing = names.Where(n => !copy.ContainsKey(n.Name)).ToList();
+        if (missing.Count > 0)
+        {
+            string list = string.Join(", ", missing.Select(m => $"'{m.Name}'"));
+            string known = $"{variable}, pi, e";
+            string message = copy.Count == 0
+                ? $"formula error at column {missing[0].Column}: missing parameter{(missing.Count == 1 ? "" : "s")} {list} in formula (known: {known}; no parameters given)"
+                : $"formula error at column {missing[0].Column}: unknown name(s) {list} in formula (known: {known}, and parameters {string.Join(", ", copy.Keys)})";
+            throw new FormulaException(text, missing[0].Column, "a known name", message);
+        }
+        var used = new HashSet<string>(names.Select(n => n.Name), StringComparer.Ordinal);
+        var unused = copy.Keys.Where(k => !used.Contains(k)).ToArray();
+        var program = Compiler.Compile(root, text);
+        var switches = SwitchFunction.Collect(root, text);
+        return new Formula(text, variable, root, program, copy, unused, switches);
+    }
+
+    /// <summary>
+    /// Names used in <paramref name="text"/> other than the variable, the constants pi and e and function names,
+    /// in order of first use (for "missing parameter" lists). Throws <see cref="FormulaException"/> on a syntax error.
+    /// </summary>
+    public static IReadOnlyList<string> ReferencedNames(string text) => ReferencedNames(text, "phi");
+
+    /// <summary>As <see cref="ReferencedNames(string)"/> with another variable name.</summary>
+    public static IReadOnlyList<string> ReferencedNames(string text, string variable)
+    {
+        ArgumentNullException.ThrowIfNull(text);
+        return Parser.CollectNames(text, variable).Select(n => n.Name).ToArray();
+    }
+
+    /// <summary>f(phi), value only (fast path).</summary>
+    [SkipLocalsInit]
+    public unsafe double Value(double phi)
+    {
+        int count = _program.RegisterCount;
+        if (count > StackDoubles) return ValueRented(phi);
+        double* r = stackalloc double[count];
+        return _program.RunValue(phi, r);
+    }
+
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private unsafe double ValueRented(double phi)
+    {
+        var rented = ArrayPool<double>.Shared.Rent(_program.RegisterCount);
+        try
+        {
+            fixed (double* r = rented) return _program.RunValue(phi, r);
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(rented);
+        }
+    }
+
+    /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding (an unrolled third-order path).</summary>
+    [SkipLocalsInit]
+    public unsafe Jet3 Evaluate(double phi)
+    {
+        int count = _program.RegisterCount * 4;
+        if (count > StackDoubles) return EvaluateRented(phi);
+        double* s = stackalloc double[count];
+        return Jet3Evaluator.Run(_program, phi, s);
+    }
+
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private unsafe Jet3 EvaluateRented(double phi)
+    {
+        var rented = ArrayPool<double>.Shared.Rent(_program.RegisterCount * 4);
+        try
+        {
+            fixed (double* s = rented) return Jet3Evaluator.Run(_program, phi, s);
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(rented);
+        }
+    }
+
+    /// <summary>
+    /// d[k] = k-th derivative at <paramref name="phi"/> for k = 0 .. d.Length-1 (up to <see cref="MaxOrder"/>), exact up to rounding.
+    /// </summary>
+    [SkipLocalsInit]
+    public unsafe void EvaluateDerivatives(double phi, Span<double> d)
+    {
+        if (d.Length == 0) return;
+        int n = d.Length - 1;
+        if (n > MaxOrder) throw new ArgumentException($"derivative order {n} exceeds the maximum {MaxOrder}", nameof(d));
+        if (n == 0) { d[0] = Value(phi); return; }
+        int count = _program.RegisterCount * (n + 1);
+        if (count <= StackDoubles)
+        {
+            double* s = stackalloc double[count];
+            Copy(_program.RunSeries(phi, n, s), d);
+            return;
+        }
+        var rented = ArrayPool<double>.Shared.Rent(count);
+        try
+        {
+            fixed (double* s = rented) Copy(_program.RunSeries(phi, n, s), d);
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(rented);
+        }
+    }
+
+    private static unsafe void Copy(double* c, Span<double> d)
+    {
+        for (int k = 0; k < d.Length; k++) d[k] = c[k] * Factorials[k];
+    }
+
+    /// <summary>
+    /// Switch points inside [<paramref name="min"/>, <paramref name="max"/>]: exact roots of linear switching arguments,
+    /// and sign changes of the others found on a grid over the range (uniform plus geometric toward zero), refined by
+    /// safeguarded Newton with exact derivatives. Sorted and unique.
+    /// </summary>
+    public IReadOnlyList<double> NonSmoothPointsIn(double min, double max) => NonSmoothPointsIn(min, max, includeAllLinear: false);
+
+    private List<double> NonSmoothPointsIn(double min, double max, bool includeAllLinear)
+    {
+        if (!(min < max) || !double.IsFinite(min) || !double.IsFinite(max))
+            throw new ArgumentException($"scan range [{min}, {max}] must be finite with min < max");
+        var roots = new List<double>();
+        foreach (var s in _switches)
+        {
+            if (s.IsLinear && includeAllLinear)
+            {
+                if (double.IsFinite(s.LinearRoot)) roots.Add(s.LinearRoot);
+            }
+            else s.AddRoots(min, max, roots);
+        }
+        roots.Sort();
+        var unique = new List<double>(roots.Count);
+        foreach (double x in roots)
+            if (unique.Count == 0 || Math.Abs(x - unique[^1]) > 1e-13 * Math.Max(1, Math.Abs(x))) unique.Add(x);
+        return unique;
+    }
+
+    /// <summary>Canonical text (parameters by name) that parses back, with the same parameters, to the same function.</summary>
+    public override string ToString() => Printer.Print(_root, inlineParameters: false);
+
+    /// <summary>Canonical text; with <paramref name="inlineParameters"/> the parameter values are written as numbers (round-trip exact).</summary>
+    public string ToString(bool inlineParameters) => Printer.Print(_root, inlineParameters);
+
+    private static double[] BuildFactorials()
+    {
+        var f = new double[MaxOrder + 1];
+        f[0] = 1;
+        for (int k = 1; k <= MaxOrder; k++) f[k] = f[k - 1] * k;
+        return f;
+    }
+}

@@ -1,0 +1,119 @@
+namespace ModeSolver.Models;
+
+/// <summary>
+/// A Jordan-frame theory S = int sqrt(-g_J) [Omega^2 R_J/2 - K_J (d phi)^2/2 - V_J], mapped to the Einstein frame
+/// (physics.md section 1): V = V_J / Omega^4 and K = K_J / Omega^2 + (3/2) [(Omega^2)_phi / Omega^2]^2 (metric) or
+/// K = K_J / Omega^2 (Palatini). Derivatives up to third order are exact: they come from truncated Taylor-jet
+/// arithmetic on the derivative arrays of the inputs (K''' needs (Omega^2)'''').
+/// </summary>
+public sealed class JordanFrameTheory : IValidatedTheory
+{
+    private readonly IDerivativeFunction _omega2;
+    private readonly IDerivativeFunction? _kineticJ;
+    private readonly IDerivativeFunction _potentialJ;
+    private readonly double[] _nonSmooth;
+
+    /// <summary>Creates the theory.</summary>
+    /// <param name="omegaSquared">Omega^2(phi); needs four derivatives in the metric formulation.</param>
+    /// <param name="kineticJ">K_J(phi), or null for 1.</param>
+    /// <param name="potentialJ">V_J(phi).</param>
+    /// <param name="palatini">True for the Palatini formulation, false (default) for metric.</param>
+    /// <param name="description">One-line description.</param>
+    /// <param name="validRange">Declared valid range; infinite when null (see <see cref="FindValidInterval"/>).</param>
+    public JordanFrameTheory(IDerivativeFunction omegaSquared, IDerivativeFunction? kineticJ, IDerivativeFunction potentialJ,
+        bool palatini = false, string description = "", (double, double)? validRange = null)
+    {
+        ArgumentNullException.ThrowIfNull(omegaSquared);
+        ArgumentNullException.ThrowIfNull(potentialJ);
+        if (!palatini && omegaSquared.MaxOrder < 4)
+            throw new ArgumentException("the metric formulation needs four derivatives of Omega^2", nameof(omegaSquared));
+        _omega2 = omegaSquared;
+        _kineticJ = kineticJ;
+        _potentialJ = potentialJ;
+        IsPalatini = palatini;
+        Description = description ?? "";
+        ValidRange = validRange ?? (double.NegativeInfinity, double.PositiveInfinity);
+        if (!(ValidRange.Min < ValidRange.Max)) throw new ArgumentException("the valid range must have Min < Max", nameof(validRange));
+        _nonSmooth = EinsteinFrameTheory.MergeSorted(omegaSquared.NonSmoothPoints, kineticJ?.NonSmoothPoints, potentialJ.NonSmoothPoints);
+    }
+
+    /// <inheritdoc/>
+    public string Description { get; }
+
+    /// <summary>True in the Palatini formulation.</summary>
+    public bool IsPalatini { get; }
+
+    /// <inheritdoc/>
+    public bool IsCanonical => false;
+
+    /// <inheritdoc/>
+    public IReadOnlyList<double> NonSmoothPoints => _nonSmooth;
+
+    /// <inheritdoc/>
+    public (double Min, double Max) ValidRange { get; }
+
+    /// <summary>The same theory with another declared valid range.</summary>
+    public JordanFrameTheory WithValidRange((double, double) range) =>
+        new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, range);
+
+    /// <summary>Omega^2 at phi.</summary>
+    public double OmegaSquared(double phi)
+    {
+        Span<double> d = stackalloc double[1];
+        _omega2.EvaluateDerivatives(phi, d);
+        return d[0];
+    }
+
+    /// <inheritdoc/>
+    public Jet3 Potential(double phi)
+    {
+        Span<double> d = stackalloc double[4];
+        _omega2.EvaluateDerivatives(phi, d);
+        var w = TaylorJet.FromDerivatives(d);
+        _potentialJ.EvaluateDerivatives(phi, d);
+        var vj = TaylorJet.FromDerivatives(d);
+        var w2 = TaylorJet.Square(w);
+        return (vj / w2).ToJet3();
+    }
+
+    /// <inheritdoc/>
+    public Jet3 Kinetic(double phi)
+    {
+        Span<double> d = stackalloc double[5];
+        TaylorJet kj;
+        if (_kineticJ is null) kj = TaylorJet.Constant(1.0);
+        else
+        {
+            _kineticJ.EvaluateDerivatives(phi, d[..4]);
+            kj = TaylorJet.FromDerivatives(d[..4]);
+        }
+        if (IsPalatini)
+        {
+            _omega2.EvaluateDerivatives(phi, d[..4]);
+            var wp = TaylorJet.FromDerivatives(d[..4]);
+            return (kj / wp).ToJet3();
+        }
+        _omega2.EvaluateDerivatives(phi, d);
+        var w = TaylorJet.FromDerivatives(d);
+        var w1 = TaylorJet.DerivativeFromDerivatives(d); // (Omega^2)' with three exact orders
+        var ratio = w1 / w;
+        var k = kj / w + 1.5 * TaylorJet.Square(ratio);
+        return k.ToJet3();
+    }
+
+    /// <inheritdoc/>
+    public string? InvalidReason(double phi)
+    {
+        double w = OmegaSquared(phi);
+        if (double.IsNaN(w) || w <= 0) return "Omega^2 <= 0";
+        if (!double.IsFinite(w)) return "Omega^2 is not finite";
+        return TheoryValidity.KineticAndPotentialReason(this, phi);
+    }
+
+    /// <inheritdoc/>
+    public void ValidateRange(double phiFrom, double phiTo) => TheoryValidity.ValidateRange(this, phiFrom, phiTo, "Jordan-frame theory");
+
+    /// <inheritdoc/>
+    public (double Min, double Max) FindValidInterval(double phiInside, double searchLimit = 1e3) =>
+        TheoryValidity.FindValidInterval(this, phiInside, searchLimit);
+}
