@@ -1,6 +1,6 @@
 using System.CommandLine;
 using System.Globalization;
-using ModeSolver.Parallel;
+using ModeSolver.Cluster;
 
 namespace ModeSolver.Cli.Commands;
 

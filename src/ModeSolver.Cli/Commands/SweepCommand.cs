@@ -1,5 +1,5 @@
 using System.CommandLine;
-using ModeSolver.Parallel;
+using ModeSolver.Cluster;
 using ModeSolver.Sweeps;
 using Spectre.Console;
 

@@ -1,6 +1,6 @@
 using System.Collections.Concurrent;
 using System.Diagnostics;
-using ModeSolver.Parallel;
+using ModeSolver.Cluster;
 
 namespace ModeSolver.Sweeps;
 

@@ -1,4 +1,4 @@
-using ModeSolver.Parallel;
+using ModeSolver.Cluster;
 using ModeSolver.Sweeps;
 
 namespace ModeSolver.Tests.Sweeps;

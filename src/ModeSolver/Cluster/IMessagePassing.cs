@@ -1,6 +1,6 @@
 using System.Text;
 
-namespace ModeSolver.Parallel;
+namespace ModeSolver.Cluster;
 
 /// <summary>
 /// The few collective operations the sweeps need, over MPI or (serially) over one process. Every rank must call the

@@ -1,6 +1,6 @@
 using System.Runtime.InteropServices;
 
-namespace ModeSolver.Parallel;
+namespace ModeSolver.Cluster;
 
 /// <summary>MPI could not be started or an MPI call failed. The message is one line.</summary>
 public sealed class MessagePassingException : Exception
