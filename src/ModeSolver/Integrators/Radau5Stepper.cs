@@ -57,6 +57,12 @@ internal sealed class Radau5Stepper : Stepper
     /// <summary>Estimate of the spectral radius of the last Jacobian (power iteration), for the switch back to explicit.</summary>
     public double SpectralRadius { get; private set; }
 
+    /// <summary>Accepted steps since the Jacobian was last evaluated.</summary>
+    public int JacobianAge { get; private set; }
+
+    /// <summary>Asks for a fresh Jacobian (hence a fresh <see cref="SpectralRadius"/>) before the next step.</summary>
+    public void RequestJacobian() => _needJac = true;
+
     /// <summary>Newton iterations of the last accepted step.</summary>
     public int LastNewtonIterations { get; private set; }
 
@@ -114,6 +120,7 @@ internal sealed class Radau5Stepper : Stepper
             }
         }
         Counters.Jacobians++;
+        JacobianAge = 0;
         _jacFresh = true;
         _needJac = false;
         _decompH = double.NaN;
@@ -394,6 +401,7 @@ internal sealed class Radau5Stepper : Stepper
         int n = N;
         _first = false;
         _accepted++;
+        JacobianAge++;
         Counters.Accepted++;
         LastNewtonIterations = newt;
         TOld = T;

@@ -5,12 +5,13 @@ namespace ModeSolver.Tests.Integrators;
 /// <summary>Event location on problems whose crossing times are known exactly; run for every method.</summary>
 public class EventTests
 {
-    public static TheoryData<string> Methods => new() { "DOP853", "RadauIIA5" };
+    public static TheoryData<string> Methods => new() { "DOP853", "RadauIIA5", "AutoSwitching" };
 
     internal static IOdeMethod Create(string name) => name switch
     {
         "DOP853" => new DormandPrince853(),
         "RadauIIA5" => new RadauIIA5(),
+        "AutoSwitching" => new AutoSwitching(),
         _ => throw new ArgumentException(name),
     };
 
