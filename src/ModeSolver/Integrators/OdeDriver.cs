@@ -30,6 +30,7 @@ internal static class OdeDriver
         ArgumentNullException.ThrowIfNull(options);
         if (problem.Rhs is null) throw new ArgumentException($"{method}: the problem has no right-hand side.", nameof(problem));
         if (problem.Y0 is null) throw new ArgumentException($"{method}: the problem has no initial state Y0.", nameof(problem));
+        if (problem.Y0.Length == 0) throw new ArgumentException($"{method}: the initial state Y0 has no components.", nameof(problem));
         if (!double.IsFinite(problem.T0)) throw new ArgumentException($"{method}: T0 = {problem.T0} is not finite.", nameof(problem));
         if (!double.IsFinite(problem.TEnd)) throw new ArgumentException($"{method}: TEnd = {problem.TEnd} is not finite.", nameof(problem));
         for (int i = 0; i < problem.Y0.Length; i++)

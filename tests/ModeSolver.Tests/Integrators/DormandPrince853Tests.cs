@@ -47,9 +47,10 @@ public class DormandPrince853Tests
         double posErr = Math.Max(Math.Abs(y[0] - y0[0]), Math.Abs(y[1] - y0[1]));
         double velErr = Math.Max(Math.Abs(y[2] - y0[2]), Math.Abs(y[3] - y0[3]));
         Assert.Equal(OdeStatus.Completed, sol.Status);
-        Assert.True(posErr < 1e-8, $"position error {posErr:E3}");
-        Assert.True(velErr < 1e-6, $"velocity error {velErr:E3}");
-        Assert.InRange(sol.Statistics.AcceptedSteps, 100, 1000);
+        // observed: position 5.5e-12, velocity 9.4e-10, 312 accepted and 23 rejected steps
+        Assert.True(posErr < 1e-10, $"position error {posErr:E3}");
+        Assert.True(velErr < 1e-8, $"velocity error {velErr:E3}");
+        Assert.InRange(sol.Statistics.AcceptedSteps, 100, 600);
     }
 
     [Fact]
