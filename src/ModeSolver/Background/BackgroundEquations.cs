@@ -12,9 +12,13 @@ namespace ModeSolver.Background;
 internal static class BackgroundEquations
 {
     /// <summary>Right-hand side with state (phi, phi').</summary>
-    public static void Constrained(IInflatonTheory theory, ReadOnlySpan<double> y, Span<double> dydt)
+    /// <param name="theory">The theory.</param>
+    /// <param name="phiEval">Field value at which V and K are evaluated (y[0], or the side of a kink the field moves to).</param>
+    /// <param name="y">State.</param>
+    /// <param name="dydt">Derivative.</param>
+    public static void Constrained(IInflatonTheory theory, double phiEval, ReadOnlySpan<double> y, Span<double> dydt)
     {
-        double phi = y[0], p = y[1];
+        double phi = phiEval, p = y[1];
         Jet3 v = theory.Potential(phi);
         Jet3 k = theory.Kinetic(phi);
         double e1 = 0.5 * k.Value * p * p;
@@ -24,9 +28,9 @@ internal static class BackgroundEquations
     }
 
     /// <summary>Right-hand side with state (phi, phi', ln H).</summary>
-    public static void Regular(IInflatonTheory theory, ReadOnlySpan<double> y, Span<double> dydt)
+    public static void Regular(IInflatonTheory theory, double phiEval, ReadOnlySpan<double> y, Span<double> dydt)
     {
-        double phi = y[0], p = y[1];
+        double phi = phiEval, p = y[1];
         Jet3 v = theory.Potential(phi);
         Jet3 k = theory.Kinetic(phi);
         double e1 = 0.5 * k.Value * p * p;

@@ -73,8 +73,22 @@ public static class BackgroundSolver
             _s = s;
             _inflation = inflation;
             _reheating = reheating;
-            _constrained = (t, y, d) => BackgroundEquations.Constrained(theory, y, d);
-            _regular = (t, y, d) => BackgroundEquations.Regular(theory, y, d);
+            _constrained = (t, y, d) => BackgroundEquations.Constrained(theory, Side(y[0]), y, d);
+            _regular = (t, y, d) => BackgroundEquations.Regular(theory, Side(y[0]), y, d);
+        }
+
+        // When a segment starts exactly on a kink, V and K are evaluated one ulp to the side the field moves to,
+        // so the first stage of the restart sees the slope of the new branch.
+        private double _kinkPhi = double.NaN;
+        private double _kinkDirection;
+
+        private double Side(double phi)
+            => phi == _kinkPhi ? (_kinkDirection > 0 ? Math.BitIncrement(phi) : Math.BitDecrement(phi)) : phi;
+
+        private void SetRestart(double phi, double dphi, bool atKink)
+        {
+            _kinkPhi = atKink ? phi : double.NaN;
+            _kinkDirection = dphi;
         }
 
         private double E1(ReadOnlySpan<double> y) => 0.5 * _theory.Kinetic(y[0]).Value * y[1] * y[1];
@@ -134,6 +148,13 @@ public static class BackgroundSolver
             if (sol.TFinal > t0) _segments.Add(new BackgroundSegment(t0, sol.TFinal, sol, regular));
         }
 
+        private void CheckPositive(double n, double phi)
+        {
+            double v = _theory.Potential(Side(phi)).Value;
+            if (!(v > 0))
+                throw new PhysicsException($"V <= 0 reached during inflation at N = {n:G8}, phi = {phi:G6} (V = {v:G6} past the non-smooth point); the potential must stay positive until inflation ends.");
+        }
+
         private static double[] Snap(double[] state, double phi)
         {
             var y = (double[])state.Clone();
@@ -178,6 +199,8 @@ public static class BackgroundSolver
                     case Kind.Kink:
                         _nonSmooth.Add(n);
                         y = Snap(last.State, value);
+                        SetRestart(value, y[1], atKink: true);
+                        CheckPositive(n, y[0]);
                         continue;
                     case Kind.VZero:
                         throw new PhysicsException($"V <= 0 reached during inflation at N = {n:G8}, phi = {last.State[0]:G6}; the potential must stay positive until inflation ends (add an end field value or change the potential).");
@@ -189,6 +212,7 @@ public static class BackgroundSolver
                     case Kind.Rise:
                         _crossings.Add(n);
                         _rising.Add(n);
+                        SetRestart(last.State[0], last.State[1], atKink: false);
                         break;
                 }
 
@@ -255,15 +279,18 @@ public static class BackgroundSolver
                     case Kind.Kink:
                         _nonSmooth.Add(n);
                         y = Snap(y, value);
+                        SetRestart(value, y[1], atKink: true);
                         break;
                     case Kind.RangeLow:
                     case Kind.RangeHigh:
                         throw new PhysicsException($"The field left the theory's valid range after the end of inflation at N = {n:G8}, phi = {value:G6}; set fewer e-folds after the end.");
                     case Kind.Fall:
                         pendingFall = n;
+                        SetRestart(y[0], y[1], atKink: false);
                         break;
                     case Kind.Rise:
                         pendingFall = double.NaN; // a short accelerating dip of an oscillation, not inflation
+                        SetRestart(y[0], y[1], atKink: false);
                         break;
                 }
             }
