@@ -18,7 +18,7 @@ namespace ModeSolver.Background;
 public static class BackgroundSolver
 {
     /// <summary>The default integration method for both phases.</summary>
-    public static IOdeMethod DefaultMethod() => throw new NotImplementedException("awaiting integrators merge");
+    public static IOdeMethod DefaultMethod() => new DormandPrince853();
 
     private enum Kind { Rise, Fall, VZero, PhiEnd, RangeLow, RangeHigh, Kink }
 
@@ -129,6 +129,7 @@ public static class BackgroundSolver
                 Events = events,
                 DenseOutput = true,
                 MaxSteps = _s.MaxSteps,
+                MaxStep = _s.MaxStep,
             };
             try
             {
@@ -139,6 +140,14 @@ public static class BackgroundSolver
                 string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
                 throw new PhysicsException($"The background integration broke down ({ex.Failure}) at N = {ex.T:G8}, {state}: {OneLine(ex.Message)}; check the potential there or loosen the tolerance.", ex);
             }
+        }
+
+        /// <summary>The event that stopped the integration (the driver may append simultaneous non-terminal ones after it).</summary>
+        private static EventOccurrence TerminalEvent(OdeSolution sol, List<EventSpec> specs)
+        {
+            foreach (var ev in sol.Events)
+                if (specs[ev.EventIndex].Terminal && ev.T == sol.TFinal) return ev;
+            return sol.Events[^1];
         }
 
         private static string OneLine(string s) => s.Replace('\n', ' ').Replace('\r', ' ');
@@ -191,7 +200,7 @@ public static class BackgroundSolver
                     var yf = sol.FinalState;
                     throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (at N = {sol.TFinal:G8}, phi = {yf[0]:G6}, epsilon_1 = {E1(yf):G4}); raise the e-fold limit, start nearer the end, or set an end field value.");
                 }
-                var last = sol.Events[^1];
+                var last = TerminalEvent(sol, specs);
                 var (kind, value) = kinds[last.EventIndex];
                 n = last.T;
                 switch (kind)
@@ -270,7 +279,7 @@ public static class BackgroundSolver
                     }
                     break;
                 }
-                var last = sol.Events[^1];
+                var last = TerminalEvent(sol, specs);
                 var (kind, value) = kinds[last.EventIndex];
                 n = last.T;
                 y = last.State;
