@@ -178,6 +178,24 @@ public class BackgroundSolverTests
         Assert.Equal(bg.VScale * 0.5 * Math.Pow(bg.At(3).Phi, 2), bg.V(3), 1e-20);
     }
 
+    [Fact]
+    public void DenseOutputAndHorizonExitDoNotAllocate()
+    {
+        // The mode solver calls At(N) thousands of times per mode (brief: allocation-free hot path).
+        var bg = Solve(new Quadratic(), 16.0, after: 2).WithVScale(1e-10);
+        double k = Math.Exp(bg.NEnd - 50) * bg.At(bg.NEnd - 50).H;
+        double sum = bg.At(1).H + bg.NAtHorizonExit(k); // warm up
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        for (int i = 0; i < 2000; i++)
+        {
+            double n = bg.NStop * i / 2000.0;
+            sum += bg.At(n).Epsilon3;
+        }
+        sum += bg.NAtHorizonExit(k);
+        long allocated = GC.GetAllocatedBytesForCurrentThread() - before;
+        Assert.Equal(0, allocated);
+    }
+
     private sealed class Wrapped(IBackground inner) : IBackground
     {
         public double NStart => inner.NStart;
