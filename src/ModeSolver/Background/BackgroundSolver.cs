@@ -248,7 +248,7 @@ public static class BackgroundSolver
             double hsq = BackgroundEquations.ConstraintHubbleSquared(_theory, stateAtUp[0], stateAtUp[1]);
             double[] y = { stateAtUp[0], stateAtUp[1], 0.5 * Math.Log(hsq) };
             double pendingFall = double.NaN;
-            while (n < stop)
+            while (n < stop || !double.IsNaN(pendingFall))
             {
                 var specs = new List<EventSpec>();
                 var kinds = new List<(Kind Kind, double Value)>();
@@ -263,15 +263,15 @@ public static class BackgroundSolver
                 }
                 AddRangeEvents(specs, kinds);
                 AddKinkEvents(specs, kinds, y[0]);
-                double window = pending ? pendingFall + _s.ReentryEFolds : double.PositiveInfinity;
-                double tEnd = Math.Min(stop, window);
+                // A pending fall is followed for the whole re-entry window, even past the planned stop.
+                double tEnd = pending ? pendingFall + _s.ReentryEFolds : stop;
                 var sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
                 AddSegment(n, sol, regular: true);
                 if (sol.Status != OdeStatus.TerminalEvent)
                 {
                     n = sol.TFinal;
                     y = sol.FinalState;
-                    if (pending && window <= stop)
+                    if (pending)
                     {
                         // epsilon_1 stayed below 1 for the whole window: inflation resumed at the fall.
                         _crossings.Add(pendingFall);

@@ -208,6 +208,27 @@ public class BackgroundSolverTests
     }
 
     [Fact]
+    public void InflationThatStopsAndResumesReportsBothCrossings()
+    {
+        // physics.md section 2: some models cross epsilon_1 = 1 more than once; report every crossing. A shallow exponential
+        // (e1 = 0.02) with a steep band (lambda = 2, attractor e1 = 2) in 2 < phi < 4: inflation stops in the band and resumes
+        // after it (Lucchin & Matarrese attractors on each piece).
+        var theory = new PiecewiseExponential(new[] { 2.0, 4.0 }, new[] { 0.2, 2.0, 0.2 });
+        var bg = Solve(theory, 0.0, phiEnd: 6.0);
+        Assert.Equal(2, bg.NonSmoothTimes.Count);
+        Assert.Single(bg.RisingCrossings);
+        Assert.Equal(2, bg.EndCrossings.Count);
+        double up = bg.EndCrossings[0], down = bg.EndCrossings[1];
+        Assert.True(bg.NonSmoothTimes[0] < up && up < bg.NonSmoothTimes[1] && bg.NonSmoothTimes[1] < down);
+        Assert.Equal(1.0, bg.At(up).Epsilon1, 1e-9);
+        Assert.Equal(1.0, bg.At(down).Epsilon1, 1e-9);
+        Assert.True(bg.EndedAtPhiEnd);
+        Assert.Equal(6.0, bg.At(bg.NEnd).Phi, 1e-10);
+        Assert.Equal(0.02, bg.At(bg.NEnd).Epsilon1, 1e-8); // back on the shallow attractor
+        Assert.Equal(bg.NEnd, bg.NStop);
+    }
+
+    [Fact]
     public void ContinuesThroughOscillationsWithoutCountingThemAsEnds()
     {
         // After the end the field oscillates; epsilon_1 dips below 1 near each turning point, which must not count as
