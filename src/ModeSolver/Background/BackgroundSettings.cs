@@ -42,7 +42,7 @@ public sealed record BackgroundSettings
     /// <summary>Method for the inflationary part; null uses the default explicit high-order method.</summary>
     public IOdeMethod? InflationMethod { get; init; }
 
-    /// <summary>Method for the continuation after the end (oscillations); null uses the default.</summary>
+    /// <summary>Method for the continuation after the end (oscillations); null uses the explicit/implicit switching method.</summary>
     public IOdeMethod? ReheatingMethod { get; init; }
 
     /// <summary>

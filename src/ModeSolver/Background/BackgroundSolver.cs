@@ -17,8 +17,11 @@ namespace ModeSolver.Background;
 /// </remarks>
 public static class BackgroundSolver
 {
-    /// <summary>The default integration method for both phases.</summary>
+    /// <summary>The default method for the inflationary phase (explicit, high order).</summary>
     public static IOdeMethod DefaultMethod() => new DormandPrince853();
+
+    /// <summary>The default method after the end (oscillations): switches between explicit and implicit steps as stiffness requires.</summary>
+    public static IOdeMethod DefaultReheatingMethod() => new AutoSwitching();
 
     private enum Kind { Rise, Fall, VZero, PhiEnd, RangeLow, RangeHigh, Kink }
 
@@ -49,7 +52,7 @@ public static class BackgroundSolver
             throw new ArgumentOutOfRangeException(nameof(settings), "Tolerance must lie in (0, 1).");
 
         var inflationMethod = settings.InflationMethod ?? DefaultMethod();
-        var reheatingMethod = settings.ReheatingMethod ?? inflationMethod;
+        var reheatingMethod = settings.ReheatingMethod ?? DefaultReheatingMethod();
         var run = new Run(theory, settings, inflationMethod, reheatingMethod);
         return run.Execute(phi0, dphi0);
     }
