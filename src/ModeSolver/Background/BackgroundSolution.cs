@@ -1,0 +1,243 @@
+using ModeSolver.Integrators;
+using ModeSolver.Models;
+using ModeSolver.Physics;
+
+namespace ModeSolver.Background;
+
+/// <summary>One integration piece of the background: a dense solution between two restarts.</summary>
+/// <param name="Start">First N of the piece.</param>
+/// <param name="Stop">Last N of the piece.</param>
+/// <param name="Solution">Dense output; state (phi, phi') or (phi, phi', ln H).</param>
+/// <param name="Regular">True when the state carries ln H (after the end of inflation).</param>
+internal sealed record BackgroundSegment(double Start, double Stop, OdeSolution Solution, bool Regular);
+
+/// <summary>
+/// The exact background of an inflaton theory in e-folds (origin N = 0 at the start), with dense output.
+/// The shape (phi(N), e_n(N)) does not depend on the scale of V; <see cref="WithVScale"/> gives a rescaled view
+/// sharing the same storage, in which only H (and V) change.
+/// </summary>
+public sealed class BackgroundSolution : IBackground
+{
+    private readonly Shared _shared;
+
+    /// <summary>Storage common to all rescaled views.</summary>
+    private sealed class Shared
+    {
+        public required IInflatonTheory Theory { get; init; }
+        public required BackgroundSegment[] Segments { get; init; }
+        public required double[] SegmentStarts { get; init; }
+        public required double NEnd { get; init; }
+        public required double[] EndCrossings { get; init; }
+        public required double[] RisingCrossings { get; init; }
+        public required double[] NonSmoothTimes { get; init; }
+        public required bool EndedAtPhiEnd { get; init; }
+        // Tables at the accepted step times.
+        public required double[] GridN { get; init; }      // all step times over [NStart, NStop]
+        public required double[] GridPhi { get; init; }
+        public required int GridEndIndex { get; init; }     // GridN[GridEndIndex] == NEnd
+        public required double[] SuffixMinLnAH { get; init; } // suffix minimum of ln(aH) (unscaled) over [0, NEnd]
+    }
+
+    private BackgroundSolution(Shared shared, double vScale)
+    {
+        _shared = shared;
+        VScale = vScale;
+        _halfLnScale = 0.5 * Math.Log(vScale);
+    }
+
+    private readonly double _halfLnScale;
+
+    /// <summary>The theory this background solves.</summary>
+    public IInflatonTheory Theory => _shared.Theory;
+
+    /// <inheritdoc/>
+    public double NStart => _shared.Segments[0].Start;
+
+    /// <inheritdoc/>
+    public double NStop => _shared.Segments[^1].Stop;
+
+    /// <inheritdoc/>
+    public double NEnd => _shared.NEnd;
+
+    /// <summary>E-folds of inflation, NEnd - NStart.</summary>
+    public double NTotal => NEnd - NStart;
+
+    /// <inheritdoc/>
+    public IReadOnlyList<double> EndCrossings => _shared.EndCrossings;
+
+    /// <summary>The upward epsilon_1 = 1 crossings (candidate ends), ascending.</summary>
+    public IReadOnlyList<double> RisingCrossings => _shared.RisingCrossings;
+
+    /// <inheritdoc/>
+    public IReadOnlyList<double> NonSmoothTimes => _shared.NonSmoothTimes;
+
+    /// <summary>True when inflation was ended by <see cref="BackgroundSettings.PhiEnd"/> rather than by epsilon_1 = 1.</summary>
+    public bool EndedAtPhiEnd => _shared.EndedAtPhiEnd;
+
+    /// <inheritdoc/>
+    public double VScale { get; }
+
+    /// <summary>Number of integration pieces (restarts at kinks and crossings).</summary>
+    public int SegmentCount => _shared.Segments.Length;
+
+    /// <summary>A view of the same background with the potential multiplied by <paramref name="scale"/> (H by its square root).</summary>
+    public BackgroundSolution WithVScale(double scale)
+    {
+        if (!(scale > 0) || double.IsInfinity(scale))
+            throw new ArgumentOutOfRangeException(nameof(scale), scale, "V scale must be positive and finite.");
+        return new BackgroundSolution(_shared, scale);
+    }
+
+    internal static BackgroundSolution Create(IInflatonTheory theory, List<BackgroundSegment> segments, double nEnd,
+        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd)
+    {
+        var segs = segments.ToArray();
+        var starts = new double[segs.Length];
+        for (int i = 0; i < segs.Length; i++) starts[i] = segs[i].Start;
+
+        var gridN = new List<double>();
+        foreach (var s in segs)
+        {
+            var times = s.Solution.StepTimes;
+            for (int j = 0; j < times.Length; j++)
+            {
+                double t = times[j];
+                if (gridN.Count > 0 && t <= gridN[^1]) continue;
+                gridN.Add(t);
+            }
+        }
+        // Make sure NEnd is a grid point.
+        int endIndex = gridN.BinarySearch(nEnd);
+        if (endIndex < 0)
+        {
+            endIndex = ~endIndex;
+            gridN.Insert(endIndex, nEnd);
+        }
+
+        var shared0 = new Shared
+        {
+            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd,
+            EndCrossings = crossings.ToArray(), RisingCrossings = rising.ToArray(), NonSmoothTimes = nonSmooth.ToArray(),
+            EndedAtPhiEnd = endedAtPhiEnd, GridN = gridN.ToArray(), GridPhi = new double[gridN.Count],
+            GridEndIndex = endIndex, SuffixMinLnAH = new double[endIndex + 1],
+        };
+        var bg = new BackgroundSolution(shared0, 1.0);
+        for (int i = 0; i < shared0.GridN.Length; i++)
+        {
+            var pt = bg.At(shared0.GridN[i]);
+            shared0.GridPhi[i] = pt.Phi;
+            if (i <= endIndex) shared0.SuffixMinLnAH[i] = pt.N + Math.Log(pt.H);
+        }
+        for (int i = endIndex - 1; i >= 0; i--)
+            shared0.SuffixMinLnAH[i] = Math.Min(shared0.SuffixMinLnAH[i], shared0.SuffixMinLnAH[i + 1]);
+        return bg;
+    }
+
+    private int SegmentIndex(double n)
+    {
+        var starts = _shared.SegmentStarts;
+        int lo = 0, hi = starts.Length - 1;
+        while (lo < hi)
+        {
+            int mid = (lo + hi + 1) >> 1;
+            if (starts[mid] <= n) lo = mid; else hi = mid - 1;
+        }
+        return lo;
+    }
+
+    /// <inheritdoc/>
+    public BackgroundPoint At(double n)
+    {
+        double nStart = NStart, nStop = NStop;
+        if (!(n >= nStart) || !(n <= nStop))
+        {
+            double slack = 1e-10 * Math.Max(1.0, Math.Abs(nStop));
+            if (n < nStart && n >= nStart - slack) n = nStart;
+            else if (n > nStop && n <= nStop + slack) n = nStop;
+            else throw new ArgumentOutOfRangeException(nameof(n), n, $"N must lie in [{nStart}, {nStop}].");
+        }
+        var seg = _shared.Segments[SegmentIndex(n)];
+        Span<double> y = stackalloc double[3];
+        double t = Math.Min(n, seg.Stop);
+        var theory = _shared.Theory;
+        if (seg.Regular)
+        {
+            seg.Solution.Evaluate(t, y);
+            return BackgroundEquations.Point(theory, n, y[0], y[1], Math.Exp(2.0 * y[2]), VScale);
+        }
+        seg.Solution.Evaluate(t, y[..2]);
+        double hsq = BackgroundEquations.ConstraintHubbleSquared(theory, y[0], y[1]);
+        return BackgroundEquations.Point(theory, n, y[0], y[1], hsq, VScale);
+    }
+
+    /// <summary>The scaled potential V(phi(N)).</summary>
+    public double V(double n) => VScale * _shared.Theory.Potential(At(n).Phi).Value;
+
+    /// <summary>ln(aH) at N in background units (a = e^N, H in M_pl, scaled).</summary>
+    public double LnAH(double n) => n + Math.Log(At(n).H);
+
+    /// <summary>The first N at which the field takes the value <paramref name="phi"/>; throws <see cref="PhysicsException"/> if it never does.</summary>
+    public double NAtPhi(double phi)
+    {
+        var gn = _shared.GridN;
+        var gp = _shared.GridPhi;
+        for (int i = 0; i + 1 < gn.Length; i++)
+        {
+            double a = gp[i] - phi, b = gp[i + 1] - phi;
+            if (a == 0) return gn[i];
+            if (a * b < 0 || b == 0)
+                return Roots.Bracketed(x => At(x).Phi - phi, gn[i], gn[i + 1], a, b, 1e-14);
+        }
+        // Dense check inside steps would only matter for non-monotone field motion within one step; the grid is fine enough.
+        throw new PhysicsException($"The field never takes the value phi = {phi:G6} between N = {NStart:G6} and {NStop:G6}; choose a value the field passes through.");
+    }
+
+    /// <summary>
+    /// The last N before the end of inflation at which k = aH (final horizon exit), k in background units
+    /// (k = aH with a = e^N, H in M_pl, in this view's scale). Returns false when k is outside the served range.
+    /// </summary>
+    public bool TryNAtHorizonExit(double kBackground, out double n)
+    {
+        n = double.NaN;
+        if (!(kBackground > 0)) return false;
+        double lnk = Math.Log(kBackground) - _halfLnScale;
+        var suf = _shared.SuffixMinLnAH;
+        int last = _shared.GridEndIndex;
+        if (!(lnk > suf[0]) || lnk > suf[last]) return false;
+        // suf is non-decreasing: find i with suf[i] < lnk <= suf[i+1].
+        int lo = 0, hi = last;
+        while (hi - lo > 1)
+        {
+            int mid = (lo + hi) >> 1;
+            if (suf[mid] < lnk) lo = mid; else hi = mid;
+        }
+        var gn = _shared.GridN;
+        double a = gn[lo], b = gn[hi];
+        double fa = a + Math.Log(At(a).H) - _halfLnScale - lnk;
+        double fb = b + Math.Log(At(b).H) - _halfLnScale - lnk;
+        if (fb == 0) { n = b; return true; }
+        if (fa > 0) fa = -1e-300; // guard rounding at the bracket edge
+        n = Roots.SafeNewton(this, lnk + _halfLnScale, a, b, fa, fb);
+        return true;
+    }
+
+    /// <summary>As <see cref="TryNAtHorizonExit"/>, throwing <see cref="PhysicsException"/> when k is outside the range served.</summary>
+    public double NAtHorizonExit(double kBackground)
+    {
+        if (TryNAtHorizonExit(kBackground, out double n)) return n;
+        var (kMin, kMax) = KRange(1.0, 1.0);
+        throw new PhysicsException($"k = {kBackground:G6} (background units) never leaves the horizon during inflation; the background serves {kMin:G6} to {kMax:G6}; start the field further up the potential or choose another k.");
+    }
+
+    /// <summary>
+    /// The k range (background units, this view's scale) the background can serve: k/aH reaches <paramref name="startDepth"/>
+    /// after the start (k &gt;= startDepth times the smallest aH before its exit) and k/aH &lt;= <paramref name="endDepth"/> at NEnd.
+    /// </summary>
+    public (double KMin, double KMax) KRange(double startDepth, double endDepth)
+    {
+        var suf = _shared.SuffixMinLnAH;
+        double kMin = startDepth * Math.Exp(suf[0] + _halfLnScale);
+        double kMax = endDepth * Math.Exp(suf[_shared.GridEndIndex] + _halfLnScale);
+        return (kMin, kMax);
+    }
+}

@@ -1,0 +1,300 @@
+using ModeSolver.Integrators;
+using ModeSolver.Models;
+using ModeSolver.Physics;
+
+namespace ModeSolver.Background;
+
+/// <summary>
+/// Integrates the exact homogeneous background of an <see cref="IInflatonTheory"/> in e-folds (physics.md section 2),
+/// from N = 0 to the end of inflation and on through the first oscillations.
+/// </summary>
+/// <remarks>
+/// During inflation the state is (phi, phi') and H^2 = V/(3 - e1) comes from the constraint; after the end the state
+/// carries ln H as well, which keeps the equations regular where V passes through zero. Every epsilon_1 = 1 crossing
+/// of the inflationary history is located; after an end, a dip of epsilon_1 below 1 counts as inflation resuming only
+/// when it lasts <see cref="BackgroundSettings.ReentryEFolds"/>. The integration stops exactly where the field reaches a
+/// non-smooth point of the theory and restarts there, so no step straddles a jump in V_phi.
+/// </remarks>
+public static class BackgroundSolver
+{
+    /// <summary>The default integration method for both phases.</summary>
+    public static IOdeMethod DefaultMethod() => throw new NotImplementedException("awaiting integrators merge");
+
+    private enum Kind { Rise, Fall, VZero, PhiEnd, RangeLow, RangeHigh, Kink }
+
+    /// <summary>Integrates the background; throws <see cref="PhysicsException"/> when the physics cannot be computed.</summary>
+    public static BackgroundSolution Solve(IInflatonTheory theory, BackgroundSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(theory);
+        ArgumentNullException.ThrowIfNull(settings);
+        double phi0 = settings.Phi0;
+        var (rangeMin, rangeMax) = theory.ValidRange;
+        if (!double.IsFinite(phi0))
+            throw new PhysicsException($"The initial field value phi0 = {phi0} is not finite; give a finite phi0.");
+        if (!(phi0 > rangeMin && phi0 < rangeMax))
+            throw new PhysicsException($"The initial field value phi0 = {phi0:G6} lies outside the theory's valid range ({rangeMin:G6}, {rangeMax:G6}); choose phi0 inside it.");
+        Jet3 v0 = theory.Potential(phi0);
+        Jet3 k0 = theory.Kinetic(phi0);
+        if (!(v0.Value > 0) || !double.IsFinite(v0.Value))
+            throw new PhysicsException($"V <= 0 (or not finite) at the start, N = 0, phi = {phi0:G6} (V = {v0.Value:G6}); start where the potential is positive.");
+        if (!(k0.Value > 0))
+            throw new PhysicsException($"The kinetic function K = {k0.Value:G6} is not positive at the start, phi = {phi0:G6}; start where K > 0.");
+        double dphi0 = settings.DPhi0 ?? -v0.D1 / (k0.Value * v0.Value);
+        if (!double.IsFinite(dphi0))
+            throw new PhysicsException($"The initial velocity dphi/dN = {dphi0} at phi = {phi0:G6} is not finite; give a finite dphi0.");
+        double e1Start = 0.5 * k0.Value * dphi0 * dphi0;
+        if (e1Start >= 3.0)
+            throw new PhysicsException($"epsilon_1 = {e1Start:G6} >= 3 at the start (N = 0, phi = {phi0:G6}, dphi/dN = {dphi0:G6}): the kinetic start is too large (H^2 = V/(3 - epsilon_1) needs epsilon_1 < 3); lower |dphi0| below {Math.Sqrt(6.0 / k0.Value):G6}.");
+        if (!(settings.Tolerance > 0 && settings.Tolerance < 1))
+            throw new ArgumentOutOfRangeException(nameof(settings), "Tolerance must lie in (0, 1).");
+
+        var inflationMethod = settings.InflationMethod ?? DefaultMethod();
+        var reheatingMethod = settings.ReheatingMethod ?? inflationMethod;
+        var run = new Run(theory, settings, inflationMethod, reheatingMethod);
+        return run.Execute(phi0, dphi0);
+    }
+
+    private sealed class Run
+    {
+        private readonly IInflatonTheory _theory;
+        private readonly BackgroundSettings _s;
+        private readonly IOdeMethod _inflation;
+        private readonly IOdeMethod _reheating;
+        private readonly RightHandSide _constrained;
+        private readonly RightHandSide _regular;
+        private readonly List<BackgroundSegment> _segments = new();
+        private readonly List<double> _crossings = new();
+        private readonly List<double> _rising = new();
+        private readonly List<double> _nonSmooth = new();
+
+        public Run(IInflatonTheory theory, BackgroundSettings s, IOdeMethod inflation, IOdeMethod reheating)
+        {
+            _theory = theory;
+            _s = s;
+            _inflation = inflation;
+            _reheating = reheating;
+            _constrained = (t, y, d) => BackgroundEquations.Constrained(theory, Side(y[0]), y, d);
+            _regular = (t, y, d) => BackgroundEquations.Regular(theory, Side(y[0]), y, d);
+        }
+
+        // When a segment starts exactly on a kink, V and K are evaluated one ulp to the side the field moves to,
+        // so the first stage of the restart sees the slope of the new branch.
+        private double _kinkPhi = double.NaN;
+        private double _kinkDirection;
+
+        private double Side(double phi)
+            => phi == _kinkPhi ? (_kinkDirection > 0 ? Math.BitIncrement(phi) : Math.BitDecrement(phi)) : phi;
+
+        private void SetRestart(double phi, double dphi, bool atKink)
+        {
+            _kinkPhi = atKink ? phi : double.NaN;
+            _kinkDirection = dphi;
+        }
+
+        private double E1(ReadOnlySpan<double> y) => 0.5 * _theory.Kinetic(y[0]).Value * y[1] * y[1];
+
+        private void AddKinkEvents(List<EventSpec> specs, List<(Kind, double)> kinds, double phiNow)
+        {
+            var points = _theory.NonSmoothPoints;
+            for (int i = 0; i < points.Count; i++)
+            {
+                double pk = points[i];
+                if (Math.Abs(phiNow - pk) <= 1e-13 * Math.Max(1.0, Math.Abs(pk))) continue;
+                specs.Add(new EventSpec((t, y) => y[0] - pk, EventDirection.Either, Terminal: true, Name: "kink"));
+                kinds.Add((Kind.Kink, pk));
+            }
+        }
+
+        private void AddRangeEvents(List<EventSpec> specs, List<(Kind, double)> kinds)
+        {
+            var (lo, hi) = _theory.ValidRange;
+            if (double.IsFinite(lo))
+            {
+                specs.Add(new EventSpec((t, y) => y[0] - lo, EventDirection.Falling, Terminal: true, Name: "range-low"));
+                kinds.Add((Kind.RangeLow, lo));
+            }
+            if (double.IsFinite(hi))
+            {
+                specs.Add(new EventSpec((t, y) => y[0] - hi, EventDirection.Rising, Terminal: true, Name: "range-high"));
+                kinds.Add((Kind.RangeHigh, hi));
+            }
+        }
+
+        private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events)
+        {
+            var options = new OdeOptions
+            {
+                RelativeTolerance = _s.Tolerance,
+                AbsoluteTolerance = 1e-2 * _s.Tolerance,
+                Events = events,
+                DenseOutput = true,
+                MaxSteps = _s.MaxSteps,
+            };
+            try
+            {
+                return method.Solve(new OdeProblem(rhs, t0, y0, tEnd), options);
+            }
+            catch (IntegrationException ex)
+            {
+                string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
+                throw new PhysicsException($"The background integration broke down ({ex.Failure}) at N = {ex.T:G8}, {state}: {OneLine(ex.Message)}; check the potential there or loosen the tolerance.", ex);
+            }
+        }
+
+        private static string OneLine(string s) => s.Replace('\n', ' ').Replace('\r', ' ');
+
+        private void AddSegment(double t0, OdeSolution sol, bool regular)
+        {
+            if (sol.TFinal > t0) _segments.Add(new BackgroundSegment(t0, sol.TFinal, sol, regular));
+        }
+
+        private void CheckPositive(double n, double phi)
+        {
+            double v = _theory.Potential(Side(phi)).Value;
+            if (!(v > 0))
+                throw new PhysicsException($"V <= 0 reached during inflation at N = {n:G8}, phi = {phi:G6} (V = {v:G6} past the non-smooth point); the potential must stay positive until inflation ends.");
+        }
+
+        private static double[] Snap(double[] state, double phi)
+        {
+            var y = (double[])state.Clone();
+            y[0] = phi;
+            return y;
+        }
+
+        public BackgroundSolution Execute(double phi0, double dphi0)
+        {
+            double n = 0;
+            double[] y = { phi0, dphi0 };
+            while (true)
+            {
+                // ---- inflationary phase: state (phi, phi') ----
+                var specs = new List<EventSpec>();
+                var kinds = new List<(Kind Kind, double Value)>();
+                specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Rising, Terminal: true, Name: "epsilon1-up")); kinds.Add((Kind.Rise, 1));
+                specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Falling, Terminal: false, Name: "epsilon1-down")); kinds.Add((Kind.Fall, 1));
+                specs.Add(new EventSpec((t, s) => _theory.Potential(s[0]).Value, EventDirection.Falling, Terminal: true, Name: "V-zero")); kinds.Add((Kind.VZero, 0));
+                if (_s.PhiEnd is double pe)
+                {
+                    specs.Add(new EventSpec((t, s) => s[0] - pe, EventDirection.Either, Terminal: true, Name: "phi-end")); kinds.Add((Kind.PhiEnd, pe));
+                }
+                AddRangeEvents(specs, kinds);
+                AddKinkEvents(specs, kinds, y[0]);
+                if (!(_s.MaxEFolds > n))
+                    throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (reached N = {n:G8}, phi = {y[0]:G6}); raise the e-fold limit, start nearer the end, or set an end field value.");
+                var sol = Integrate(_inflation, _constrained, n, y, _s.MaxEFolds, specs);
+                AddSegment(n, sol, regular: false);
+                foreach (var ev in sol.Events)
+                    if (kinds[ev.EventIndex].Kind == Kind.Fall && ev.T > n) _crossings.Add(ev.T);
+                if (sol.Status != OdeStatus.TerminalEvent)
+                {
+                    var yf = sol.FinalState;
+                    throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (at N = {sol.TFinal:G8}, phi = {yf[0]:G6}, epsilon_1 = {E1(yf):G4}); raise the e-fold limit, start nearer the end, or set an end field value.");
+                }
+                var last = sol.Events[^1];
+                var (kind, value) = kinds[last.EventIndex];
+                n = last.T;
+                switch (kind)
+                {
+                    case Kind.Kink:
+                        _nonSmooth.Add(n);
+                        y = Snap(last.State, value);
+                        SetRestart(value, y[1], atKink: true);
+                        CheckPositive(n, y[0]);
+                        continue;
+                    case Kind.VZero:
+                        throw new PhysicsException($"V <= 0 reached during inflation at N = {n:G8}, phi = {last.State[0]:G6}; the potential must stay positive until inflation ends (add an end field value or change the potential).");
+                    case Kind.RangeLow:
+                    case Kind.RangeHigh:
+                        throw new PhysicsException($"The field left the theory's valid range at N = {n:G8}, phi = {value:G6}; start elsewhere or set an end field value inside the range.");
+                    case Kind.PhiEnd:
+                        return BackgroundSolution.Create(_theory, _segments, n, _crossings, _rising, _nonSmooth, endedAtPhiEnd: true);
+                    case Kind.Rise:
+                        _crossings.Add(n);
+                        _rising.Add(n);
+                        SetRestart(last.State[0], last.State[1], atKink: false);
+                        break;
+                }
+
+                // ---- after an end: state (phi, phi', ln H) ----
+                var (resumed, yNext, nNext) = Continue(n, last.State);
+                if (!resumed) break;
+                n = nNext;
+                y = yNext;
+            }
+
+            int count = _rising.Count;
+            int idx = _s.EndCrossing >= 0 ? _s.EndCrossing : count + _s.EndCrossing;
+            if (idx < 0 || idx >= count)
+                throw new PhysicsException($"The end-crossing choice {_s.EndCrossing} does not exist: epsilon_1 rose through 1 only {count} time(s) (at N = {string.Join(", ", _rising.Select(r => r.ToString("G8")))}); choose an index in range.");
+            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false);
+        }
+
+        /// <summary>Runs past an end; returns whether inflation resumed, with the state (phi, phi') and N to resume from.</summary>
+        private (bool Resumed, double[] Y, double N) Continue(double nUp, double[] stateAtUp)
+        {
+            double stop = nUp + Math.Max(0.0, _s.EFoldsAfterEnd);
+            if (!(stop > nUp)) return (false, stateAtUp, nUp);
+            double n = nUp;
+            double hsq = BackgroundEquations.ConstraintHubbleSquared(_theory, stateAtUp[0], stateAtUp[1]);
+            double[] y = { stateAtUp[0], stateAtUp[1], 0.5 * Math.Log(hsq) };
+            double pendingFall = double.NaN;
+            while (n < stop)
+            {
+                var specs = new List<EventSpec>();
+                var kinds = new List<(Kind Kind, double Value)>();
+                bool pending = !double.IsNaN(pendingFall);
+                if (pending)
+                {
+                    specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Rising, Terminal: true, Name: "epsilon1-up")); kinds.Add((Kind.Rise, 1));
+                }
+                else
+                {
+                    specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Falling, Terminal: true, Name: "epsilon1-down")); kinds.Add((Kind.Fall, 1));
+                }
+                AddRangeEvents(specs, kinds);
+                AddKinkEvents(specs, kinds, y[0]);
+                double window = pending ? pendingFall + _s.ReentryEFolds : double.PositiveInfinity;
+                double tEnd = Math.Min(stop, window);
+                var sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
+                AddSegment(n, sol, regular: true);
+                if (sol.Status != OdeStatus.TerminalEvent)
+                {
+                    n = sol.TFinal;
+                    y = sol.FinalState;
+                    if (pending && window <= stop)
+                    {
+                        // epsilon_1 stayed below 1 for the whole window: inflation resumed at the fall.
+                        _crossings.Add(pendingFall);
+                        return (true, new[] { y[0], y[1] }, n);
+                    }
+                    break;
+                }
+                var last = sol.Events[^1];
+                var (kind, value) = kinds[last.EventIndex];
+                n = last.T;
+                y = last.State;
+                switch (kind)
+                {
+                    case Kind.Kink:
+                        _nonSmooth.Add(n);
+                        y = Snap(y, value);
+                        SetRestart(value, y[1], atKink: true);
+                        break;
+                    case Kind.RangeLow:
+                    case Kind.RangeHigh:
+                        throw new PhysicsException($"The field left the theory's valid range after the end of inflation at N = {n:G8}, phi = {value:G6}; set fewer e-folds after the end.");
+                    case Kind.Fall:
+                        pendingFall = n;
+                        SetRestart(y[0], y[1], atKink: false);
+                        break;
+                    case Kind.Rise:
+                        pendingFall = double.NaN; // a short accelerating dip of an oscillation, not inflation
+                        SetRestart(y[0], y[1], atKink: false);
+                        break;
+                }
+            }
+            return (false, y, n);
+        }
+    }
+}

@@ -1,0 +1,171 @@
+using ModeSolver.Background;
+using ModeSolver.Diagnostics;
+using ModeSolver.Physics;
+
+namespace ModeSolver.Matching;
+
+/// <summary>
+/// Places the pivot k_* on the background and normalises the potential (physics.md section 5):
+/// N_* = ln(H_*/k_*) - N_reh + ln a_reh with H_* in 1/Mpc, N_reh = ln(rho_end/rho_reh)/(3(1+w)),
+/// a_reh = (g_s0/g_s,reh)^(1/3) T_0/T_reh, rho_reh = (pi^2/30) g_reh T_reh^4, rho_end = 3 H_end^2.
+/// N_* and the V scale are iterated together to a fixed point (P_s is exactly proportional to the V scale at fixed N_*).
+/// </summary>
+public static class PivotMatcher
+{
+    private static readonly double LnMplInMpc = Math.Log(Constants.ReducedPlanckMassGeV * Constants.GeVInInverseMpc);
+
+    /// <summary>Matches and normalises; throws <see cref="PhysicsException"/> when it cannot be done.</summary>
+    public static PivotSolution Match(BackgroundSolution background, PivotSettings settings, IPivotAmplitude amplitude)
+    {
+        ArgumentNullException.ThrowIfNull(background);
+        ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(amplitude);
+        if (!(settings.KPivot > 0) || !double.IsFinite(settings.KPivot))
+            throw new PhysicsException($"The pivot k_* = {settings.KPivot} 1/Mpc is not a positive number; give a positive pivot scale.");
+        if (settings.ScalarAmplitude is double asTarget && !(asTarget > 0))
+            throw new PhysicsException($"The target scalar amplitude A_s = {asTarget} is not positive; give a positive A_s.");
+        var reh = settings.Reheating;
+        bool fromReheating = settings.EFolds is null;
+        if (fromReheating) ValidateReheatingForm(reh);
+
+        double nTotal = background.NTotal;
+        double nEnd = background.NEnd;
+        double s = background.VScale;
+        double nStar = settings.EFolds ?? Math.Min(settings.InitialEFolds, 0.9 * nTotal);
+        if (settings.EFolds is double given && (!(given > 0) || given > nTotal))
+            throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {given:G6}; start the field further up the potential (phi0) or lower N_*.");
+
+        double lnKStar = Math.Log(settings.KPivot);
+        double nReh = double.NaN, tReh = double.NaN, rhoEnd = double.NaN, psPivot = double.NaN;
+        int iterations = 0;
+        bool converged = false;
+        int clamped = 0;
+        while (iterations < settings.MaxIterations)
+        {
+            iterations++;
+            double nPiv = nEnd - nStar;
+            if (nPiv < background.NStart)
+            {
+                if (++clamped >= 3)
+                    throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but the reheating history asks for N_* = {nStar:G6} (phi0 = {background.At(background.NStart).Phi:G6}); start the field further up the potential.");
+                nPiv = background.NStart;
+            }
+            var bgs = background.WithVScale(s);
+            var pt = bgs.At(nPiv);
+            double ratio = 1.0;
+            if (settings.ScalarAmplitude is double target)
+            {
+                double kbg = Math.Exp(nPiv) * pt.H;
+                psPivot = amplitude.ScalarPower(bgs, kbg);
+                if (!(psPivot > 0) || !double.IsFinite(psPivot))
+                    throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {psPivot} at the pivot (N = {nPiv:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
+                ratio = target / psPivot;
+                s *= ratio;
+                bgs = background.WithVScale(s);
+                pt = bgs.At(nPiv);
+                psPivot = target;
+            }
+            if (!fromReheating)
+            {
+                if (Math.Abs(ratio - 1) < 1e-10) { converged = true; break; }
+                continue;
+            }
+            double hEnd = bgs.At(nEnd).H;
+            rhoEnd = 3 * hEnd * hEnd;
+            (nReh, tReh) = Reheat(reh, rhoEnd, settings);
+            double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
+            double lnHMpc = Math.Log(pt.H) + LnMplInMpc;
+            double next = lnHMpc - lnKStar - nReh + lnAReh;
+            double delta = next - nStar;
+            nStar = next;
+            if (Math.Abs(delta) < settings.Tolerance && Math.Abs(ratio - 1) < 1e-8) { converged = true; break; }
+        }
+        if (!converged)
+            throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} iterations (last N_* = {nStar:G8}, V scale = {s:G6}); give N_* directly or check the amplitude provider.");
+        if (nStar > nTotal || nStar <= 0)
+            throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {nStar:G6}; start the field further up the potential (phi0).");
+
+        var final = background.WithVScale(s);
+        double nPivot = nEnd - nStar;
+        var p = final.At(nPivot);
+        double kbgStar = Math.Exp(nPivot) * p.H;
+        // The pivot must leave the horizon for the last time at nPivot and have room to start inside it.
+        var (kMinServe, _) = final.KRange(settings.PivotStartDepth, 1.0);
+        if (!final.TryNAtHorizonExit(kbgStar, out double nExit) || Math.Abs(nExit - nPivot) > 1e-6 || kbgStar < kMinServe)
+            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, at N = {nPivot:G8}, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
+
+        if (fromReheating)
+        {
+            double hEnd = final.At(nEnd).H;
+            rhoEnd = 3 * hEnd * hEnd;
+            (nReh, tReh) = Reheat(reh, rhoEnd, settings);
+            ValidateTemperature(reh, tReh, rhoEnd, settings, nEnd, final);
+        }
+        else
+        {
+            double hEnd = final.At(nEnd).H;
+            rhoEnd = 3 * hEnd * hEnd;
+        }
+
+        double lnKUnit = Math.Log(kbgStar) - lnKStar;
+        var (kMin, kMax) = final.KRange(settings.RangeStartDepth, settings.RangeEndDepth);
+        double vStar = s * final.Theory.Potential(p.Phi).Value;
+        return new PivotSolution(
+            KPivot: settings.KPivot, NStar: nStar, NPivot: nPivot, VScale: s, LnKUnit: lnKUnit,
+            HStar: p.H, HStarGeV: p.H * Constants.ReducedPlanckMassGeV, PhiStar: p.Phi,
+            VStarQuarterGeV: Math.Pow(vStar, 0.25) * Constants.ReducedPlanckMassGeV,
+            NTotal: nTotal, NReh: fromReheating ? nReh : double.NaN, TRehGeV: fromReheating ? tReh : double.NaN,
+            W: fromReheating ? reh.W : double.NaN, RhoEnd: rhoEnd,
+            KMinMpc: kMin * Math.Exp(-lnKUnit), KMaxMpc: kMax * Math.Exp(-lnKUnit),
+            Iterations: iterations, AmplitudeName: settings.ScalarAmplitude is null ? "none" : amplitude.Name,
+            PsPivot: settings.ScalarAmplitude is null ? double.NaN : psPivot,
+            Background: final, PivotSlowRoll: SlowRoll.AtN(final, nPivot));
+    }
+
+    /// <summary>Temperature (GeV) of radiation with energy density rho (M_pl^4) and g relativistic degrees of freedom.</summary>
+    public static double TemperatureGeV(double rho, double g)
+        => Math.Pow(30.0 * rho / (Math.PI * Math.PI * g), 0.25) * Constants.ReducedPlanckMassGeV;
+
+    /// <summary>Energy density (M_pl^4) of radiation at temperature T (GeV).</summary>
+    public static double RadiationDensity(double tGeV, double g)
+    {
+        double t = tGeV / Constants.ReducedPlanckMassGeV;
+        return Math.PI * Math.PI / 30.0 * g * t * t * t * t;
+    }
+
+    private static void ValidateReheatingForm(ReheatingHistory reh)
+    {
+        if (!(reh.W > -1.0 / 3.0 && reh.W <= 1.0))
+            throw new PhysicsException($"The reheating equation of state w = {reh.W:G6} is outside -1/3 < w <= 1; choose w in that range.");
+        if (reh.TRehGeV is not null && reh.NReh is not null)
+            throw new PhysicsException("The reheating history gives both T_reh and N_reh; give only one of them.");
+        if (reh.TRehGeV is double t && !(t >= ReheatingHistory.MinimumTemperatureGeV && double.IsFinite(t)))
+            throw new PhysicsException($"The reheating temperature T_reh = {t:G6} GeV is below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); raise T_reh.");
+        if (reh.NReh is double nr && !(nr >= 0 && double.IsFinite(nr)))
+            throw new PhysicsException($"The number of reheating e-folds N_reh = {nr:G6} is negative or not finite; give N_reh >= 0.");
+    }
+
+    private static (double NReh, double TReh) Reheat(ReheatingHistory reh, double rhoEnd, PivotSettings s)
+    {
+        if (reh.TRehGeV is double t)
+        {
+            double rhoReh = RadiationDensity(t, s.GReh);
+            return (Math.Log(rhoEnd / rhoReh) / (3 * (1 + reh.W)), t);
+        }
+        if (reh.NReh is double nr)
+        {
+            double rhoReh = rhoEnd * Math.Exp(-3 * (1 + reh.W) * nr);
+            return (nr, TemperatureGeV(rhoReh, s.GReh));
+        }
+        return (0.0, TemperatureGeV(rhoEnd, s.GReh));
+    }
+
+    private static void ValidateTemperature(ReheatingHistory reh, double tReh, double rhoEnd, PivotSettings s, double nEnd, BackgroundSolution bg)
+    {
+        double tEnd = TemperatureGeV(rhoEnd, s.GReh);
+        if (tReh > tEnd * (1 + 1e-12))
+            throw new PhysicsException($"The reheating temperature T_reh = {tReh:G6} GeV is above the temperature at the end of inflation ({tEnd:G6} GeV, N = {nEnd:G8}, phi = {bg.At(nEnd).Phi:G6}); lower T_reh.");
+        if (tReh < ReheatingHistory.MinimumTemperatureGeV)
+            throw new PhysicsException($"The reheating history gives T_reh = {tReh:G6} GeV, below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); shorten reheating (N_reh = {(reh.NReh ?? double.NaN):G6}).");
+    }
+}

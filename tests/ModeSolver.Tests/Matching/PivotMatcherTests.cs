@@ -1,0 +1,106 @@
+using ModeSolver.Background;
+using ModeSolver.Diagnostics;
+using ModeSolver.Matching;
+using ModeSolver.Physics;
+using ModeSolver.Tests.Background;
+
+namespace ModeSolver.Tests.Matching;
+
+public class PivotMatcherTests
+{
+    private static readonly Lazy<BackgroundSolution> StarobinskyBg = new(() => BackgroundSolverTests.Solve(new Starobinsky(), 5.8, after: 0));
+
+    private static PivotSolution Match(PivotSettings s) => PivotMatcher.Match(StarobinskyBg.Value, s, new SlowRollAmplitude());
+
+    [Fact]
+    public void InstantaneousReheatingGivesNStarBetween55And57()
+    {
+        // Liddle & Leach 2003 (Phys. Rev. D 68, 103503), physics.md section 5: plateau models with instantaneous reheating
+        // have N_* of about 55 to 57 at k_* = 0.05/Mpc.
+        var m = Match(new PivotSettings());
+        Assert.InRange(m.NStar, 55, 57);
+        Assert.InRange(m.HStarGeV, 1e13, 1e14);
+        Assert.Equal(Constants.DefaultScalarAmplitude, SlowRoll.HubbleSecondOrder(m.Background.At(m.NPivot)).Ps, 1e-12 * 2.1e-9 / 1e-9 * 1e-9);
+        Assert.Equal(0.0, m.NReh);
+        // Fixed point: the pivot k converts back to 0.05/Mpc and leaves the horizon at N_pivot.
+        Assert.Equal(m.NPivot, m.Background.NAtHorizonExit(m.ToBackgroundUnits(0.05)), 1e-8);
+        Assert.True(m.KMinMpc < 0.05 && m.KMaxMpc > 0.05);
+        Assert.Equal("slow-roll-2", m.AmplitudeName);
+    }
+
+    [Fact]
+    public void MatterDominatedReheatingLowersNStarByAQuarterOfNReh()
+    {
+        // physics.md section 5: N_* = ln(H_*/k_*) - N_reh + ln a_reh with ln a_reh = const - ln T_reh and
+        // T_reh ~ rho_reh^(1/4). For w = 0, rho_reh = rho_end exp(-3 N_reh), so ln a_reh grows by (3/4) N_reh and
+        // N_* changes by -N_reh + (3/4) N_reh = -N_reh/4 at fixed H_* and rho_end. H_* and V scale move only through the
+        // slow drift of H with N_* (d ln H/dN = -e1 ~ 1e-4) and of P_s (d ln P_s/dN_* = 1 - n_s ~ 0.035, entering N_* via
+        // (1/4) ln V_scale): together below 0.01 e-fold here; we allow 0.02.
+        var inst = Match(new PivotSettings());
+        var md = Match(new PivotSettings { Reheating = ReheatingHistory.WithEFolds(0, 12) });
+        Assert.Equal(inst.NStar - 12 / 4.0, md.NStar, 0.02);
+        Assert.Equal(12, md.NReh);
+        Assert.True(md.TRehGeV < inst.TRehGeV * Math.Exp(-2.9 * 3 / 4.0 * 12 / 3.0) * 10);
+    }
+
+    [Fact]
+    public void RadiationLikeReheatingDoesNotMoveNStar()
+    {
+        // physics.md section 5: for w = 1/3, -N_reh + ln a_reh = -(1/4) ln rho_end + const, independent of T_reh.
+        var inst = Match(new PivotSettings());
+        var rad = Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(1.0 / 3.0, 1e6) });
+        Assert.Equal(inst.NStar, rad.NStar, 1e-5);
+        Assert.Equal(Math.Log(inst.TRehGeV / 1e6), rad.NReh, 1e-5);
+    }
+
+    [Fact]
+    public void TemperatureInputMatchesEFoldInput()
+    {
+        var t = Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0.0, 1e9) });
+        var n = Match(new PivotSettings { Reheating = ReheatingHistory.WithEFolds(0.0, t.NReh) });
+        Assert.Equal(t.NStar, n.NStar, 1e-6);
+        Assert.Equal(1e9, n.TRehGeV, 1e9 * 1e-8);
+    }
+
+    [Fact]
+    public void EnergyScaleFollowsFromAsAndR()
+    {
+        // physics.md 4f: V_* = (3 pi^2/2) A_s r. From H^2 = V/(3 - e1), P_s = H^2/(8 pi^2 e1)(1 - 2(C+1) e1 - C e2) and
+        // r = 16 e1 (1 + C e2) the identity holds up to e1/3 and (C e2)^2 ~ 1e-3 in V, so ~3e-4 in V^(1/4): we allow 1e-3.
+        var m = Match(new PivotSettings());
+        double r = m.PivotSlowRoll.SecondOrder.R;
+        double expected = Math.Pow(1.5 * Math.PI * Math.PI * m.PsPivot * r, 0.25) * Constants.ReducedPlanckMassGeV;
+        Assert.Equal(1.0, m.VStarQuarterGeV / expected, 1e-3);
+        // and the common-practice rule of thumb V^(1/4) = 1.0e16 GeV (r/0.01)^(1/4) to its quoted two digits
+        Assert.Equal(1.0, m.VStarQuarterGeV / (1.0e16 * Math.Pow(r / 0.01, 0.25)), 0.02);
+    }
+
+    [Fact]
+    public void GivenEFoldsAndNoNormalisation()
+    {
+        var m = Match(new PivotSettings { EFolds = 60 });
+        Assert.Equal(60, m.NStar);
+        Assert.True(double.IsNaN(m.NReh));
+        Assert.Equal(Constants.DefaultScalarAmplitude, m.PsPivot, 1e-20);
+        var raw = Match(new PivotSettings { EFolds = 60, ScalarAmplitude = null });
+        Assert.Equal(1.0, raw.VScale);
+        Assert.Equal("none", raw.AmplitudeName);
+        // k unit: the pivot's aH in background units is k_* exp(LnKUnit)
+        Assert.Equal(Math.Exp(raw.NPivot) * raw.HStar, raw.ToBackgroundUnits(0.05), 1e-9 * raw.ToBackgroundUnits(0.05));
+    }
+
+    [Fact]
+    public void Errors()
+    {
+        var bg = StarobinskyBg.Value;
+        var amp = new SlowRollAmplitude();
+        Assert.Contains("Fewer e-folds than N_* needs", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal + 1 }, amp)).Message);
+        var shortBg = BackgroundSolverTests.Solve(new Starobinsky(), 4.0, after: 0);
+        Assert.Contains("Fewer e-folds than N_* needs", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(shortBg, new PivotSettings(), amp)).Message);
+        Assert.Contains("outside the range the background serves", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal - 1 }, amp)).Message);
+        Assert.Contains("w = -0.5 is outside", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(-0.5, 1e9) })).Message);
+        Assert.Contains("below 0.01 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e-3) })).Message);
+        Assert.Contains("above the temperature at the end of inflation", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e18) })).Message);
+        Assert.Contains("below 0.01 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithEFolds(0, 200) })).Message);
+    }
+}
