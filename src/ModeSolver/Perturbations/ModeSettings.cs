@@ -45,8 +45,8 @@ public sealed record ModeSettings
     /// <summary>Step budget of one mode.</summary>
     public int MaxSteps { get; init; } = 20_000;
 
-    /// <summary>Ratio of the integrator's relative tolerance to <see cref="Tolerance"/> (default 0.1).</summary>
-    public double StepToleranceRatio { get; init; } = 0.1;
+    /// <summary>Ratio of the integrator's relative tolerance to <see cref="Tolerance"/> (default 0.5).</summary>
+    public double StepToleranceRatio { get; init; } = 0.5;
 
     internal void Validate()
     {
@@ -60,7 +60,7 @@ public sealed record ModeSettings
 
     /// <summary>The start depth actually used.</summary>
     public double EffectiveStartDepth => StartDepth != 0 ? StartDepth
-        : InitialData == InitialDataKind.LocalIndexHankel ? Math.Max(4.0, Math.Min(40.0, 5.0 * Math.Pow(1e-6 / Tolerance, 1.0 / 3.0)))
+        : InitialData == InitialDataKind.LocalIndexHankel ? Math.Max(4.0, Math.Min(40.0, 7.0 * Math.Pow(1e-6 / Tolerance, 1.0 / 3.0)))
         : Math.Max(5.0, Math.Min(400.0, 50.0 * Math.Sqrt(1e-5 / Tolerance)));
 
     /// <summary>The stop depth actually used.</summary>
@@ -89,6 +89,8 @@ public sealed record ModeResult(
 {
     /// <summary>r = P_t / P_s.</summary>
     public double R => Pt / Ps;
+    /// <summary>d n_t / d ln k (NaN without derivatives).</summary>
+    public double AlphaT { get; init; } = double.NaN;
     /// <summary>n_s = 1 + d ln P_s / d ln k.</summary>
     public double Ns => 1.0 + NsMinusOne;
 }
