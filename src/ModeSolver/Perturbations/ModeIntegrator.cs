@@ -33,6 +33,7 @@ public sealed class ModeIntegrator
     // Stop test state of the current mode.
     private double _nStopCandidate, _stopTol;
     private FrictionScan? _scan;
+    private double _segLo = double.NegativeInfinity, _segHi = double.PositiveInfinity;
     private bool _frozen;
     private double _stopCorrection;
 
@@ -60,7 +61,7 @@ public sealed class ModeIntegrator
         double xs = settings.EffectiveStartDepth;
         double xStop = settings.EffectiveStopDepth;
         double nEnd = background.NEnd;
-        double n0 = StartTime(xs);
+        double n0 = StartTime(ref xs, settings.Tolerance, settings.InitialData);
         double xEnd = Math.Exp(_lnK - nEnd) / background.At(nEnd).H;
         if (xEnd > xStop)
             throw new PhysicsException($"mode k = {k:G6} is still at k/aH = {xEnd:G3} at the end of inflation (N = {nEnd:G8}); it must reach k/aH <= {xStop:G3}: the largest k allowed is {k * xStop / xEnd:G6}");
@@ -106,16 +107,25 @@ public sealed class ModeIntegrator
     /// </summary>
     private double InitialDataError(double n0, double xs, InitialDataKind kind)
     {
-        double h = Math.Min(0.05, 0.5 * (n0 - _bg.NStart) + 1e-6);
+        // Difference quotient of nu over +-h, one-sided where a non-smooth point or an end of the background is near.
+        double h = 0.05;
+        double lo = Math.Max(_bg.NStart, n0 - h), hi = Math.Min(_bg.NEnd, n0 + h);
+        var ns = _bg.NonSmoothTimes;
+        for (int i = 0; i < ns.Count; i++)
+        {
+            if (ns[i] > n0 && ns[i] < hi) hi = n0;
+            if (ns[i] <= n0 && ns[i] > lo) lo = n0;
+        }
+        if (!(hi > lo)) return 0.0;
         double dNu = 0, dev = 0;
         if (_scalar)
         {
-            dNu = Math.Max(dNu, Math.Abs(ScalarIndex(n0 + h) - ScalarIndex(n0 - h)) / (2 * h));
+            dNu = Math.Max(dNu, Math.Abs(ScalarIndex(hi) - ScalarIndex(lo)) / (hi - lo));
             dev = Math.Max(dev, Math.Abs(ScalarIndex(n0) - 1.5));
         }
         if (_tensor)
         {
-            dNu = Math.Max(dNu, Math.Abs(TensorIndex(n0 + h) - TensorIndex(n0 - h)) / (2 * h));
+            dNu = Math.Max(dNu, Math.Abs(TensorIndex(hi) - TensorIndex(lo)) / (hi - lo));
             dev = Math.Max(dev, Math.Abs(TensorIndex(n0) - 1.5));
         }
         return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : dev / (xs * xs) + dNu / (xs * xs * xs);
@@ -137,6 +147,8 @@ public sealed class ModeIntegrator
     private double Integrate(double from, double to, OdeOptions options, double k)
     {
         if (!(to > from)) return from;
+        _segLo = from;
+        _segHi = to;
         var problem = new OdeProblem(_rhs, from, _y.AsSpan(0, _dim).ToArray(), to);
         OdeSolution sol;
         try
@@ -172,7 +184,7 @@ public sealed class ModeIntegrator
     {
         Setup(background, k, settings);
         double xs = settings.EffectiveStartDepth;
-        double n0 = StartTime(xs);
+        double n0 = StartTime(ref xs, settings.Tolerance, settings.InitialData);
         if (!(nTarget >= n0 && nTarget <= background.NEnd))
             throw new ArgumentOutOfRangeException(nameof(nTarget), nTarget, $"target N must lie in [{n0:G8}, {background.NEnd:G8}]");
         SetInitialData(n0, settings.InitialData);
@@ -226,8 +238,14 @@ public sealed class ModeIntegrator
         Array.Clear(_y);
     }
 
-    /// <summary>The N where k/aH = <paramref name="depth"/>; throws <see cref="PhysicsException"/> when the background starts too late.</summary>
-    private double StartTime(double depth)
+    /// <summary>
+    /// Where the mode starts: where k/aH = <paramref name="depth"/>, deeper while the estimated truncation of the
+    /// local-index data exceeds half the tolerance (a background that changes quickly there), and before any
+    /// non-smooth point the mode would otherwise start after while still inside the horizon (a kink excites modes
+    /// deep inside the horizon with amplitude ~ 1/(k/aH); local vacuum data after it would miss that).
+    /// Throws <see cref="PhysicsException"/> when the background starts too late.
+    /// </summary>
+    private double StartTime(ref double depth, double tol, InitialDataKind kind)
     {
         double nA = _bg.NStart;
         double lnDepthA = LnDepth(nA);
@@ -237,15 +255,40 @@ public sealed class ModeIntegrator
             throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} cannot start at k/aH = {depth:G3}: the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}; the smallest k allowed is {kMin:G6} (start the field further up the potential or raise kMin)");
         }
         double n = DepthTime(depth, nA);
-        // Keep the finite-difference stencil of the initial data (+-0.02/x) inside the background and away from
-        // non-smooth points (start slightly later, i.e. a little shallower, when needed).
-        double margin = 0.025 / Math.Max(1.0, depth);
-        n = Math.Max(n, _bg.NStart + margin);
+        for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > 0.5 * tol; it++)
+        {
+            double deeper = depth * 1.5;
+            if (lnDepthA < Math.Log(deeper)) break;
+            depth = deeper;
+            n = DepthTime(depth, nA);
+        }
         var ns = _bg.NonSmoothTimes;
         for (int i = 0; i < ns.Count; i++)
-            if (Math.Abs(ns[i] - n) < margin) n = ns[i] + margin;
+        {
+            double t = ns[i];
+            double xt = Math.Exp(LnDepth(t));
+            if (t > nA && t < n + 0.025 && xt <= MaxKinkDepth)
+            {
+                double margin = 0.025 / Math.Max(1.0, xt);
+                if (t - margin > nA + margin)
+                {
+                    n = t - margin;
+                    depth = Math.Exp(LnDepth(n));
+                }
+                break;
+            }
+        }
+        // Keep the finite-difference stencil of the initial data (+-0.02/x) inside the background and off non-smooth points.
+        double m = 0.025 / Math.Max(1.0, depth);
+        n = Math.Max(n, nA + m);
+        for (int i = 0; i < ns.Count; i++)
+            if (Math.Abs(ns[i] - n) < m) n = ns[i] - m > nA + m ? ns[i] - m : ns[i] + m;
+        depth = Math.Exp(LnDepth(n));
         return Math.Min(n, _bg.NEnd);
     }
+
+    /// <summary>Modes deeper than this inside the horizon at a non-smooth point are not started before it (cost grows with the depth).</summary>
+    internal const double MaxKinkDepth = 500;
 
     /// <summary>The first N after <paramref name="nFrom"/> where k/aH = <paramref name="depth"/> (NEnd when never).</summary>
     private double DepthTime(double depth, double nFrom)
@@ -435,7 +478,11 @@ public sealed class ModeIntegrator
     private void Rhs(double n, ReadOnlySpan<double> y, Span<double> dy)
     {
         _rhsCount++;
-        var p = _bg.At(n);
+        // Evaluate the background strictly inside the current segment, so that at a restart after a non-smooth
+        // point the first stage sees the new side (e2 jumps there).
+        double eps = 1e-10 * Math.Max(1.0, Math.Abs(n));
+        double ne = n - _segLo < eps ? _segLo + eps : _segHi - n < eps ? _segHi - eps : n;
+        var p = _bg.At(Math.Min(ne, _bg.NStop));
         double x = Math.Exp(_lnK - n) / p.H;
         double x2 = x * x;
         if (_scalar)
