@@ -1,0 +1,624 @@
+using System.Numerics;
+using ModeSolver.Background;
+using MathNet.Numerics;
+using ModeSolver.Integrators;
+using ModeSolver.Physics;
+
+namespace ModeSolver.Perturbations;
+
+/// <summary>
+/// Integrates one Fourier mode of the scalar (zeta) and tensor (h = 2u/a) perturbations in e-folds, with their first
+/// and second derivatives with respect to ln k (sensitivity equations), from local-index Hankel Bunch-Davies data to
+/// freeze-out. Equations (physics.md 3):
+///   zeta'' + (3 - e1 + e2) zeta' + x^2 zeta = 0,  h'' + (3 - e1) h' + x^2 h = 0,  x = k/(aH);
+///   d/dln k: Z1'' + F Z1' + x^2 Z1 = -2 x^2 Z0;  Z2'' + F Z2' + x^2 Z2 = -4 x^2 (Z1 + Z0).
+/// The zeta form needs no e3 and keeps zeta, zeta' continuous where V_phi jumps (e2 jumps but stays finite).
+/// A reusable, single-threaded workspace: keep one per thread. The right-hand side does not allocate.
+/// </summary>
+public sealed class ModeIntegrator
+{
+    private const int MaxDim = 24;
+    private readonly double[] _y = new double[MaxDim];
+    private readonly double[] _k1 = new double[MaxDim];
+    private readonly IOdeMethod _method;
+    private readonly RightHandSide _rhs;
+    private readonly StepObserver _observer;
+
+    private IBackground _bg = null!;
+    private double _lnK;
+    private bool _scalar, _tensor, _derivs;
+    private int _dim, _tOff, _blockS, _blockT;
+    private int _rhsCount, _steps;
+    private double _scaleS = 1, _scaleT = 1;
+    // Stop test state of the current mode.
+    private double _nStopCandidate, _stopTol;
+    private FrictionScan? _scan;
+    private double _segLo = double.NegativeInfinity, _segHi = double.PositiveInfinity;
+    private bool _frozen;
+    private double _stopCorrection;
+
+    /// <summary>A workspace integrating with <paramref name="method"/> (default: the library's DOP853, which needs the
+    /// fewest right-hand sides here; see notes/modes.md).</summary>
+    public ModeIntegrator(IOdeMethod? method = null)
+    {
+        _method = method ?? new DormandPrince853();
+        _rhs = Rhs;
+        _observer = Observe;
+    }
+
+    /// <summary>Right-hand-side evaluations of the last integration.</summary>
+    public int RhsEvaluations => _rhsCount;
+
+    /// <summary>
+    /// Integrates the mode <paramref name="k"/> to freeze-out (or NEnd) and returns P_s, P_t and their exact log-derivatives.
+    /// <paramref name="scan"/> may be shared between modes of one background (built on demand when null).
+    /// Throws <see cref="PhysicsException"/> when the background cannot serve k (cannot start deep enough, or k has not
+    /// left the horizon far enough by the end of inflation).
+    /// </summary>
+    public ModeResult Solve(IBackground background, double k, ModeSettings settings, FrictionScan? scan = null)
+    {
+        Setup(background, k, settings);
+        double xs = settings.EffectiveStartDepth;
+        double xStop = settings.EffectiveStopDepth;
+        double nEnd = background.NEnd;
+        double n0 = StartTime(ref xs, settings.Tolerance, settings.InitialData);
+        double xEnd = Math.Exp(_lnK - nEnd) / background.At(nEnd).H;
+        if (xEnd > xStop)
+            throw new PhysicsException($"mode k = {k:G6} is still at k/aH = {xEnd:G3} at the end of inflation (N = {nEnd:G8}); it must reach k/aH <= {xStop:G3}: the largest k allowed is {k * xStop / xEnd:G6}");
+        SetInitialData(n0, settings.InitialData);
+        _stopTol = settings.Tolerance;
+        _scan = scan;
+        _frozen = false;
+        _stopCorrection = 0;
+        _nStopCandidate = DepthTime(xStop, n0);
+        var options = new OdeOptions
+        {
+            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            DenseOutput = false,
+            MaxSteps = settings.MaxSteps,
+            Observer = _observer,
+        };
+        double n = n0;
+        var nonSmooth = background.NonSmoothTimes;
+        int seg = 0;
+        while (seg < nonSmooth.Count && nonSmooth[seg] <= n0) seg++;
+        while (true)
+        {
+            double segEnd = seg < nonSmooth.Count && nonSmooth[seg] < nEnd ? nonSmooth[seg] : nEnd;
+            n = Integrate(n, segEnd, options, k);
+            if (_frozen || segEnd >= nEnd) break;
+            seg++; // restart exactly at the non-smooth point (the state zeta, zeta' is continuous there)
+        }
+        if (_frozen) ApplyFreeze();
+        double xf = Math.Exp(_lnK - n) / background.At(n).H;
+        double err = IntegratorErrorFactor * options.RelativeTolerance + 0.1 * _stopCorrection + InitialDataError(n0, xs, settings.InitialData);
+        return Results(k, n0, n, xs, xf, _frozen, err);
+    }
+
+    /// <summary>Global error of the integration relative to the step tolerance (measured about 0.01 on the benchmark modes; 10x margin).</summary>
+    internal const double IntegratorErrorFactor = 0.1;
+
+    /// <summary>
+    /// Truncation of the initial data. The local-index Hankel data are exact for constant nu (power law); their error
+    /// follows the drift of the index and falls like the cube of the start depth: about 0.2 |d nu/dN| / x^3 measured
+    /// on the quadratic model (x = 4..23); reported with a factor 5 margin. The quasi-de Sitter data leave
+    /// about |nu - 3/2| / x^2 (physics.md 3 figures).
+    /// </summary>
+    private double InitialDataError(double n0, double xs, InitialDataKind kind)
+    {
+        // Difference quotient of nu over +-h, one-sided where a non-smooth point or an end of the background is near.
+        double h = 0.05;
+        double lo = Math.Max(_bg.NStart, n0 - h), hi = Math.Min(_bg.NEnd, n0 + h);
+        var ns = _bg.NonSmoothTimes;
+        for (int i = 0; i < ns.Count; i++)
+        {
+            if (ns[i] > n0 && ns[i] < hi) hi = n0;
+            if (ns[i] <= n0 && ns[i] > lo) lo = n0;
+        }
+        if (!(hi > lo)) return 0.0;
+        double dNu = 0, dev = 0;
+        if (_scalar)
+        {
+            dNu = Math.Max(dNu, Math.Abs(ScalarIndex(hi) - ScalarIndex(lo)) / (hi - lo));
+            dev = Math.Max(dev, Math.Abs(ScalarIndex(n0) - 1.5));
+        }
+        if (_tensor)
+        {
+            dNu = Math.Max(dNu, Math.Abs(TensorIndex(hi) - TensorIndex(lo)) / (hi - lo));
+            dev = Math.Max(dev, Math.Abs(TensorIndex(n0) - 1.5));
+        }
+        return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : dev / (xs * xs) + dNu / (xs * xs * xs);
+    }
+
+    private double ScalarIndex(double n)
+    {
+        var p = _bg.At(n);
+        double e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
+        return IndexFrom(2.0 - e1 + 1.5 * e2 - 0.5 * e1 * e2 + 0.25 * e2 * e2 + 0.5 * e2 * e3, 1.0 - e1);
+    }
+
+    private double TensorIndex(double n)
+    {
+        var p = _bg.At(n);
+        return IndexFrom(2.0 - p.Epsilon1, 1.0 - p.Epsilon1);
+    }
+
+    private double Integrate(double from, double to, OdeOptions options, double k)
+    {
+        if (!(to > from)) return from;
+        _segLo = from;
+        _segHi = to;
+        var problem = new OdeProblem(_rhs, from, _y.AsSpan(0, _dim).ToArray(), to);
+        OdeSolution sol;
+        try
+        {
+            sol = _method.Solve(problem, options with { MaxSteps = Math.Max(10, options.MaxSteps - _steps) });
+        }
+        catch (IntegrationException e)
+        {
+            throw new PhysicsException($"mode k = {k:G6}: the integration broke down at N = {e.T:G8} ({e.Failure}); check the background there", e);
+        }
+        _steps += sol.Statistics.AcceptedSteps + sol.Statistics.RejectedSteps;
+        Array.Copy(sol.FinalState, _y, _dim);
+        return sol.TFinal;
+    }
+
+    /// <summary>Step observer: after x &lt;= stop depth, tests the freeze-out criterion (one extra right-hand side per test, counted).</summary>
+    private bool Observe(double n, ReadOnlySpan<double> y)
+    {
+        if (n < _nStopCandidate) return false;
+        y.CopyTo(_y);
+        var p = _bg.At(n);
+        double x = Math.Exp(_lnK - n) / p.H;
+        _scan ??= FrictionScan.Build(_bg, n);
+        if (!(x * x * Math.Exp(_scan.LogGrowthAfter(n)) <= _stopTol)) return false;
+        Rhs(n, _y, _k1);
+        if (!TryFreeze(_stopTol, out _stopCorrection)) return false;
+        _frozen = true;
+        return true;
+    }
+
+    /// <summary>Integrates the mode from its start to <paramref name="nTarget"/> (no stop) and returns zeta, zeta', h, h' there (unscaled).</summary>
+    public ModeSnapshot EvolveTo(IBackground background, double k, double nTarget, ModeSettings settings)
+    {
+        Setup(background, k, settings);
+        double xs = settings.EffectiveStartDepth;
+        double n0 = StartTime(ref xs, settings.Tolerance, settings.InitialData);
+        if (!(nTarget >= n0 && nTarget <= background.NEnd))
+            throw new ArgumentOutOfRangeException(nameof(nTarget), nTarget, $"target N must lie in [{n0:G8}, {background.NEnd:G8}]");
+        SetInitialData(n0, settings.InitialData);
+        var options = new OdeOptions
+        {
+            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            DenseOutput = false,
+            MaxSteps = settings.MaxSteps,
+        };
+        double n = n0;
+        var nonSmooth = background.NonSmoothTimes;
+        while (n < nTarget)
+        {
+            double segEnd = nTarget;
+            for (int i = 0; i < nonSmooth.Count; i++)
+                if (nonSmooth[i] > n && nonSmooth[i] < segEnd) { segEnd = nonSmooth[i]; break; }
+            n = Integrate(n, segEnd, options, k);
+        }
+        Complex z = Complex.NaN, dz = Complex.NaN, t = Complex.NaN, dt = Complex.NaN;
+        if (_scalar)
+        {
+            z = new Complex(_y[0], _y[1]) / _scaleS;
+            dz = new Complex(_y[2], _y[3]) / _scaleS;
+        }
+        if (_tensor)
+        {
+            t = new Complex(_y[_tOff], _y[_tOff + 1]) / _scaleT;
+            dt = new Complex(_y[_tOff + 2], _y[_tOff + 3]) / _scaleT;
+        }
+        return new ModeSnapshot(k, n, z, dz, t, dt, _rhsCount);
+    }
+
+    private void Setup(IBackground background, double k, ModeSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(background);
+        ArgumentNullException.ThrowIfNull(settings);
+        settings.Validate();
+        if (!(k > 0) || double.IsInfinity(k)) throw new ArgumentOutOfRangeException(nameof(k), k, "wavenumber must be positive and finite");
+        _bg = background;
+        _lnK = Math.Log(k);
+        _scalar = (settings.Kinds & ModeKinds.Scalar) != 0;
+        _tensor = (settings.Kinds & ModeKinds.Tensor) != 0;
+        _derivs = settings.Derivatives;
+        _blockS = _scalar ? (_derivs ? 12 : 4) : 0;
+        _blockT = _tensor ? (_derivs ? 12 : 4) : 0;
+        _tOff = _blockS;
+        _dim = _blockS + _blockT;
+        _rhsCount = 0;
+        _steps = 0;
+        Array.Clear(_y);
+    }
+
+    /// <summary>
+    /// Where the mode starts: where k/aH = <paramref name="depth"/>, deeper while the estimated truncation of the
+    /// local-index data exceeds half the tolerance (a background that changes quickly there), and before any
+    /// non-smooth point the mode would otherwise start after while still inside the horizon (a kink excites modes
+    /// deep inside the horizon with amplitude ~ 1/(k/aH); local vacuum data after it would miss that).
+    /// Throws <see cref="PhysicsException"/> when the background starts too late.
+    /// </summary>
+    private double StartTime(ref double depth, double tol, InitialDataKind kind)
+    {
+        double nA = _bg.NStart;
+        double lnDepthA = LnDepth(nA);
+        if (lnDepthA < Math.Log(depth))
+        {
+            double kMin = depth * Math.Exp(nA) * _bg.At(nA).H;
+            throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} cannot start at k/aH = {depth:G3}: the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}; the smallest k allowed is {kMin:G6} (start the field further up the potential or raise kMin)");
+        }
+        double n = DepthTime(depth, nA);
+        for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > 0.5 * tol; it++)
+        {
+            double deeper = depth * 1.5;
+            if (lnDepthA < Math.Log(deeper)) break;
+            depth = deeper;
+            n = DepthTime(depth, nA);
+        }
+        var ns = _bg.NonSmoothTimes;
+        for (int i = 0; i < ns.Count; i++)
+        {
+            double t = ns[i];
+            double xt = Math.Exp(LnDepth(t));
+            if (t > nA && t < n + 0.025 && xt <= MaxKinkDepth)
+            {
+                double margin = 0.025 / Math.Max(1.0, xt);
+                if (t - margin > nA + margin)
+                {
+                    n = t - margin;
+                    depth = Math.Exp(LnDepth(n));
+                }
+                break;
+            }
+        }
+        // Keep the finite-difference stencil of the initial data (+-0.02/x) inside the background and off non-smooth points.
+        double m = 0.025 / Math.Max(1.0, depth);
+        n = Math.Max(n, nA + m);
+        for (int i = 0; i < ns.Count; i++)
+            if (Math.Abs(ns[i] - n) < m) n = ns[i] - m > nA + m ? ns[i] - m : ns[i] + m;
+        depth = Math.Exp(LnDepth(n));
+        return Math.Min(n, _bg.NEnd);
+    }
+
+    /// <summary>Modes deeper than this inside the horizon at a non-smooth point are not started before it (cost grows with the depth).</summary>
+    internal const double MaxKinkDepth = 500;
+
+    /// <summary>The first N after <paramref name="nFrom"/> where k/aH = <paramref name="depth"/> (NEnd when never).</summary>
+    private double DepthTime(double depth, double nFrom)
+    {
+        double lnTarget = Math.Log(depth);
+        double nA = nFrom, nB = _bg.NEnd;
+        double fA = LnDepth(nA) - lnTarget;
+        if (fA <= 0) return nA;
+        if (LnDepth(nB) - lnTarget > 0) return nB;
+        // Newton on ln(k/aH) with d/dN = -(1 - e1), safeguarded by the bracket.
+        double n = nA + fA / Math.Max(0.05, 1.0 - _bg.At(nA).Epsilon1);
+        for (int it = 0; it < 100; it++)
+        {
+            if (!(n > nA && n < nB)) n = 0.5 * (nA + nB);
+            var p = _bg.At(n);
+            double f = _lnK - n - Math.Log(p.H) - lnTarget;
+            if (f > 0) nA = n; else nB = n;
+            double step = f / Math.Max(0.05, 1.0 - p.Epsilon1);
+            n += step;
+            if (Math.Abs(step) < 1e-13 * Math.Max(1.0, Math.Abs(n)) || nB - nA < 1e-13 * Math.Max(1.0, Math.Abs(n))) break;
+        }
+        return Math.Clamp(n, nFrom, _bg.NEnd);
+    }
+
+    private double LnDepth(double n) => _lnK - n - Math.Log(_bg.At(n).H);
+
+    // Frozen local data at one N: [0..5] zeta, zeta', zeta_k, zeta_k', zeta_kk, zeta_kk'; [6..11] the same for h.
+    private const int DataWidth = 12;
+    private readonly Complex[] _data = new Complex[9 * DataWidth];
+    private readonly double[] _dataX2 = new double[9];
+    private readonly double[] _dataF = new double[9];
+    private readonly double[] _dataFt = new double[9];
+    private readonly double[] _dataC = new double[9];
+
+    /// <summary>
+    /// Bunch-Davies data at <paramref name="n0"/>. Without derivatives: the frozen local-index Hankel solution.
+    /// With derivatives: the k-derivatives are TOTAL derivatives along the start path x(N0(k)) = const, so that the
+    /// computed n_s, alpha_s are the exact derivatives of the computed P(k) (which is smooth in k because every mode
+    /// starts at the same depth). A fixed-N0 derivative would differentiate the small initial-data mismatch
+    /// ~ exp(2i k tau0) and amplify it by (2 k/aH)^j. Moving N0 by dN0 = c dln k, c = 1/(1 - e1), adds
+    /// c (d/dN data - f(data)) (the defect of the data as a solution) to the next derivative block; the N-derivatives
+    /// of the data are 5-point central differences in N (no right-hand-side calls).
+    /// </summary>
+    private void SetInitialData(double n0, InitialDataKind kind)
+    {
+        if (!_derivs)
+        {
+            LocalData(n0, kind, _data.AsSpan(0, DataWidth), out _, out _, out _, out _);
+            if (_scalar) { Put(0, _data[0], _data[1]); }
+            if (_tensor) { Put(_tOff, _data[6], _data[7]); }
+        }
+        else
+        {
+            double x0 = Math.Exp(_lnK - n0) / _bg.At(n0).H;
+            double dn = 0.005 / Math.Max(1.0, x0); // stencil +-4 dn; balances truncation (dn x)^4 against round-off
+            for (int j = 0; j < 9; j++)
+                LocalData(n0 + (j - 4) * dn, kind, _data.AsSpan(j * DataWidth, DataWidth), out _dataX2[j], out _dataF[j], out _dataFt[j], out _dataC[j]);
+            double c = _dataC[4];
+            if (_scalar) DerivativeBlocks(0, 0, _dataF, dn, c);
+            if (_tensor) DerivativeBlocks(6, _tOff, _dataFt, dn, c);
+        }
+        double xs = Math.Exp(_lnK - n0) / _bg.At(n0).H;
+        if (_scalar)
+        {
+            _scaleS = xs / Math.Sqrt(_y[0] * _y[0] + _y[1] * _y[1]); // |zeta| of order 1 after horizon exit
+            for (int i = 0; i < _blockS; i++) _y[i] *= _scaleS;
+        }
+        if (_tensor)
+        {
+            _scaleT = xs / Math.Sqrt(_y[_tOff] * _y[_tOff] + _y[_tOff + 1] * _y[_tOff + 1]);
+            for (int i = _tOff; i < _dim; i++) _y[i] *= _scaleT;
+        }
+    }
+
+    /// <summary>Value, first and second total ln k derivative blocks for the quantity whose data start at <paramref name="d"/>.</summary>
+    private void DerivativeBlocks(int d, int off, double[] fr, double dn, double c)
+    {
+        int c0 = 4 * DataWidth;
+        Span<Complex> z1 = stackalloc Complex[10]; // Z1 (value, derivative) at j = 2..6 (offsets -2..2)
+        for (int j = 2; j <= 6; j++)
+        {
+            int o = j * DataWidth + d;
+            Complex rho0 = D5(d, j, dn) - _data[o + 1];
+            Complex rho1 = D5(d + 1, j, dn) - (-fr[j] * _data[o + 1] - _dataX2[j] * _data[o]);
+            z1[2 * (j - 2)] = _data[o + 2] + _dataC[j] * rho0;
+            z1[2 * (j - 2) + 1] = _data[o + 3] + _dataC[j] * rho1;
+        }
+        // d/dln k of Z1 at fixed N, then the defect sigma of Z1 as a solution of the first sensitivity equation.
+        int b = c0 + d;
+        Complex krho0 = D5(d + 2, 4, dn) - _data[b + 3];
+        Complex krho1 = D5(d + 3, 4, dn) - (-fr[4] * _data[b + 3] - _dataX2[4] * (_data[b + 2] + 2.0 * _data[b]));
+        Complex z1v = z1[4], z1d = z1[5];
+        Complex dz1v = (z1[0] - 8.0 * z1[2] + 8.0 * z1[6] - z1[8]) / (12.0 * dn);
+        Complex dz1d = (z1[1] - 8.0 * z1[3] + 8.0 * z1[7] - z1[9]) / (12.0 * dn);
+        Complex sig0 = dz1v - z1d;
+        Complex sig1 = dz1d - (-fr[4] * z1d - _dataX2[4] * (z1v + 2.0 * _data[b]));
+        Put(off, _data[b], _data[b + 1]);
+        Put(off + 4, z1v, z1d);
+        Put(off + 8, _data[b + 4] + c * krho0 + c * sig0, _data[b + 5] + c * krho1 + c * sig1);
+    }
+
+    /// <summary>5-point central N-derivative of data component <paramref name="comp"/> at grid point <paramref name="j"/>.</summary>
+    private Complex D5(int comp, int j, double dn) =>
+        (_data[(j - 2) * DataWidth + comp] - 8.0 * _data[(j - 1) * DataWidth + comp]
+         + 8.0 * _data[(j + 1) * DataWidth + comp] - _data[(j + 2) * DataWidth + comp]) / (12.0 * dn);
+
+    /// <summary>The frozen local-index solution at N and its k-derivatives at fixed N (unscaled).</summary>
+    private void LocalData(double n, InitialDataKind kind, Span<Complex> d, out double x2, out double f, out double ft, out double c)
+    {
+        var p = _bg.At(n);
+        double e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
+        if (!(e1 < 1)) throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} would start at N = {n:G8} where epsilon_1 = {e1:G4} >= 1 (not inflating); choose a larger kMin or start the background earlier");
+        double oneMinus = 1.0 - e1;
+        double x = Math.Exp(_lnK - n) / p.H;
+        x2 = x * x;
+        f = 3.0 - e1 + e2;
+        ft = 3.0 - e1;
+        c = 1.0 / oneMinus;
+        double bigX = x / oneMinus; // -k tau
+        double lnMinusTau = -n - Math.Log(oneMinus * p.H); // ln(-tau) = -ln((1 - e1) a H)
+        Span<Complex> g = stackalloc Complex[4];
+        if (_scalar)
+        {
+            if (!(e1 > 0)) throw new PhysicsException($"scalar modes need epsilon_1 > 0 (found {e1:G4} at N = {n:G8}); use tensor modes only on de Sitter");
+            double nu = kind == InitialDataKind.QuasiDeSitter ? 1.5
+                : IndexFrom(2.0 - e1 + 1.5 * e2 - 0.5 * e1 * e2 + 0.25 * e2 * e2 + 0.5 * e2 * e3, oneMinus);
+            HankelDerivatives(nu, bigX, g);
+            // zeta = v / z, z = a sqrt(2 e1), z'/z = 1 + e2/2.
+            Complex cn = Normalisation(nu, lnMinusTau, n + 0.5 * Math.Log(2.0 * e1));
+            double zp = 1.0 + 0.5 * e2;
+            for (int j = 0; j < 3; j++)
+            {
+                Complex v = cn * g[j];
+                Complex dv = -oneMinus * cn * (0.5 * g[j] + g[j + 1]);
+                d[2 * j] = v;
+                d[2 * j + 1] = dv - zp * v;
+            }
+        }
+        if (_tensor)
+        {
+            double nu = kind == InitialDataKind.QuasiDeSitter ? 1.5 : IndexFrom(2.0 - e1, oneMinus);
+            HankelDerivatives(nu, bigX, g);
+            // h = 2u/a, h' = 2(u' - u)/a.
+            Complex cn = Normalisation(nu, lnMinusTau, n - Math.Log(2.0));
+            for (int j = 0; j < 3; j++)
+            {
+                Complex u = cn * g[j];
+                Complex du = -oneMinus * cn * (0.5 * g[j] + g[j + 1]);
+                d[6 + 2 * j] = u;
+                d[6 + 2 * j + 1] = du - u;
+            }
+        }
+    }
+
+    private static double IndexFrom(double u, double oneMinusE1)
+    {
+        double nu2 = u / (oneMinusE1 * oneMinusE1) + 0.25;
+        return Math.Sqrt(Math.Max(nu2, 0.0));
+    }
+
+    /// <summary>(sqrt(pi)/2) exp(i (nu + 1/2) pi/2) sqrt(-tau) / z, the factor of H_nu in zeta (or of h with z = a/2).</summary>
+    private static Complex Normalisation(double nu, double lnMinusTau, double lnZ) =>
+        Complex.FromPolarCoordinates(0.5 * Math.Sqrt(Math.PI) * Math.Exp(0.5 * lnMinusTau - lnZ), (nu + 0.5) * Math.PI / 2);
+
+    /// <summary>g[j] = (X d/dX)^j H^(1)_nu(X), j = 0..3, from the Bessel equation: D^2 H = (nu^2 - X^2) H.</summary>
+    internal static void HankelDerivatives(double nu, double bigX, Span<Complex> g)
+    {
+        Complex hn = SpecialFunctions.HankelH1(nu, new Complex(bigX, 0));
+        Complex hp = SpecialFunctions.HankelH1(nu + 1.0, new Complex(bigX, 0));
+        // H'_nu = (nu/X) H_nu - H_{nu+1}  =>  X H' = nu H_nu - X H_{nu+1}
+        Complex d1 = nu * hn - bigX * hp;
+        double q = nu * nu - bigX * bigX;
+        g[0] = hn;
+        g[1] = d1;
+        g[2] = q * hn;
+        g[3] = -2.0 * bigX * bigX * hn + q * d1;
+    }
+
+    private void Put(int off, Complex f, Complex df)
+    {
+        _y[off] = f.Real;
+        _y[off + 1] = f.Imaginary;
+        _y[off + 2] = df.Real;
+        _y[off + 3] = df.Imaginary;
+    }
+
+    private void Rhs(double n, ReadOnlySpan<double> y, Span<double> dy)
+    {
+        _rhsCount++;
+        // Evaluate the background strictly inside the current segment, so that at a restart after a non-smooth
+        // point the first stage sees the new side (e2 jumps there).
+        double eps = 1e-10 * Math.Max(1.0, Math.Abs(n));
+        double ne = n - _segLo < eps ? _segLo + eps : _segHi - n < eps ? _segHi - eps : n;
+        var p = _bg.At(Math.Min(ne, _bg.NStop));
+        double x = Math.Exp(_lnK - n) / p.H;
+        double x2 = x * x;
+        if (_scalar)
+        {
+            double f = 3.0 - p.Epsilon1 + p.Epsilon2;
+            dy[0] = y[2];
+            dy[1] = y[3];
+            dy[2] = -f * y[2] - x2 * y[0];
+            dy[3] = -f * y[3] - x2 * y[1];
+            if (_derivs)
+            {
+                dy[4] = y[6];
+                dy[5] = y[7];
+                dy[6] = -f * y[6] - x2 * (y[4] + 2.0 * y[0]);
+                dy[7] = -f * y[7] - x2 * (y[5] + 2.0 * y[1]);
+                dy[8] = y[10];
+                dy[9] = y[11];
+                dy[10] = -f * y[10] - x2 * (y[8] + 4.0 * (y[4] + y[0]));
+                dy[11] = -f * y[11] - x2 * (y[9] + 4.0 * (y[5] + y[1]));
+            }
+        }
+        if (_tensor)
+        {
+            int o = _tOff;
+            double f = 3.0 - p.Epsilon1;
+            dy[o] = y[o + 2];
+            dy[o + 1] = y[o + 3];
+            dy[o + 2] = -f * y[o + 2] - x2 * y[o];
+            dy[o + 3] = -f * y[o + 3] - x2 * y[o + 1];
+            if (_derivs)
+            {
+                dy[o + 4] = y[o + 6];
+                dy[o + 5] = y[o + 7];
+                dy[o + 6] = -f * y[o + 6] - x2 * (y[o + 4] + 2.0 * y[o]);
+                dy[o + 7] = -f * y[o + 7] - x2 * (y[o + 5] + 2.0 * y[o + 1]);
+                dy[o + 8] = y[o + 10];
+                dy[o + 9] = y[o + 11];
+                dy[o + 10] = -f * y[o + 10] - x2 * (y[o + 8] + 4.0 * (y[o + 4] + y[o]));
+                dy[o + 11] = -f * y[o + 11] - x2 * (y[o + 9] + 4.0 * (y[o + 5] + y[o + 1]));
+            }
+        }
+    }
+
+    /// <summary>
+    /// Checks that every carried quantity f has stopped changing: outside the horizon f tends to a constant as
+    /// f_inf - f = f'/r with r = -zeta''/zeta' (one decay rate; Aitken-type). Frozen when every |f'/r| is below
+    /// <paramref name="tol"/> relative to |zeta| (or |h|); the correction f'/r is then added.
+    /// </summary>
+    private bool TryFreeze(double tol, out double correction)
+    {
+        correction = 0;
+        if (_scalar && !TryFreezeBlock(0, _derivs ? 3 : 1, tol, ref correction)) return false;
+        if (_tensor && !TryFreezeBlock(_tOff, _derivs ? 3 : 1, tol, ref correction)) return false;
+        return true;
+    }
+
+    private bool TryFreezeBlock(int off, int blocks, double tol, ref double correction)
+    {
+        var f1 = new Complex(_y[off + 2], _y[off + 3]);
+        var f2 = new Complex(_k1[off + 2], _k1[off + 3]);
+        double mag = new Complex(_y[off], _y[off + 1]).Magnitude;
+        if (f1 == Complex.Zero) return true;
+        Complex r = -f2 / f1;
+        if (!(r.Real > 0.5)) return false; // not decaying: keep going
+        for (int j = 0; j < blocks; j++)
+        {
+            var d = new Complex(_y[off + 4 * j + 2], _y[off + 4 * j + 3]) / r;
+            double rel = d.Magnitude / mag;
+            if (!(rel <= tol)) return false;
+            correction = Math.Max(correction, rel);
+        }
+        return true;
+    }
+
+    /// <summary>Adds the remaining change f'/r to every carried quantity (uses _y and _k1 = f(N, _y) of the stop test).</summary>
+    private void ApplyFreeze()
+    {
+        if (_scalar) ApplyFreeze(0, _derivs ? 3 : 1);
+        if (_tensor) ApplyFreeze(_tOff, _derivs ? 3 : 1);
+    }
+
+    private void ApplyFreeze(int off, int blocks)
+    {
+        var f1 = new Complex(_y[off + 2], _y[off + 3]);
+        if (f1 == Complex.Zero) return;
+        Complex r = -new Complex(_k1[off + 2], _k1[off + 3]) / f1;
+        for (int j = 0; j < blocks; j++)
+        {
+            int o = off + 4 * j;
+            var d = new Complex(_y[o + 2], _y[o + 3]) / r;
+            _y[o] += d.Real;
+            _y[o + 1] += d.Imaginary;
+        }
+    }
+
+    private ModeResult Results(double k, double n0, double nf, double xs, double xf, bool frozen, double err)
+    {
+        double lnK3 = 3.0 * _lnK;
+        double ps = double.NaN, pt = double.NaN, nsm1 = double.NaN, alpha = double.NaN, nt = double.NaN, alphaT = double.NaN;
+        if (_scalar)
+        {
+            ps = Math.Exp(lnK3 + LogDerivatives(0, out nsm1, out alpha) - 2.0 * Math.Log(_scaleS)) / (2.0 * Math.PI * Math.PI);
+        }
+        if (_tensor)
+        {
+            // P_t = 8 k^3 |u/a|^2/(2 pi^2) = k^3 |h|^2 / pi^2.
+            pt = Math.Exp(lnK3 + LogDerivatives(_tOff, out nt, out alphaT) - 2.0 * Math.Log(_scaleT)) / (Math.PI * Math.PI);
+        }
+        return new ModeResult(k, ps, pt, nsm1, alpha, nt, n0, nf, xs, xf, frozen, _rhsCount, _steps, err) { AlphaT = alphaT };
+    }
+
+    /// <summary>ln |f|^2 of the block at <paramref name="off"/>; d ln(k^3 |f|^2)/d ln k and its derivative from the sensitivities.</summary>
+    private double LogDerivatives(int off, out double slope, out double running)
+    {
+        var f0 = new Complex(_y[off], _y[off + 1]);
+        double s = f0.Real * f0.Real + f0.Imaginary * f0.Imaginary;
+        slope = running = double.NaN;
+        if (_derivs)
+        {
+            var f1 = new Complex(_y[off + 4], _y[off + 5]);
+            var f2 = new Complex(_y[off + 8], _y[off + 9]);
+            double sk = 2.0 * (f0.Real * f1.Real + f0.Imaginary * f1.Imaginary);
+            double skk = 2.0 * (f1.Real * f1.Real + f1.Imaginary * f1.Imaginary + f0.Real * f2.Real + f0.Imaginary * f2.Imaginary);
+            slope = 3.0 + sk / s;
+            running = skk / s - (sk / s) * (sk / s);
+        }
+        return Math.Log(s);
+    }
+}
+
+/// <summary>A mode at one instant (unnormalised physical values, background units).</summary>
+/// <param name="K">Wavenumber.</param>
+/// <param name="N">E-folds.</param>
+/// <param name="Zeta">Comoving curvature perturbation zeta_k = v_k / z.</param>
+/// <param name="DZeta">d zeta / dN.</param>
+/// <param name="H">Tensor amplitude h = 2u/a of one polarisation.</param>
+/// <param name="DH">dh/dN.</param>
+/// <param name="RhsEvaluations">Work so far.</param>
+public readonly record struct ModeSnapshot(double K, double N, Complex Zeta, Complex DZeta, Complex H, Complex DH, int RhsEvaluations);
