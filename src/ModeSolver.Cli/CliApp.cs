@@ -5,14 +5,20 @@ namespace ModeSolver.Cli;
 /// <summary>Entry point of the modesolver command: builds the command tree and runs it.</summary>
 public static class CliApp
 {
+    [ThreadStatic] private static bool _debug;
+
+    /// <summary>True while a command runs with --debug (stack traces on errors). Per thread, so in-process tests stay independent.</summary>
+    public static bool Debug => _debug;
+
     /// <summary>Builds the root command. Each sub-command lives in its own file under Commands/ and is added here.</summary>
     public static RootCommand BuildRoot()
     {
-        var root = new RootCommand("ModeSolver: exact primordial spectra of inflaton models.");
+        var root = new RootCommand("ModeSolver: exact primordial spectra of inflaton models. Add --debug to any command for stack traces.");
         // Sub-commands register here, one line each.
         root.Subcommands.Add(Commands.ModelsCommand.Create());
         root.Subcommands.Add(Commands.FrameCommand.Create());
         root.Subcommands.Add(Commands.SpectrumCommand.Create());
+        root.Subcommands.Add(Commands.BackgroundCommand.Create());
         root.Subcommands.Add(Commands.SweepCommand.Create());
         root.Subcommands.Add(Commands.SweepMergeCommand.Create());
         root.Subcommands.Add(Commands.MpiCheckCommand.Create());
@@ -22,7 +28,25 @@ public static class CliApp
     /// <summary>Parses and runs; returns the process exit code.</summary>
     public static int Run(string[] args)
     {
-        var root = BuildRoot();
-        return root.Parse(args).Invoke();
+        ArgumentNullException.ThrowIfNull(args);
+        bool debug = Array.IndexOf(args, "--debug") >= 0;
+        if (debug) args = Array.FindAll(args, a => a != "--debug");
+        bool previous = _debug;
+        _debug = debug;
+        try
+        {
+            var root = BuildRoot();
+            var parse = root.Parse(args);
+            if (parse.Errors.Count > 0)
+            {
+                Console.Error.WriteLine("modesolver: " + Commands.CommandErrors.OneLine(parse.Errors[0].Message) + " (see --help)");
+                return Commands.CommandErrors.UserError;
+            }
+            return parse.Invoke();
+        }
+        finally
+        {
+            _debug = previous;
+        }
     }
 }

@@ -1,49 +1,109 @@
 using System.CommandLine;
+using ModeSolver.Cli.Output;
 using ModeSolver.Decks;
+using ModeSolver.Output;
+using ModeSolver.Pipeline;
 
 namespace ModeSolver.Cli.Commands;
 
 /// <summary>
-/// `modesolver spectrum [DECK] [options]`: resolves and validates the run settings, builds the theory, and runs
-/// <see cref="Execute"/>. For now Execute prints a summary of the resolved settings; the pipeline replaces it.
+/// `modesolver spectrum [DECK] [options]`: the whole pipeline. Prints a summary table (exact against slow roll) and
+/// writes summary.json, run.h5, primordial.dat and the plots into the output directory, all or nothing.
+/// `--table -` writes only the primordial table to stdout, for a Boltzmann code that calls modesolver.
 /// </summary>
 public static class SpectrumCommand
 {
     /// <summary>Builds the command.</summary>
     public static Command Create()
     {
-        var cmd = new Command("spectrum", "Compute the scalar and tensor spectra of a model (from a deck and/or options).")
+        var cmd = new Command("spectrum", "Compute the exact scalar and tensor spectra of a model (from a deck and/or options) and write the results.")
         {
             TreatUnmatchedTokensAsErrors = false,
         };
         var options = RunOptions.Add(cmd);
+        var table = RunOptions.Opt("--table", "Write only the primordial table (k, P_s, P_t) to this path; '-' for stdout (nothing else is written).");
+        var quiet = new Option<bool>("--quiet") { Description = "No progress on stderr." };
+        var threads = RunOptions.Opt("--threads", "Worker threads for the modes (default: all cores).");
+        cmd.Options.Add(table);
+        cmd.Options.Add(quiet);
+        cmd.Options.Add(threads);
         cmd.SetAction(parse => CommandErrors.Guard(() =>
         {
             var settings = options.Resolve(parse);
-            return Execute(settings, Console.Out, Console.Error);
+            var run = new SpectrumInvocation(
+                TablePath: RunOptions.Value(parse, table),
+                Quiet: parse.GetValue(quiet),
+                Threads: ParseThreads(RunOptions.Value(parse, threads)));
+            return Execute(settings, run, Console.Out, Console.Error);
         }));
         return cmd;
     }
 
-    /// <summary>
-    /// Runs the spectrum pipeline on validated settings and returns the exit code. Currently: builds the theory
-    /// (checking it is valid at phi0), prints warnings to <paramref name="error"/> and a one-paragraph summary to
-    /// <paramref name="output"/>, returns 0. This is the single method the pipeline wiring replaces.
-    /// </summary>
-    public static int Execute(RunSettings settings, TextWriter output, TextWriter error)
+    /// <summary>Command-line choices of one spectrum run that are not physics settings.</summary>
+    /// <param name="TablePath">Only the table, to this path or "-" for stdout; null for the full output set.</param>
+    /// <param name="Quiet">Suppress progress on stderr.</param>
+    /// <param name="Threads">Worker threads (0: all cores).</param>
+    public sealed record SpectrumInvocation(string? TablePath = null, bool Quiet = false, int Threads = 0);
+
+    /// <summary>Runs the pipeline on validated settings, prints and writes the results; returns the exit code.</summary>
+    public static int Execute(RunSettings settings, SpectrumInvocation run, TextWriter output, TextWriter error)
     {
         ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(output);
         ArgumentNullException.ThrowIfNull(error);
-        var theory = TheoryFactory.Build(settings);
+        bool tableOnly = run.TablePath is not null;
+        bool progress = !run.Quiet && !Console.IsErrorRedirected && ReferenceEquals(error, Console.Error);
         foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + w);
-        output.WriteLine(settings.Summary());
-        var (lo, hi) = theory.ValidRange;
-        if (double.IsFinite(lo) || double.IsFinite(hi))
-            output.WriteLine(FormattableString.Invariant($"The theory is valid for {Bound(lo)} < phi < {Bound(hi)}."));
+
+        var pipelineOptions = new PipelineOptions
+        {
+            Threads = run.Threads,
+            Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null,
+        };
+        var report = SpectrumPipeline.Run(settings, pipelineOptions);
+
+        if (tableOnly)
+        {
+            if (run.TablePath == "-")
+            {
+                PrimordialTableWriter.Write(report, output);
+                output.Flush();
+            }
+            else
+            {
+                string full = Path.GetFullPath(run.TablePath!);
+                string dir = Path.GetDirectoryName(full)!;
+                RunOutputs.WriteAll(report, dir, [new OutputFile(Path.GetFileName(full), (r, p) => PrimordialTableWriter.Write(r, p))]);
+            }
+            return 0;
+        }
+
+        var formats = settings.Output.Formats;
+        var files = new List<OutputFile>();
+        if (formats.Contains("json")) files.Add(RunOutputs.Json);
+        if (formats.Contains("hdf5")) files.Add(RunOutputs.Hdf5);
+        if (formats.Contains("table")) files.Add(RunOutputs.Table);
+        if (formats.Contains("plots"))
+        {
+            files.Add(RunOutputs.SpectraPng); files.Add(RunOutputs.SpectraSvg);
+            files.Add(RunOutputs.BackgroundPng); files.Add(RunOutputs.BackgroundSvg);
+        }
+        var written = RunOutputs.WriteAll(report, settings.Output.Directory, files);
+
+        bool plain = !ReferenceEquals(output, Console.Out) || Console.IsOutputRedirected;
+        SummaryPrinter.Print(report, output, plain);
+        output.WriteLine();
+        output.WriteLine($"Wrote {written.Count} files to {settings.Output.Directory}: {string.Join(", ", written.Select(Path.GetFileName))}");
         return 0;
     }
 
-    private static string Bound(double x) =>
-        double.IsPositiveInfinity(x) ? "inf" : double.IsNegativeInfinity(x) ? "-inf" : x.ToString("G6", System.Globalization.CultureInfo.InvariantCulture);
+    /// <summary>Parses --threads.</summary>
+    internal static int ParseThreads(string? text)
+    {
+        if (text is null) return 0;
+        if (int.TryParse(text.Trim(), System.Globalization.NumberStyles.Integer, System.Globalization.CultureInfo.InvariantCulture, out int n) && n >= 1 && n <= 4096)
+            return n;
+        throw new DeckException($"--threads expects a whole number from 1 to 4096 (got '{text}')", "--threads");
+    }
 }

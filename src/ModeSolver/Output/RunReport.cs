@@ -23,7 +23,7 @@ namespace ModeSolver.Output;
 /// <param name="Warnings">Human-readable warnings collected during the run, one line each.</param>
 public sealed record RunReport(
     ModelInfo Model,
-    RunSettings Settings,
+    ReportSettings Settings,
     PivotResults Pivot,
     PivotSlowRoll SlowRoll,
     BackgroundSamples Background,
@@ -105,7 +105,7 @@ public sealed record Setting(string Key, string Value);
 /// <summary>Every setting used by the run.</summary>
 /// <param name="Entries">Flat, ordered (key, value) list: this is what the files record.</param>
 /// <param name="FlagSettings">Thresholds the flags were computed with.</param>
-public sealed record RunSettings(ImmutableArray<Setting> Entries, FlagSettings FlagSettings)
+public sealed record ReportSettings(ImmutableArray<Setting> Entries, FlagSettings FlagSettings)
 {
     /// <summary>Value of the first entry with the given key, or null.</summary>
     public string? Get(string key)

@@ -60,7 +60,7 @@ internal static class SyntheticReport
         var srs = new SlowRollSpectra([.. k], [.. ps1], [.. pt1], [.. ps2], [.. pt2], [.. k.Select(_ => 0.9652)], [.. k.Select(_ => 0.96505)]);
         var flagSettings = FlagSettings.Default;
         var flags = Flags.Evaluate(pivot, sr, spectrum, srs, background, flagSettings);
-        var settings = new RunSettings(
+        var settings = new ReportSettings(
             [new Setting("k_min", "1e-05"), new Setting("k_max", "1"), new Setting("modes", modes.ToString()), new Setting("tolerance", "1e-06"),
              new Setting("reheating", "instant")],
             flagSettings);

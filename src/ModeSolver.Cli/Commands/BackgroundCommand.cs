@@ -1,0 +1,60 @@
+using System.CommandLine;
+using System.Globalization;
+using ModeSolver.Decks;
+using ModeSolver.Pipeline;
+
+namespace ModeSolver.Cli.Commands;
+
+/// <summary>
+/// `modesolver background [DECK] [options]`: the background, pivot matching and normalisation only. Prints N_total, the
+/// end of inflation, N_*, phi_*, H_*, V_*^(1/4), the exact pivot values from one mode, and the slow-roll predictions.
+/// Writes no files.
+/// </summary>
+public static class BackgroundCommand
+{
+    /// <summary>Builds the command.</summary>
+    public static Command Create()
+    {
+        var cmd = new Command("background", "Solve the background and the pivot matching only, and print N_total, N_*, phi_*, H_*, V_*^(1/4) and the slow-roll predictions.")
+        {
+            TreatUnmatchedTokensAsErrors = false,
+        };
+        var options = RunOptions.Add(cmd);
+        cmd.SetAction(parse => CommandErrors.Guard(() => Execute(options.Resolve(parse), Console.Out, Console.Error)));
+        return cmd;
+    }
+
+    /// <summary>Runs the background and matching stages and prints the results; returns the exit code.</summary>
+    public static int Execute(RunSettings settings, TextWriter output, TextWriter error)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(output);
+        ArgumentNullException.ThrowIfNull(error);
+        foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + w);
+        var run = SpectrumPipeline.RunPivot(settings);
+        var p = run.Pivot;
+        var bg = p.Background;
+        var inv = CultureInfo.InvariantCulture;
+        void Line(string name, string value) => output.WriteLine(string.Format(inv, "  {0,-26} {1}", name, value));
+        output.WriteLine(settings.Model.Describe());
+        Line("N_total", string.Format(inv, "{0:F4}", p.NTotal));
+        Line("end of inflation", bg.EndedAtPhiEnd
+            ? string.Format(inv, "phi_end = {0:G8} (set by hand)", settings.Model.PhiEnd)
+            : string.Format(inv, "epsilon_1 = 1 at phi = {0:G10} (crossings at N = {1})", bg.At(bg.NEnd).Phi,
+                string.Join(", ", bg.EndCrossings.Select(n => n.ToString("F4", inv)))));
+        Line("k_pivot [1/Mpc]", p.KPivot.ToString("G6", inv));
+        Line("N_*", string.Format(inv, "{0:F6}{1}", p.NStar, settings.Pivot.Efolds is null ? string.Format(inv, "  (from reheating: N_reh = {0:F3})", p.NReh) : "  (given)"));
+        Line("phi_*", p.PhiStar.ToString("G10", inv));
+        Line("H_* [M_pl] / [GeV]", string.Format(inv, "{0:G6} / {1:G6}", p.HStar, p.HStarGeV));
+        Line("V_*^(1/4) [GeV]", p.VStarQuarterGeV.ToString("G6", inv));
+        Line("V scale", string.Format(inv, "{0:G8}  (amplitude from {1}, {2} iterations)", p.VScale, p.AmplitudeName, p.Iterations));
+        Line("k served [1/Mpc]", string.Format(inv, "[{0:G4}, {1:G4}]", p.KMinMpc, p.KMaxMpc));
+        output.WriteLine();
+        output.WriteLine(string.Format(inv, "  {0,-22} {1,14} {2,14} {3,14} {4,14} {5,14}", "", "A_s", "n_s", "r", "alpha_s", "n_t"));
+        var e = run.Exact;
+        output.WriteLine(string.Format(inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "exact (one mode)", e.Ps, e.Ns, e.R, e.AlphaS, e.Nt));
+        foreach (var sr in new[] { run.SlowRoll.SecondOrder, run.SlowRoll.FirstOrder, run.SlowRoll.Potential })
+            output.WriteLine(string.Format(inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "slow roll, " + sr.Order, sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt));
+        return 0;
+    }
+}

@@ -1,0 +1,275 @@
+using System.Collections.Immutable;
+using System.Diagnostics;
+using System.Globalization;
+using ModeSolver.Background;
+using ModeSolver.Decks;
+using ModeSolver.Diagnostics;
+using ModeSolver.Matching;
+using ModeSolver.Models;
+using ModeSolver.Output;
+using ModeSolver.Physics;
+using ModeSolver.Spectra;
+
+namespace ModeSolver.Pipeline;
+
+/// <summary>Options of one pipeline run that are not part of the physics settings.</summary>
+public sealed record PipelineOptions
+{
+    /// <summary>Worker threads for the modes (0: all cores).</summary>
+    public int Threads { get; init; }
+
+    /// <summary>Thresholds of the slow-roll disagreement flags.</summary>
+    public FlagSettings Flags { get; init; } = new();
+
+    /// <summary>Number of background samples written to the report.</summary>
+    public int BackgroundSamples { get; init; } = 1500;
+
+    /// <summary>Points per decade of the primordial table for Boltzmann codes.</summary>
+    public int TablePointsPerDecade { get; init; } = 50;
+
+    /// <summary>Called with a short stage name as the run progresses (for progress displays).</summary>
+    public Action<string>? Stage { get; init; }
+}
+
+/// <summary>The pivot-only result of a run: what a sweep needs per point.</summary>
+/// <param name="Pivot">Matching result: N_*, V scale, H_*, the scaled background.</param>
+/// <param name="Exact">Exact observables at the pivot.</param>
+/// <param name="SlowRoll">Slow-roll estimates at the pivot.</param>
+/// <param name="Theory">The theory that was run.</param>
+public sealed record PivotRun(PivotSolution Pivot, PivotValues Exact, SlowRollSet SlowRoll, IValidatedTheory Theory);
+
+/// <summary>
+/// The whole spectrum pipeline: settings -> theory -> exact background -> pivot matching and normalisation with the
+/// exact amplitude -> modes across k -> slow-roll comparison and flags -> a <see cref="RunReport"/> for the writers.
+/// </summary>
+public static class SpectrumPipeline
+{
+    /// <summary>Depth k/aH at which the pivot matching measures the served k range (the mode solver's own start is shallower).</summary>
+    private const double RangeStartDepth = 20;
+
+    /// <summary>Runs the theory, background and matching stages and the exact pivot mode only.</summary>
+    /// <exception cref="PhysicsException">physics that cannot be computed (one-line message).</exception>
+    /// <exception cref="DeckException">settings that are invalid for this theory.</exception>
+    public static PivotRun RunPivot(RunSettings settings, PipelineOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        options ??= new PipelineOptions();
+        options.Stage?.Invoke("background");
+        var theory = TheoryFactory.Build(settings);
+        var background = BackgroundSolver.Solve(theory, BackgroundSettingsFor(settings));
+        options.Stage?.Invoke("pivot matching");
+        double tolerance = settings.KRange.Tolerance;
+        var pivot = PivotMatcher.Match(background, PivotSettingsFor(settings), new ExactAmplitude(Math.Min(tolerance, 1e-6)));
+        var bg = pivot.Background;
+        double kPivotBg = pivot.ToBackgroundUnits(pivot.KPivot);
+        var exact = PivotValues.Compute(bg, kPivotBg, Math.Min(tolerance, 1e-6));
+        return new PivotRun(pivot, exact, pivot.PivotSlowRoll, theory);
+    }
+
+    /// <summary>Runs the whole pipeline and returns the report (no files are written here).</summary>
+    /// <exception cref="PhysicsException">physics that cannot be computed (one-line message).</exception>
+    /// <exception cref="DeckException">settings that are invalid for this theory.</exception>
+    public static RunReport Run(RunSettings settings, PipelineOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        options ??= new PipelineOptions();
+        var clock = Stopwatch.StartNew();
+        var stages = ImmutableArray.CreateBuilder<StageTiming>();
+        double last = 0;
+        void Mark(string stage)
+        {
+            double now = clock.Elapsed.TotalSeconds;
+            stages.Add(new StageTiming(stage, now - last));
+            last = now;
+        }
+
+        var run = RunPivot(settings, options);
+        Mark("background and matching");
+        var pivot = run.Pivot;
+        var bg = pivot.Background;
+        double kPivotBg = pivot.ToBackgroundUnits(pivot.KPivot);
+
+        // Modes across k.
+        options.Stage?.Invoke("modes");
+        var kr = settings.KRange;
+        var spectrumSettings = new SpectrumSettings
+        {
+            KMin = pivot.ToBackgroundUnits(kr.KMin),
+            KMax = pivot.ToBackgroundUnits(kr.KMax),
+            KCount = kr.Count,
+            Tolerance = kr.Tolerance,
+            DegreeOfParallelism = options.Threads,
+            ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [kPivotBg] : [],
+        };
+        CheckServedRange(bg, pivot, spectrumSettings, kr);
+        var spectrum = SpectrumSolver.Compute(bg, spectrumSettings);
+        Mark("modes");
+
+        // Slow roll on the same k, background samples, flags.
+        options.Stage?.Invoke("slow-roll comparison");
+        var k = spectrum.K;
+        int m = k.Length;
+        var kMpc = new double[m];
+        var ps1 = new double[m]; var pt1 = new double[m]; var ps2 = new double[m]; var pt2 = new double[m];
+        var ns1 = new double[m]; var ns2 = new double[m];
+        for (int i = 0; i < m; i++)
+        {
+            kMpc[i] = pivot.ToInverseMpc(k[i]);
+            var sr = SlowRoll.AtK(bg, k[i]);
+            ps1[i] = sr.FirstOrder.Ps; pt1[i] = sr.FirstOrder.Pt; ns1[i] = sr.FirstOrder.Ns;
+            ps2[i] = sr.SecondOrder.Ps; pt2[i] = sr.SecondOrder.Pt; ns2[i] = sr.SecondOrder.Ns;
+        }
+
+        var exact = run.Exact;
+        var pivotResults = new PivotResults(
+            Ns: exact.Ns, AlphaS: exact.AlphaS, R: exact.R, Nt: exact.Nt, As: exact.Ps, KPivot: pivot.KPivot,
+            NStar: pivot.NStar, PhiStar: pivot.PhiStar, HStar: pivot.HStar, EnergyScaleGeV: pivot.VStarQuarterGeV,
+            VScale: pivot.VScale, NTotal: pivot.NTotal, NReh: pivot.NReh,
+            MaxRelError: Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate),
+            RhsEvaluationsPerMode: spectrum.MeanRhsEvaluationsPerMode);
+        var srSet = run.SlowRoll;
+        var pivotSlowRoll = new PivotSlowRoll(Estimate(srSet.FirstOrder), Estimate(srSet.SecondOrder), Estimate(srSet.Potential));
+
+        var background = SampleBackground(bg, pivot, kr, options.BackgroundSamples);
+        var spectrumSamples = new SpectrumSamples(Imm(kMpc), Imm(spectrum.Ps), Imm(spectrum.Pt), Imm(spectrum.R),
+            Imm(spectrum.Ns), Imm(spectrum.Nt), Imm(spectrum.AlphaS), Imm(spectrum.ErrorEstimate));
+        var srSpectra = new SlowRollSpectra(Imm(kMpc), Imm(ps1), Imm(pt1), Imm(ps2), Imm(pt2), Imm(ns1), Imm(ns2));
+        var table = Table(spectrum, pivot, kr, options.TablePointsPerDecade);
+        var flags = Flags.Evaluate(pivotResults, pivotSlowRoll, spectrumSamples, srSpectra, background, options.Flags);
+        Mark("slow-roll comparison");
+
+        long rhs = 0;
+        foreach (int r in spectrum.RhsEvaluations) rhs += r;
+        var statistics = new RunStatistics(clock.Elapsed.TotalSeconds, stages.ToImmutable(), m, rhs,
+            options.Threads > 0 ? options.Threads : Environment.ProcessorCount);
+
+        return new RunReport(ModelInfoFor(settings, run.Theory), ReportSettingsFor(settings, options.Flags), pivotResults,
+            pivotSlowRoll, background, spectrumSamples, srSpectra, table, flags, pivot.AmplitudeName, statistics,
+            [.. settings.Warnings]);
+    }
+
+    /// <summary>The background settings a run deck asks for.</summary>
+    public static BackgroundSettings BackgroundSettingsFor(RunSettings settings) => new()
+    {
+        Phi0 = settings.Initial.Phi0,
+        DPhi0 = settings.Initial.DPhi0,
+        PhiEnd = settings.Model.PhiEnd,
+    };
+
+    /// <summary>The pivot-matching settings a run deck asks for.</summary>
+    public static PivotSettings PivotSettingsFor(RunSettings settings)
+    {
+        var p = settings.Pivot;
+        var reheating = p.Reheating.Kind switch
+        {
+            ReheatingKind.Temperature => ReheatingHistory.WithTemperature(p.Reheating.W, p.Reheating.TemperatureGeV!.Value),
+            ReheatingKind.Efolds => ReheatingHistory.WithEFolds(p.Reheating.W, p.Reheating.Efolds!.Value),
+            _ => ReheatingHistory.Instantaneous,
+        };
+        return new PivotSettings
+        {
+            KPivot = p.KPivot,
+            EFolds = p.Efolds,
+            Reheating = reheating,
+            GReh = p.Reheating.Dof,
+            GsReh = p.Reheating.Dof,
+            ScalarAmplitude = settings.Amplitude.ScalarAmplitude,
+            RangeStartDepth = RangeStartDepth,
+        };
+    }
+
+    private static void CheckServedRange(BackgroundSolution bg, PivotSolution pivot, SpectrumSettings s, KRangeSpec kr)
+    {
+        var (lo, hi) = SpectrumSolver.ServedRange(bg, s);
+        double loMpc = pivot.ToInverseMpc(lo), hiMpc = pivot.ToInverseMpc(hi);
+        if (s.KMin < lo * (1 + 1e-12) || s.KMax > hi)
+            throw new PhysicsException(string.Format(CultureInfo.InvariantCulture,
+                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves, [{2:G4}, {3:G4}] /Mpc; " +
+                "narrow k_min/k_max, or start the field further up the potential (phi0) for smaller k",
+                kr.KMin, kr.KMax, loMpc * 1.0001, hiMpc * 0.9999));
+    }
+
+    private static SlowRollEstimate Estimate(SlowRollPrediction p) => new(p.Ps, p.Ns, p.R, p.AlphaS, p.Nt);
+
+    private static ImmutableArray<double> Imm(double[] a) => ImmutableArray.Create(a);
+
+    private static BackgroundSamples SampleBackground(BackgroundSolution bg, PivotSolution pivot, KRangeSpec kr, int count)
+    {
+        count = Math.Max(count, 16);
+        var n = new double[count]; var phi = new double[count]; var dphi = new double[count]; var h = new double[count];
+        var e1 = new double[count]; var e2 = new double[count]; var e3 = new double[count];
+        double a = bg.NStart, b = bg.NStop;
+        for (int i = 0; i < count; i++)
+        {
+            double x = a + (b - a) * i / (count - 1);
+            var p = bg.At(x);
+            n[i] = x; phi[i] = p.Phi; dphi[i] = p.DPhi; h[i] = p.H; e1[i] = p.Epsilon1; e2[i] = p.Epsilon2; e3[i] = p.Epsilon3;
+        }
+        double windowStart = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMin), out double w0) ? w0 : bg.NStart;
+        double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
+        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd, pivot.NPivot,
+            windowStart, windowEnd, [.. bg.EndCrossings]);
+    }
+
+    private static PrimordialTable Table(PrimordialSpectrum spectrum, PivotSolution pivot, KRangeSpec kr, int perDecade)
+    {
+        var grid = PrimordialTableWriter.LogGrid(kr.KMin, kr.KMax, perDecade);
+        var ps = new double[grid.Length];
+        var pt = new double[grid.Length];
+        for (int i = 0; i < grid.Length; i++)
+        {
+            double kb = pivot.ToBackgroundUnits(grid[i]);
+            kb = Math.Clamp(kb, spectrum.K[0], spectrum.K[^1]);
+            ps[i] = spectrum.InterpolatePs(kb);
+            pt[i] = spectrum.InterpolatePt(kb);
+        }
+        return new PrimordialTable([.. grid], Imm(ps), Imm(pt));
+    }
+
+    private static ModelInfo ModelInfoFor(RunSettings settings, IValidatedTheory theory)
+    {
+        var spec = settings.Model;
+        var frame = spec.Coupling is null ? TheoryFrame.Einstein : spec.Palatini ? TheoryFrame.JordanPalatini : TheoryFrame.JordanMetric;
+        var parameters = ImmutableArray.CreateBuilder<Output.ModelParameter>();
+        foreach (var kv in spec.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
+            parameters.Add(new Output.ModelParameter(kv.Key, kv.Value));
+        return new ModelInfo(spec.CatalogueId ?? "formula", theory.Description, spec.Potential, spec.Kinetic ?? "1",
+            spec.Coupling, parameters.ToImmutable(), frame);
+    }
+
+    private static ReportSettings ReportSettingsFor(RunSettings s, FlagSettings flags)
+    {
+        var inv = CultureInfo.InvariantCulture;
+        string F(double x) => x.ToString("R", inv);
+        string? Opt(double? x) => x is { } v ? F(v) : null;
+        var e = ImmutableArray.CreateBuilder<Setting>();
+        void Add(string key, string? value) { if (value is not null) e.Add(new Setting(key, value)); }
+        Add("title", s.Title.Length > 0 ? s.Title : null);
+        Add("deck", s.DeckPath);
+        Add("model.catalogue", s.Model.CatalogueId);
+        Add("model.potential", s.Model.Potential);
+        Add("model.kinetic", s.Model.Kinetic);
+        Add("model.coupling", s.Model.Coupling);
+        Add("model.palatini", s.Model.Coupling is null ? null : s.Model.Palatini ? "true" : "false");
+        foreach (var kv in s.Model.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
+            Add("model.parameters." + kv.Key, F(kv.Value));
+        Add("model.phi_end", Opt(s.Model.PhiEnd));
+        Add("start.phi0", F(s.Initial.Phi0));
+        Add("start.dphi0", Opt(s.Initial.DPhi0) ?? "attractor");
+        Add("pivot.k", F(s.Pivot.KPivot));
+        Add("pivot.efolds", Opt(s.Pivot.Efolds));
+        Add("reheating.kind", s.Pivot.Efolds is null ? s.Pivot.Reheating.Kind.ToString().ToLowerInvariant() : null);
+        Add("reheating.w", s.Pivot.Efolds is null && s.Pivot.Reheating.Kind != ReheatingKind.Instantaneous ? F(s.Pivot.Reheating.W) : null);
+        Add("reheating.temperature_gev", Opt(s.Pivot.Reheating.TemperatureGeV));
+        Add("reheating.efolds", Opt(s.Pivot.Reheating.Efolds));
+        Add("reheating.dof", F(s.Pivot.Reheating.Dof));
+        Add("normalisation.a_s", s.Amplitude.ScalarAmplitude is { } a ? F(a) : "none");
+        Add("modes.k_min", F(s.KRange.KMin));
+        Add("modes.k_max", F(s.KRange.KMax));
+        Add("modes.count", s.KRange.Count.ToString(inv));
+        Add("modes.tolerance", F(s.KRange.Tolerance));
+        Add("output.dir", s.Output.Directory);
+        Add("output.formats", string.Join(",", s.Output.Formats));
+        return new ReportSettings(e.ToImmutable(), flags);
+    }
+}
