@@ -240,7 +240,7 @@ public sealed class ModeIntegrator
 
     /// <summary>
     /// Where the mode starts: where k/aH = <paramref name="depth"/>, deeper while the estimated truncation of the
-    /// local-index data exceeds half the tolerance (a background that changes quickly there), and before any
+    /// local-index data exceeds the tolerance (a background that changes quickly there), and before any
     /// non-smooth point the mode would otherwise start after while still inside the horizon (a kink excites modes
     /// deep inside the horizon with amplitude ~ 1/(k/aH); local vacuum data after it would miss that).
     /// Throws <see cref="PhysicsException"/> when the background starts too late.
@@ -255,7 +255,7 @@ public sealed class ModeIntegrator
             throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} cannot start at k/aH = {depth:G3}: the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}; the smallest k allowed is {kMin:G6} (start the field further up the potential or raise kMin)");
         }
         double n = DepthTime(depth, nA);
-        for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > 0.5 * tol; it++)
+        for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > tol; it++)
         {
             double deeper = depth * 1.5;
             if (lnDepthA < Math.Log(deeper)) break;

@@ -27,7 +27,12 @@ public sealed record ModeSettings
     /// <summary>Target relative accuracy of P_s and P_t (default 1e-6). Sets the step tolerance, the start depth and the stop.</summary>
     public double Tolerance { get; init; } = 1e-6;
 
-    /// <summary>k/aH at the start; 0 chooses it from <see cref="Tolerance"/> and <see cref="InitialData"/>.</summary>
+    /// <summary>
+    /// Smallest k/aH at the start; 0 chooses it from <see cref="Tolerance"/> and <see cref="InitialData"/> (7 at 1e-6 for the
+    /// Hankel data, at most 20: deeper starts add integration error to the second k-derivative, whose block is ~(k/aH)^2
+    /// larger inside the horizon than after exit). The start goes deeper where the estimated initial-data error exceeds the
+    /// tolerance, and before any non-smooth point the mode is inside the horizon at.
+    /// </summary>
     public double StartDepth { get; init; }
 
     /// <summary>Largest k/aH at which the mode may be declared frozen; 0 chooses it from <see cref="Tolerance"/>.</summary>
@@ -60,7 +65,7 @@ public sealed record ModeSettings
 
     /// <summary>The start depth actually used.</summary>
     public double EffectiveStartDepth => StartDepth != 0 ? StartDepth
-        : InitialData == InitialDataKind.LocalIndexHankel ? Math.Max(4.0, Math.Min(40.0, 7.0 * Math.Pow(1e-6 / Tolerance, 1.0 / 3.0)))
+        : InitialData == InitialDataKind.LocalIndexHankel ? Math.Max(4.0, Math.Min(20.0, 7.0 * Math.Pow(1e-6 / Tolerance, 1.0 / 3.0)))
         : Math.Max(5.0, Math.Min(400.0, 50.0 * Math.Sqrt(1e-5 / Tolerance)));
 
     /// <summary>The stop depth actually used.</summary>
