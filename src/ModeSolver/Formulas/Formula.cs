@@ -135,10 +135,15 @@ public sealed class Formula : IFieldFunction
     }
 
     /// <summary>f(phi), value only (fast path).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public double Value(double phi)
+        => _monomialPower == 2 ? phi * phi * _monomialScale
+         : _monomialPower != 0 ? Taylor.PowIntScalar(phi, _monomialPower) * _monomialScale
+         : ValueProgram(phi);
+
     [SkipLocalsInit]
-    public unsafe double Value(double phi)
+    private unsafe double ValueProgram(double phi)
     {
-        if (_monomialPower != 0) return Taylor.PowIntScalar(phi, _monomialPower) * _monomialScale;
         int count = _program.RegisterCount;
         if (count > StackDoubles) return ValueRented(phi);
         double* r = stackalloc double[count];
@@ -160,10 +165,15 @@ public sealed class Formula : IFieldFunction
     }
 
     /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding (an unrolled third-order path).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public Jet3 Evaluate(double phi)
+        => _monomialPower == 2 ? new Jet3(phi * phi * _monomialScale, 2 * phi * _monomialScale, 2 * _monomialScale, 0)
+         : _monomialPower != 0 ? MonomialJet(phi)
+         : EvaluateProgram(phi);
+
     [SkipLocalsInit]
-    public unsafe Jet3 Evaluate(double phi)
+    private unsafe Jet3 EvaluateProgram(double phi)
     {
-        if (_monomialPower != 0) return MonomialJet(phi);
         int count = _program.RegisterCount * 4;
         if (count > StackDoubles) return EvaluateRented(phi);
         double* s = stackalloc double[count];
