@@ -32,6 +32,9 @@ public sealed class Formula : IFieldFunction
     private readonly CompiledProgram _program;
     private readonly List<SwitchFunction> _switches;
     private readonly Lazy<IReadOnlyList<double>> _nonSmooth;
+    // Monomial fast path c*phi^n (n >= 2), the commonest potentials (quadratic, quartic): skips the interpreter.
+    private readonly int _monomialPower;
+    private readonly double _monomialScale;
 
     private Formula(string text, string variable, Node root, CompiledProgram program,
         IReadOnlyDictionary<string, double> parameters, IReadOnlyList<string> unused, List<SwitchFunction> switches)
@@ -43,6 +46,7 @@ public sealed class Formula : IFieldFunction
         Parameters = parameters;
         UnusedParameters = unused;
         _switches = switches;
+        (_monomialPower, _monomialScale) = DetectMonomial(program);
         _nonSmooth = new Lazy<IReadOnlyList<double>>(
             () => NonSmoothPointsIn(-DefaultScanRange, DefaultScanRange, includeAllLinear: true).AsReadOnly(),
             LazyThreadSafetyMode.ExecutionAndPublication);
@@ -131,8 +135,14 @@ public sealed class Formula : IFieldFunction
     }
 
     /// <summary>f(phi), value only (fast path).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public double Value(double phi)
+        => _monomialPower == 2 ? phi * phi * _monomialScale
+         : _monomialPower != 0 ? Taylor.PowIntScalar(phi, _monomialPower) * _monomialScale
+         : ValueProgram(phi);
+
     [SkipLocalsInit]
-    public unsafe double Value(double phi)
+    private unsafe double ValueProgram(double phi)
     {
         int count = _program.RegisterCount;
         if (count > StackDoubles) return ValueRented(phi);
@@ -155,8 +165,14 @@ public sealed class Formula : IFieldFunction
     }
 
     /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding (an unrolled third-order path).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public Jet3 Evaluate(double phi)
+        => _monomialPower == 2 ? new Jet3(phi * phi * _monomialScale, 2 * phi * _monomialScale, 2 * _monomialScale, 0)
+         : _monomialPower != 0 ? MonomialJet(phi)
+         : EvaluateProgram(phi);
+
     [SkipLocalsInit]
-    public unsafe Jet3 Evaluate(double phi)
+    private unsafe Jet3 EvaluateProgram(double phi)
     {
         int count = _program.RegisterCount * 4;
         if (count > StackDoubles) return EvaluateRented(phi);
@@ -204,6 +220,29 @@ public sealed class Formula : IFieldFunction
         {
             ArrayPool<double>.Shared.Return(rented);
         }
+    }
+
+    /// <summary>Recognises programs computing c*phi^n (n >= 2): [PowInt] or [PowInt, MulC].</summary>
+    private static (int Power, double Scale) DetectMonomial(CompiledProgram p)
+    {
+        var code = p.Code;
+        if (code.Length == 0 || code.Length > 2) return (0, 0);
+        var first = code[0];
+        if (first.Op != Op.PowInt || first.A != 0 || first.N < 2) return (0, 0);
+        if (code.Length == 1) return p.Result == first.Dst ? (first.N, 1.0) : (0, 0);
+        var second = code[1];
+        if (second.Op != Op.MulC || second.A != first.Dst || p.Result != second.Dst) return (0, 0);
+        return (first.N, second.C);
+    }
+
+    private Jet3 MonomialJet(double phi)
+    {
+        int n = _monomialPower;
+        double c = _monomialScale;
+        if (n == 2) return new Jet3(phi * phi * c, 2 * phi * c, 2 * c, 0);
+        double m = n;
+        return new Jet3(Taylor.PowIntScalar(phi, n) * c, m * Taylor.PowIntScalar(phi, n - 1) * c,
+            m * (m - 1) * Taylor.PowIntScalar(phi, n - 2) * c, m * (m - 1) * (m - 2) * Taylor.PowIntScalar(phi, n - 3) * c);
     }
 
     private static unsafe void Copy(double* c, Span<double> d)
