@@ -24,12 +24,15 @@ public static class SpectrumCommand
         var table = RunOptions.Opt("--table", "Write only the primordial table (k, P_s, P_t) to this path; '-' for stdout (nothing else is written).");
         var quiet = new Option<bool>("--quiet") { Description = "No progress on stderr." };
         var threads = RunOptions.Opt("--threads", "Worker threads for the modes (default: all cores).");
+        var check = new Option<bool>("--check") { Description = "Only validate the deck and options, print the resolved settings, and stop." };
+        cmd.Options.Add(check);
         cmd.Options.Add(table);
         cmd.Options.Add(quiet);
         cmd.Options.Add(threads);
         cmd.SetAction(parse => CommandErrors.Guard(() =>
         {
             var settings = options.Resolve(parse);
+            if (parse.GetValue(check)) return Check(settings, Console.Out, Console.Error);
             var run = new SpectrumInvocation(
                 TablePath: RunOptions.Value(parse, table),
                 Quiet: parse.GetValue(quiet),
@@ -97,6 +100,25 @@ public static class SpectrumCommand
         output.WriteLine($"Wrote {written.Count} files to {settings.Output.Directory}: {string.Join(", ", written.Select(Path.GetFileName))}");
         return 0;
     }
+
+    /// <summary>
+    /// --check: builds the theory (checking it is valid at phi0), prints warnings to <paramref name="error"/> and the
+    /// resolved settings to <paramref name="output"/>; runs nothing. Returns 0.
+    /// </summary>
+    public static int Check(RunSettings settings, TextWriter output, TextWriter error)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        var theory = TheoryFactory.Build(settings);
+        foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + w);
+        output.WriteLine(settings.Summary());
+        var (lo, hi) = theory.ValidRange;
+        if (double.IsFinite(lo) || double.IsFinite(hi))
+            output.WriteLine(FormattableString.Invariant($"The theory is valid for {Bound(lo)} < phi < {Bound(hi)}."));
+        return 0;
+    }
+
+    private static string Bound(double x) =>
+        double.IsPositiveInfinity(x) ? "inf" : double.IsNegativeInfinity(x) ? "-inf" : x.ToString("G6", System.Globalization.CultureInfo.InvariantCulture);
 
     /// <summary>Parses --threads.</summary>
     internal static int ParseThreads(string? text)

@@ -120,7 +120,7 @@ public class CliTests
     public void SpectrumResolvesDeckWithOverridesAndSummarises()
     {
         string deck = DeckTests.RepoFile("runs/plateau-demo.toml");
-        var (code, output, err) = Run("spectrum", deck, "--param", "alpha=2", "--efolds", "50", "--k-count", "7");
+        var (code, output, err) = Run("spectrum", deck, "--check", "--param", "alpha=2", "--efolds", "50", "--k-count", "7");
         Assert.True(code == 0, err);
         Assert.Contains("alpha = 2", output);
         Assert.Contains("N_* = 50", output);
@@ -151,7 +151,7 @@ public class CliTests
     [Fact]
     public void NegativeNumbersAreOptionValues()
     {
-        var (code, output, err) = Run("spectrum", "--model", "natural", "--phi0", "-3", "--dphi0", "-0.01");
+        var (code, output, err) = Run("spectrum", "--check", "--model", "natural", "--phi0", "-3", "--dphi0", "-0.01");
         Assert.True(code == 0, err);
         Assert.Contains("phi0 = -3 with dphi/dN = -0.01", output);
     }
@@ -159,7 +159,7 @@ public class CliTests
     [Fact]
     public void SpectrumOneLineJordanFormWarnsAboutUnusedParameter()
     {
-        var (code, output, err) = Run("spectrum", "--potential", "lambda*phi^4/4", "--coupling", "1 + xi*phi^2", "--param", "lambda=0.1",
+        var (code, output, err) = Run("spectrum", "--check", "--potential", "lambda*phi^4/4", "--coupling", "1 + xi*phi^2", "--param", "lambda=0.1",
             "--param", "xi=100", "--param", "zeta=3", "--phi0", "1", "--reheat-T", "1e9");
         Assert.True(code == 0, err);
         Assert.Contains("Jordan frame, metric", output);
