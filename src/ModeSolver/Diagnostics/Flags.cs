@@ -46,8 +46,9 @@ public static class Flags
     }
 
     /// <summary>
-    /// k ranges where |exact/slowRoll - 1| exceeds <paramref name="threshold"/>, merged into contiguous ranges. Samples
-    /// whose slow-roll value is not a finite positive number are never flagged.
+    /// k ranges where |exact/slowRoll - 1| exceeds <paramref name="threshold"/>, merged into contiguous ranges. A finite
+    /// slow-roll value that is zero or negative (second-order slow roll with a large |epsilon_2|, e.g. in ultra-slow
+    /// roll) is the worst disagreement of all and is flagged; samples with a non-finite value are never flagged.
     /// </summary>
     /// <param name="k">Wavenumbers in 1/Mpc, strictly increasing and positive.</param>
     /// <param name="exact">Exact power at each k.</param>
@@ -72,7 +73,9 @@ public static class Flags
         for (int i = 0; i < k.Length; i++)
         {
             double d = exact[i] / slowRoll[i] - 1.0;
-            measure[i] = slowRoll[i] > 0 && double.IsFinite(slowRoll[i]) && double.IsFinite(d) ? Math.Abs(d) : double.NaN;
+            measure[i] = !double.IsFinite(slowRoll[i]) || !double.IsFinite(exact[i]) ? double.NaN
+                : !(slowRoll[i] > 0) ? double.PositiveInfinity
+                : double.IsFinite(d) ? Math.Abs(d) : double.NaN;
         }
 
         var flags = new List<Flag>();
@@ -82,8 +85,11 @@ public static class Flags
             double lo = Math.Exp(run.Lower), hi = Math.Exp(run.Upper);
             double diff = exact[w] / slowRoll[w] - 1.0;
             string where = string.Create(Inv, $"k = {lo:0.000e+00} .. {hi:0.000e+00} /Mpc");
-            string msg = string.Create(Inv,
-                $"{quantity}: exact and slow roll differ by up to {diff * 100:+0.00;-0.00}% (limit {threshold * 100:0.###}%) for {where}, worst at k = {k[w]:0.000e+00} /Mpc");
+            string msg = slowRoll[w] > 0
+                ? string.Create(Inv,
+                    $"{quantity}: exact and slow roll differ by up to {diff * 100:+0.00;-0.00}% (limit {threshold * 100:0.###}%) for {where}, worst at k = {k[w]:0.000e+00} /Mpc")
+                : string.Create(Inv,
+                    $"{quantity}: slow roll fails for {where}: it gives {slowRoll[w]:0.000e+00} (not positive) at k = {k[w]:0.000e+00} /Mpc, where the exact value is {exact[w]:0.000e+00}");
             flags.Add(new Flag(FlagKinds.SpectrumDeviation, quantity, msg, where, lo, hi, exact[w], slowRoll[w], diff));
         }
         return flags;
@@ -199,7 +205,8 @@ public static class Flags
     private static double Crossing(double x0, double m0, double x1, double m1, double limit)
     {
         double dm = m1 - m0;
-        if (dm == 0) return 0.5 * (x0 + x1);
+        // An infinite measure (non-positive slow-roll value) has no crossing to interpolate: take the midpoint.
+        if (dm == 0 || !double.IsFinite(dm)) return 0.5 * (x0 + x1);
         double t = Math.Clamp((limit - m0) / dm, 0.0, 1.0);
         return x0 + t * (x1 - x0);
     }

@@ -61,7 +61,7 @@ public sealed class ModeIntegrator
         double xs = settings.EffectiveStartDepth;
         double xStop = settings.EffectiveStopDepth;
         double nEnd = background.NEnd;
-        double n0 = StartTime(ref xs, settings.Tolerance, settings.InitialData);
+        double n0 = StartTime(ref xs, settings.Tolerance, settings.InitialData, scan);
         double xEnd = Math.Exp(_lnK - nEnd) / background.At(nEnd).H;
         if (xEnd > xStop)
             throw new PhysicsException($"mode k = {k:G6} is still at k/aH = {xEnd:G3} at the end of inflation (N = {nEnd:G8}); it must reach k/aH <= {xStop:G3}: the largest k allowed is {k * xStop / xEnd:G6}");
@@ -134,15 +134,17 @@ public sealed class ModeIntegrator
     private double ScalarIndex(double n)
     {
         var p = _bg.At(n);
-        double e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
-        return IndexFrom(2.0 - e1 + 1.5 * e2 - 0.5 * e1 * e2 + 0.25 * e2 * e2 + 0.5 * e2 * e3, 1.0 - e1);
+        return ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
     }
 
-    private double TensorIndex(double n)
-    {
-        var p = _bg.At(n);
-        return IndexFrom(2.0 - p.Epsilon1, 1.0 - p.Epsilon1);
-    }
+    private double TensorIndex(double n) => TensorIndexOf(_bg.At(n).Epsilon1);
+
+    /// <summary>Local index of the scalar mode from the Hubble-flow parameters (physics.md 3).</summary>
+    internal static double ScalarIndexOf(double e1, double e2, double e3) =>
+        IndexFrom(2.0 - e1 + 1.5 * e2 - 0.5 * e1 * e2 + 0.25 * e2 * e2 + 0.5 * e2 * e3, 1.0 - e1);
+
+    /// <summary>Local index of the tensor mode.</summary>
+    internal static double TensorIndexOf(double e1) => IndexFrom(2.0 - e1, 1.0 - e1);
 
     private double Integrate(double from, double to, OdeOptions options, double k)
     {
@@ -245,7 +247,7 @@ public sealed class ModeIntegrator
     /// deep inside the horizon with amplitude ~ 1/(k/aH); local vacuum data after it would miss that).
     /// Throws <see cref="PhysicsException"/> when the background starts too late.
     /// </summary>
-    private double StartTime(ref double depth, double tol, InitialDataKind kind)
+    private double StartTime(ref double depth, double tol, InitialDataKind kind, FrictionScan? scan = null)
     {
         double nA = _bg.NStart;
         double lnDepthA = LnDepth(nA);
@@ -261,6 +263,26 @@ public sealed class ModeIntegrator
             if (lnDepthA < Math.Log(deeper)) break;
             depth = deeper;
             n = DepthTime(depth, nA);
+        }
+        // A fast but smooth feature (a step in V) before this start, while the mode was still inside the horizon,
+        // leaves an excitation that local data at the start cannot know about: start before the earliest such
+        // feature (where the drift estimate |d nu/dN| / (k/aH)^3 exceeds the tolerance), then deepen as above.
+        if (kind == InitialDataKind.LocalIndexHankel)
+        {
+            double nLimit = DepthTime(MaxKinkDepth, nA);
+            double tBad = FirstDriftBefore(nLimit, n, tol, scan);
+            if (!double.IsNaN(tBad))
+            {
+                n = Math.Max(nA, tBad - FeatureMargin);
+                depth = Math.Exp(LnDepth(n));
+                for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > tol; it++)
+                {
+                    double deeper = depth * 1.5;
+                    if (lnDepthA < Math.Log(deeper)) break;
+                    depth = deeper;
+                    n = DepthTime(depth, nA);
+                }
+            }
         }
         var ns = _bg.NonSmoothTimes;
         for (int i = 0; i < ns.Count; i++)
@@ -285,6 +307,42 @@ public sealed class ModeIntegrator
             if (Math.Abs(ns[i] - n) < m) n = ns[i] - m > nA + m ? ns[i] - m : ns[i] + m;
         depth = Math.Exp(LnDepth(n));
         return Math.Min(n, _bg.NEnd);
+    }
+
+    /// <summary>E-folds by which a mode starts before the first cell of a fast feature (beyond the +-0.05 stencil of the drift estimate).</summary>
+    internal const double FeatureMargin = 0.06;
+
+    /// <summary>
+    /// The earliest N in [<paramref name="nFrom"/>, <paramref name="nTo"/>) where |d nu/dN| / (k/aH)^3 exceeds
+    /// <paramref name="tol"/> (NaN when nowhere): from the shared scan's table, or sampled every 0.01 e-folds without one.
+    /// </summary>
+    private double FirstDriftBefore(double nFrom, double nTo, double tol, FrictionScan? scan)
+    {
+        if (!(nTo > nFrom)) return double.NaN;
+        if (scan is not null && scan.NFrom <= nFrom) return scan.FirstDriftAbove(nFrom, nTo, _lnK, Math.Log(tol));
+        const double h = 0.01;
+        int cells = (int)Math.Ceiling((nTo - nFrom) / h);
+        double prevS = 0, prevT = 0, prevLnAH = 0;
+        for (int i = 0; i <= cells; i++)
+        {
+            double n = Math.Min(nTo, nFrom + i * h);
+            var p = _bg.At(n);
+            double s = ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3), t = TensorIndexOf(p.Epsilon1);
+            double lnAH = n + Math.Log(p.H);
+            if (i > 0)
+            {
+                double a = n - h;
+                bool kink = false;
+                var ks = _bg.NonSmoothTimes;
+                for (int j = 0; j < ks.Count; j++)
+                    if (ks[j] >= a - 1e-12 && ks[j] <= n + 1e-12) kink = true;
+                double d = Math.Max(Math.Abs(s - prevS), Math.Abs(t - prevT)) / h;
+                double lnX = _lnK - Math.Max(lnAH, prevLnAH);
+                if (!kink && d > 0 && Math.Log(d) - 3.0 * lnX > Math.Log(tol)) return a;
+            }
+            prevS = s; prevT = t; prevLnAH = lnAH;
+        }
+        return double.NaN;
     }
 
     /// <summary>Modes deeper than this inside the horizon at a non-smooth point are not started before it (cost grows with the depth).</summary>
