@@ -80,7 +80,7 @@ public static class SweepCommand
             }
             if (comm.Rank != 0) return summary.Completed ? 0 : InterruptedExitCode;
             var (_, records) = SweepResults.Load(dir);
-            SweepPlot.Write(dir, spec, records, new SweepPlotOptions { LogR = logR });
+            SweepPlot.Write(dir, spec, records, new SweepPlotOptions { LogR = logR || spec.LogR });
             if (!summary.Completed)
             {
                 Console.Error.WriteLine($"sweep interrupted: {summary.Done} of {summary.Total} points done in {dir}; run the same command again to resume");
