@@ -130,6 +130,29 @@ public class PipelineSweepTests
         Assert.InRange(records[1].Ns, 0.96, 0.97);
     }
 
+    [Fact]
+    public void PivotDeviationFlagsCompareExactWithSecondOrderSlowRoll()
+    {
+        var text = TModelDeck("""
+            [sweep]
+            [[sweep.axis]]
+            key = "efolds"
+            values = [55]
+            """);
+        var spec = SweepDeck.ParseSpec(text, "deck.toml");
+        var runDeck = ModeSolver.Decks.DeckReader.Parse(SweepDeck.RemoveSweep(text, "deck.toml"), "deck.toml");
+        var point = spec.GetPoint(0);
+        // Default thresholds (0.1 sigma): exact and second-order slow roll agree for the T-model, no flag.
+        var quiet = new PipelineSweepEvaluator(runDeck, spec.Keys, "deck.toml").Evaluate(point, CancellationToken.None);
+        Assert.True(quiet.Succeeded, quiet.FailureReason);
+        Assert.Empty(quiet.Flags);
+        // Thresholds far below the exact-vs-slow-roll difference (a 1e-9 fraction of sigma): every compared quantity flags.
+        var strict = new ModeSolver.Diagnostics.FlagSettings(PivotFraction: 1e-9);
+        var loud = new PipelineSweepEvaluator(runDeck, spec.Keys, "deck.toml", strict).Evaluate(point, CancellationToken.None);
+        Assert.Equal(["n_s-deviation", "r-deviation", "alpha_s-deviation", "n_t-deviation"], loud.Flags);
+        Assert.Equal(quiet.Ns, loud.Ns);
+    }
+
     [Theory]
     [InlineData("reheat.temperature", "reheat.temperature")]
     [InlineData("param.", "param.")]
