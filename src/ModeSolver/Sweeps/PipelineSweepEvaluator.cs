@@ -55,7 +55,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     {
         var spec = SweepDeck.ParseSpec(deckText, source);
         ValidateKeys(spec.Keys, source);
-        var deck = DeckReader.Parse(SweepDeck.RemoveSweep(deckText, source), source);
+        var deck = DeckReader.Parse(SweepDeck.BlankSweep(deckText, source), source);
         return new PipelineSweepEvaluator(deck, spec.Keys, source);
     }
 

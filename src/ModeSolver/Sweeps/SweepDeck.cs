@@ -148,7 +148,15 @@ public static class SweepDeck
     /// The deck text with the sweep table removed (the <c>[sweep]</c> table, every <c>[sweep.*]</c> and
     /// <c>[[sweep.*]]</c> table and any top-level <c>sweep...</c> key); everything else is kept byte for byte.
     /// </summary>
-    public static string RemoveSweep(string deckText, string source = "deck")
+    public static string RemoveSweep(string deckText, string source = "deck") => CutSweep(deckText, source, keepLines: false);
+
+    /// <summary>
+    /// Like <see cref="RemoveSweep"/>, but every removed line break is kept, so the remaining keys stay on their line
+    /// numbers (for error messages that cite the deck's lines).
+    /// </summary>
+    public static string BlankSweep(string deckText, string source = "deck") => CutSweep(deckText, source, keepLines: true);
+
+    private static string CutSweep(string deckText, string source, bool keepLines)
     {
         var doc = SyntaxParser.Parse(deckText, source, false);
         if (doc.HasErrors)
@@ -169,6 +177,9 @@ public static class SweepDeck
         {
             if (start < pos) continue;
             sb.Append(deckText, pos, start - pos);
+            if (keepLines)
+                for (int i = start; i < start + length; i++)
+                    if (deckText[i] == '\n') sb.Append('\n');
             pos = start + length;
         }
         sb.Append(deckText, pos, deckText.Length - pos);

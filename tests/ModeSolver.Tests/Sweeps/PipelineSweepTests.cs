@@ -153,6 +153,17 @@ public class PipelineSweepTests
         Assert.Equal(quiet.Ns, loud.Ns);
     }
 
+    [Fact]
+    public void RunDeckErrorsAfterTheSweepTableCiteTheirOwnLine()
+    {
+        const string text = "[model]\ncatalogue = \"t-model\"\n\n[sweep]\n[[sweep.axis]]\nkey = \"efolds\"\nvalues = [50, 60]\n\n[start]\nphi00 = 6.5\n";
+        var ex = Assert.Throws<ModeSolver.Decks.DeckException>(() => PipelineSweepEvaluator.FromDeckText(text, "deck.toml"));
+        Assert.StartsWith("deck.toml:10: start.phi00 is not a key of [start]", ex.Message, StringComparison.Ordinal);
+        // The blanked deck keeps every line; the removed one keeps none of the sweep table's.
+        Assert.Equal(text.Count(c => c == '\n'), SweepDeck.BlankSweep(text).Count(c => c == '\n'));
+        Assert.DoesNotContain("sweep", SweepDeck.BlankSweep(text), StringComparison.Ordinal);
+    }
+
     [Theory]
     [InlineData("reheat.temperature", "reheat.temperature")]
     [InlineData("param.", "param.")]
