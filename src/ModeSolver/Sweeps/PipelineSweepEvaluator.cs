@@ -87,19 +87,44 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     }
 
     /// <summary>
-    /// A swept <c>param.NAME</c> must be a parameter of the deck's model: a catalogue parameter or one named in
-    /// <c>[model.parameters]</c> (a formula model's parameters are checked per point by the formula parser).
+    /// A swept <c>param.NAME</c> must be a parameter of the deck's model: a catalogue model's parameter, or a name
+    /// used by the formulas of a model written out (a name no formula uses would change nothing).
     /// </summary>
     private void CheckParameters(IReadOnlyList<string> keys)
     {
-        ModelEntry? entry = _deck.ModelId is { } id ? ModelCatalogue.Find(id.Value.Trim()) : null;
-        if (entry is null) return;
+        var names = new List<string>();
+        string problem, listed;
+        if (_deck.ModelId is { } id)
+        {
+            var entry = ModelCatalogue.Find(id.Value.Trim());
+            if (entry is null) return; // the settings check names the unknown model
+            problem = $"model {entry.Id} has no parameter";
+            listed = "its parameters";
+            names.AddRange(entry.Parameters.Select(p => p.Name));
+        }
+        else if (_deck.Potential is { } potential)
+        {
+            problem = "the model's formulas use no parameter";
+            listed = "they use";
+            try
+            {
+                foreach (var text in new[] { potential.Value, _deck.Kinetic?.Value, _deck.Coupling?.Value })
+                    if (text is not null)
+                        foreach (var n in Formulas.Formula.ReferencedNames(text))
+                            if (!names.Contains(n)) names.Add(n);
+            }
+            catch (Formulas.FormulaException)
+            {
+                return; // the settings check reports the formula with its line
+            }
+        }
+        else return;
         foreach (var key in keys)
         {
             if (!key.StartsWith(ParamPrefix, StringComparison.Ordinal)) continue;
             string name = key[ParamPrefix.Length..];
-            if (entry.Parameters.Any(p => p.Name == name) || _deck.Parameters.ContainsKey(name)) continue;
-            throw new SweepException($"{_source}: sweep axis '{key}': model {entry.Id} has no parameter '{name}' (its parameters: {string.Join(", ", entry.Parameters.Select(p => p.Name))})");
+            if (names.Contains(name)) continue;
+            throw new SweepException($"{_source}: sweep axis '{key}': {problem} '{name}' ({listed}: {(names.Count == 0 ? "none" : string.Join(", ", names))})");
         }
     }
 

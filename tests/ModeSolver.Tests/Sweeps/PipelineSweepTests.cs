@@ -167,7 +167,7 @@ public class PipelineSweepTests
     [Theory]
     [InlineData("reheat.temperature", "reheat.temperature")]
     [InlineData("param.", "param.")]
-    [InlineData("param.beta", "has no parameter 'beta'")]
+    [InlineData("param.beta", "model t-model has no parameter 'beta' (its parameters: V0, alpha)")]
     public void UnknownSweepKeyIsRefusedWithOneLineBeforeAnyPointRuns(string key, string expected)
     {
         var dir = SweepTestSupport.TempDir("unknown-key");
@@ -190,6 +190,16 @@ public class PipelineSweepTests
         var line = Assert.Single(stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries));
         Assert.Contains(expected, line, StringComparison.Ordinal);
         Assert.False(Directory.Exists(outDir));
+    }
+
+    [Fact]
+    public void ParameterOfAFormulaModelMustBeUsedByItsFormulas()
+    {
+        const string text = "[model]\npotential = \"V0 * (1 - exp(-b * phi))^2\"\n[model.parameters]\nV0 = 1e-10\nb = 0.8\n[start]\nphi0 = 8.0\n" +
+                            "[sweep]\n[[sweep.axis]]\nkey = \"param.c\"\nvalues = [0.5, 0.8]\n";
+        var ex = Assert.Throws<SweepException>(() => PipelineSweepEvaluator.FromDeckText(text, "deck.toml"));
+        Assert.Equal("deck.toml: sweep axis 'param.c': the model's formulas use no parameter 'c' (they use: V0, b)", ex.Message);
+        Assert.NotNull(PipelineSweepEvaluator.FromDeckText(text.Replace("param.c", "param.b"), "deck.toml"));
     }
 
     [Fact]
