@@ -32,10 +32,10 @@ public static class SweepCommand
     }
 
     /// <summary>
-    /// Builds the physics evaluator for a deck. Not wired yet: the physics pipeline plugs in here.
+    /// Builds the physics evaluator for a deck: the run deck (without <c>[sweep]</c>) parsed once, the swept keys
+    /// checked (an unknown key is a one-line error listing the valid ones) before any point runs.
     /// </summary>
-    public static ISweepEvaluator CreateEvaluator(string deckPath) =>
-        throw new SweepException($"{deckPath}: the physics evaluator is not wired yet");
+    public static ISweepEvaluator CreateEvaluator(string deckPath) => PipelineSweepEvaluator.FromDeck(deckPath);
 
     private static int Run(FileInfo deckFile, DirectoryInfo? outDir, int? threads, string? shardText, bool restart, bool quiet, bool logR, CancellationToken ct)
     {
@@ -80,7 +80,7 @@ public static class SweepCommand
             }
             if (comm.Rank != 0) return summary.Completed ? 0 : InterruptedExitCode;
             var (_, records) = SweepResults.Load(dir);
-            SweepPlot.Write(dir, spec, records, new SweepPlotOptions { LogR = logR });
+            SweepPlot.Write(dir, spec, records, new SweepPlotOptions { LogR = logR || spec.LogR });
             if (!summary.Completed)
             {
                 Console.Error.WriteLine($"sweep interrupted: {summary.Done} of {summary.Total} points done in {dir}; run the same command again to resume");
@@ -89,7 +89,7 @@ public static class SweepCommand
             Console.WriteLine($"sweep: {summary.Total} points, {summary.Done - summary.Failed} ok, {summary.Failed} failed ({summary.Resumed} from an earlier run) -> {dir}");
             return 0;
         }
-        catch (Exception e) when (e is SweepException or MessagePassingException)
+        catch (Exception e) when (e is SweepException or MessagePassingException or ModeSolver.Decks.DeckException)
         {
             Console.Error.WriteLine($"error: {e.Message}");
             return 2;

@@ -19,7 +19,7 @@ public static class SweepMergeCommand
             {
                 var outDir = parseResult.GetValue(output)!.FullName;
                 var (spec, records, summary) = SweepMerge.Merge(parseResult.GetValue(dirs)!.Select(d => d.FullName).ToArray(), outDir);
-                SweepPlot.Write(outDir, spec, records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) });
+                SweepPlot.Write(outDir, spec, records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) || spec.LogR });
                 Console.WriteLine($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}");
                 return 0;
             }

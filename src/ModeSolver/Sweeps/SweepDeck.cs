@@ -13,6 +13,7 @@ namespace ModeSolver.Sweeps;
 /// [sweep]
 /// families = "param.alpha"   # the plot joins points along this key (optional)
 /// markers  = "efolds"        # marker shape per value of this key (optional)
+/// log_r    = true            # plot r on a logarithmic axis (optional, plot only)
 /// spectra  = false           # also store k, P_s, P_t per point (optional)
 /// zip      = ["reheat.w", "reheat.T"]   # keys that move together (optional; or a list of such lists)
 /// [[sweep.axis]]
@@ -25,7 +26,7 @@ public static class SweepDeck
     /// <summary>The name of the deck table read here.</summary>
     public const string TableName = "sweep";
 
-    private static readonly string[] SweepKeys = ["axis", "zip", "families", "markers", "spectra"];
+    private static readonly string[] SweepKeys = ["axis", "zip", "families", "markers", "spectra", "log_r"];
     private static readonly string[] AxisKeys = ["key", "linear", "log", "values"];
 
     /// <summary>Parses the TOML text of a deck and reads its sweep table. <paramref name="source"/> names the deck in errors.</summary>
@@ -82,7 +83,13 @@ public static class SweepDeck
             if (sp is not bool b) throw new SweepException($"{source}: 'sweep.spectra' must be true or false");
             spectra = b;
         }
-        try { return new SweepSpec(axes, zip, families, markers, spectra); }
+        bool logR = false;
+        if (sweep.TryGetValue("log_r", out var lr))
+        {
+            if (lr is not bool b) throw new SweepException($"{source}: 'sweep.log_r' must be true or false");
+            logR = b;
+        }
+        try { return new SweepSpec(axes, zip, families, markers, spectra) { LogR = logR }; }
         catch (SweepException e) { throw new SweepException($"{source}: {e.Message}"); }
     }
 
@@ -141,7 +148,15 @@ public static class SweepDeck
     /// The deck text with the sweep table removed (the <c>[sweep]</c> table, every <c>[sweep.*]</c> and
     /// <c>[[sweep.*]]</c> table and any top-level <c>sweep...</c> key); everything else is kept byte for byte.
     /// </summary>
-    public static string RemoveSweep(string deckText, string source = "deck")
+    public static string RemoveSweep(string deckText, string source = "deck") => CutSweep(deckText, source, keepLines: false);
+
+    /// <summary>
+    /// Like <see cref="RemoveSweep"/>, but every removed line break is kept, so the remaining keys stay on their line
+    /// numbers (for error messages that cite the deck's lines).
+    /// </summary>
+    public static string BlankSweep(string deckText, string source = "deck") => CutSweep(deckText, source, keepLines: true);
+
+    private static string CutSweep(string deckText, string source, bool keepLines)
     {
         var doc = SyntaxParser.Parse(deckText, source, false);
         if (doc.HasErrors)
@@ -162,6 +177,9 @@ public static class SweepDeck
         {
             if (start < pos) continue;
             sb.Append(deckText, pos, start - pos);
+            if (keepLines)
+                for (int i = start; i < start + length; i++)
+                    if (deckText[i] == '\n') sb.Append('\n');
             pos = start + length;
         }
         sb.Append(deckText, pos, deckText.Length - pos);

@@ -66,6 +66,16 @@ public static class SweepPlot
         bool log = options.LogR;
         int fam = spec.Families is null ? 0 : spec.IndexOf(spec.Families);
         int mark = spec.Markers is null ? (spec.Keys.Count > 1 ? (fam == 0 ? 1 : 0) : -1) : spec.IndexOf(spec.Markers);
+        // Keys zipped with the families key move along the line with it: they do not split the lines.
+        var along = new bool[spec.Keys.Count];
+        if (fam >= 0 && spec.Keys.Count > 0)
+        {
+            along[fam] = true;
+            foreach (var group in spec.Zip)
+                if (group.Contains(spec.Keys[fam]))
+                    foreach (var k in group) along[spec.IndexOf(k)] = true;
+        }
+        if (mark >= 0 && along[mark]) mark = fam;
         var values = new double[spec.Keys.Count];
         var lines = new SortedDictionary<string, List<(long Index, double Along, double MarkValue, double X, double Y)>>(StringComparer.Ordinal);
         var lineOrder = new Dictionary<string, long>();
@@ -73,7 +83,7 @@ public static class SweepPlot
         {
             if (!r.Ok || !double.IsFinite(r.Ns) || !double.IsFinite(r.R) || (log && r.R <= 0)) continue;
             spec.GetValues(r.Index, values);
-            var label = string.Join(", ", Enumerable.Range(0, values.Length).Where(j => j != fam).Select(j => $"{spec.Keys[j]} = {G(values[j])}"));
+            var label = string.Join(", ", Enumerable.Range(0, values.Length).Where(j => !along[j]).Select(j => $"{spec.Keys[j]} = {G(values[j])}"));
             if (!lines.TryGetValue(label, out var list)) { lines[label] = list = []; lineOrder[label] = r.Index; }
             list.Add((r.Index, values[fam], mark >= 0 ? values[mark] : 0, r.Ns, log ? Math.Log10(r.R) : r.R));
         }

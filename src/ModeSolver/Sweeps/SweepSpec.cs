@@ -167,6 +167,9 @@ public sealed class SweepSpec
     /// <summary>The key whose values get distinct marker shapes in the plot, or null.</summary>
     public string? Markers { get; }
 
+    /// <summary>Whether the plot draws r on a logarithmic axis (plot only: not part of <see cref="CanonicalText"/>).</summary>
+    public bool LogR { get; init; }
+
     /// <summary>Whether each point should also return its spectrum arrays (k, P_s, P_t).</summary>
     public bool Spectra { get; }
 

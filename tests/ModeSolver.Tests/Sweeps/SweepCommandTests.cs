@@ -29,7 +29,7 @@ public class SweepCommandTests
         var dir = SweepTestSupport.TempDir("cli-sweep");
         var deck = Path.Combine(dir, "deck.toml");
         File.WriteAllText(deck, SweepTestSupport.Deck);
-        // Until the physics evaluator is wired, a valid deck stops at SweepCommand.CreateEvaluator.
+        // The synthetic deck is no valid run deck ([model] name): the evaluator refuses it before anything is written.
         Assert.Equal(2, CliApp.Run(["sweep", deck, "--quiet", "--out", Path.Combine(dir, "out")]));
         Assert.Equal(2, CliApp.Run(["sweep", deck, "--quiet", "--shard", "3/3"]));
         Assert.Equal(2, CliApp.Run(["sweep", Path.Combine(dir, "absent.toml"), "--quiet"]));

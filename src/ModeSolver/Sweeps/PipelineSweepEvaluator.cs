@@ -1,0 +1,221 @@
+using System.Globalization;
+using ModeSolver.Decks;
+using ModeSolver.Diagnostics;
+using ModeSolver.Integrators;
+using ModeSolver.Models;
+using ModeSolver.Output;
+using ModeSolver.Physics;
+using ModeSolver.Pipeline;
+
+namespace ModeSolver.Sweeps;
+
+/// <summary>
+/// The physics evaluator of a sweep: the run deck (the sweep deck without its <c>[sweep]</c> table) is parsed once;
+/// each point overrides the deck with its swept values (command-line merge rules of <see cref="RunInput.Merge"/>),
+/// resolves the settings and runs the pivot stages (<see cref="SpectrumPipeline.RunPivot"/>), or the whole pipeline
+/// (<see cref="SpectrumPipeline.Run"/>) when the sweep asks for spectra. Settings or physics that fail for a point
+/// (<see cref="DeckException"/>, <see cref="PhysicsException"/>, ...) are returned as a failed point with the one-line
+/// reason. Thread-safe (the parsed deck is only read) and deterministic (each point runs single-threaded).
+/// </summary>
+public sealed class PipelineSweepEvaluator : ISweepEvaluator
+{
+    /// <summary>The keys a sweep axis may name (<c>param.NAME</c> stands for any model parameter).</summary>
+    public static IReadOnlyList<string> KnownKeys { get; } =
+        ["param.NAME", "efolds", "reheat.w", "reheat.T", "reheat.efolds", "phi0", "k_pivot", "amplitude"];
+
+    private const string ParamPrefix = "param.";
+    private readonly RunInput _deck;
+    private readonly PipelineOptions _options;
+    private readonly string _source;
+
+    /// <summary>Builds the evaluator from an already parsed run deck; validates the swept keys first.</summary>
+    /// <param name="deck">The run deck (not modified; must not be modified while the evaluator is in use).</param>
+    /// <param name="sweptKeys">The swept keys (<see cref="SweepSpec.Keys"/>).</param>
+    /// <param name="source">Deck name used in messages.</param>
+    /// <param name="flags">Flag thresholds (default: <see cref="FlagSettings.Default"/>).</param>
+    /// <exception cref="SweepException">a key the evaluator does not understand, or a parameter the model does not have.</exception>
+    public PipelineSweepEvaluator(RunInput deck, IReadOnlyList<string> sweptKeys, string source = "deck", FlagSettings? flags = null)
+    {
+        ArgumentNullException.ThrowIfNull(deck);
+        ArgumentNullException.ThrowIfNull(sweptKeys);
+        _deck = deck;
+        _source = source;
+        _options = new PipelineOptions { Threads = 1, Flags = flags ?? FlagSettings.Default };
+        ValidateKeys(sweptKeys, source);
+        CheckParameters(sweptKeys);
+    }
+
+    /// <summary>
+    /// Builds the evaluator from a sweep deck's text: parses the <c>[sweep]</c> table for the keys, and the rest as a
+    /// run deck (once).
+    /// </summary>
+    /// <exception cref="SweepException">bad sweep table or unknown swept key.</exception>
+    /// <exception cref="DeckException">bad run deck.</exception>
+    public static PipelineSweepEvaluator FromDeckText(string deckText, string source)
+    {
+        var spec = SweepDeck.ParseSpec(deckText, source);
+        ValidateKeys(spec.Keys, source);
+        var deck = DeckReader.Parse(SweepDeck.BlankSweep(deckText, source), source);
+        return new PipelineSweepEvaluator(deck, spec.Keys, source);
+    }
+
+    /// <summary>Builds the evaluator from the sweep deck at <paramref name="deckPath"/>.</summary>
+    public static PipelineSweepEvaluator FromDeck(string deckPath)
+    {
+        string text;
+        try
+        {
+            text = File.ReadAllText(deckPath);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new SweepException($"{deckPath}: cannot read the deck: {SweepDeck.OneLine(e.Message)}");
+        }
+        return FromDeckText(text, deckPath);
+    }
+
+    /// <summary>True when <paramref name="key"/> is a key this evaluator understands.</summary>
+    public static bool IsKnownKey(string key) =>
+        key.StartsWith(ParamPrefix, StringComparison.Ordinal) ? key.Length > ParamPrefix.Length : key != "param.NAME" && KnownKeys.Contains(key);
+
+    /// <summary>Throws a one-line <see cref="SweepException"/> naming the first unknown key and listing the valid ones.</summary>
+    public static void ValidateKeys(IReadOnlyList<string> keys, string source)
+    {
+        foreach (var key in keys)
+            if (!IsKnownKey(key))
+                throw new SweepException($"{source}: sweep axis '{key}' is not a key the sweep understands (valid: {string.Join(", ", KnownKeys)})");
+    }
+
+    /// <summary>
+    /// A swept <c>param.NAME</c> must be a parameter of the deck's model: a catalogue model's parameter, or a name
+    /// used by the formulas of a model written out (a name no formula uses would change nothing).
+    /// </summary>
+    private void CheckParameters(IReadOnlyList<string> keys)
+    {
+        var names = new List<string>();
+        string problem, listed;
+        if (_deck.ModelId is { } id)
+        {
+            var entry = ModelCatalogue.Find(id.Value.Trim());
+            if (entry is null) return; // the settings check names the unknown model
+            problem = $"model {entry.Id} has no parameter";
+            listed = "its parameters";
+            names.AddRange(entry.Parameters.Select(p => p.Name));
+        }
+        else if (_deck.Potential is { } potential)
+        {
+            problem = "the model's formulas use no parameter";
+            listed = "they use";
+            try
+            {
+                foreach (var text in new[] { potential.Value, _deck.Kinetic?.Value, _deck.Coupling?.Value })
+                    if (text is not null)
+                        foreach (var n in Formulas.Formula.ReferencedNames(text))
+                            if (!names.Contains(n)) names.Add(n);
+            }
+            catch (Formulas.FormulaException)
+            {
+                return; // the settings check reports the formula with its line
+            }
+        }
+        else return;
+        foreach (var key in keys)
+        {
+            if (!key.StartsWith(ParamPrefix, StringComparison.Ordinal)) continue;
+            string name = key[ParamPrefix.Length..];
+            if (names.Contains(name)) continue;
+            throw new SweepException($"{_source}: sweep axis '{key}': {problem} '{name}' ({listed}: {(names.Count == 0 ? "none" : string.Join(", ", names))})");
+        }
+    }
+
+    /// <summary>The resolved settings of a point: the deck overridden by the point's values.</summary>
+    /// <exception cref="DeckException">the combination is invalid (one line).</exception>
+    public RunSettings SettingsFor(SweepPoint point)
+    {
+        ArgumentNullException.ThrowIfNull(point);
+        var o = new RunInput();
+        for (int i = 0; i < point.Keys.Count; i++)
+        {
+            string key = point.Keys[i];
+            double v = point.Values[i];
+            var at = new Located<double>(v, $"sweep value {key} = {v.ToString("R", CultureInfo.InvariantCulture)}");
+            switch (key)
+            {
+                case "efolds": o.Efolds = at; break;
+                case "reheat.w": o.ReheatW = at; break;
+                case "reheat.T": o.ReheatTemperature = at; break;
+                case "reheat.efolds": o.ReheatEfolds = at; break;
+                case "phi0": o.Phi0 = at; break;
+                case "k_pivot": o.KPivot = at; break;
+                case "amplitude": o.Amplitude = new Located<double?>(v, at.Key); break;
+                default:
+                    if (!key.StartsWith(ParamPrefix, StringComparison.Ordinal)) throw new SweepException($"sweep key '{key}' is not understood");
+                    o.Parameters[key[ParamPrefix.Length..]] = at;
+                    break;
+            }
+        }
+        return SettingsResolver.Resolve(RunInput.Merge(_deck, o));
+    }
+
+    /// <inheritdoc />
+    public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
+    {
+        ct.ThrowIfCancellationRequested();
+        try
+        {
+            var settings = SettingsFor(point);
+            ct.ThrowIfCancellationRequested();
+            if (point.WantSpectrum)
+            {
+                var report = SpectrumPipeline.Run(settings, _options);
+                var p = report.Pivot;
+                return new SweepPointResult
+                {
+                    Ns = p.Ns, R = p.R, AlphaS = p.AlphaS, Nt = p.Nt, As = p.As, NStar = p.NStar, VScale = p.VScale,
+                    Flags = FlagNames(report.Flags),
+                    K = [.. report.Spectrum.K], Ps = [.. report.Spectrum.Ps], Pt = [.. report.Spectrum.Pt],
+                };
+            }
+            var run = SpectrumPipeline.RunPivot(settings, _options);
+            var pivot = run.Pivot;
+            var exact = run.Exact;
+            var results = new PivotResults(exact.Ns, exact.AlphaS, exact.R, exact.Nt, exact.Ps, pivot.KPivot, pivot.NStar, pivot.PhiStar,
+                pivot.HStar, pivot.VStarQuarterGeV, pivot.VScale, pivot.NTotal, pivot.NReh, exact.ErrorEstimate, double.NaN);
+            var sr = run.SlowRoll.SecondOrder;
+            var reference = new SlowRollEstimate(sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt);
+            var flags = Flags.PivotDeviations(results, reference, "second-order slow roll", _options.Flags);
+            return new SweepPointResult
+            {
+                Ns = exact.Ns, R = exact.R, AlphaS = exact.AlphaS, Nt = exact.Nt, As = exact.Ps, NStar = pivot.NStar, VScale = pivot.VScale,
+                Flags = FlagNames(flags),
+            };
+        }
+        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or ArgumentException or ArithmeticException
+                                      or Formulas.FormulaException or TheoryException)
+        {
+            return SweepPointResult.Failed(SweepDeck.OneLine(e.Message));
+        }
+    }
+
+    /// <summary>
+    /// Short names of flags for the sweep files: <c>n_s-deviation</c> (pivot, exact vs second-order slow roll),
+    /// <c>P_s-spectrum-deviation</c>, <c>epsilon_1-phase</c>, <c>epsilon_2-phase</c>; each at most once, in order.
+    /// </summary>
+    public static IReadOnlyList<string> FlagNames(IEnumerable<Flag> flags)
+    {
+        var names = new List<string>();
+        foreach (var f in flags)
+        {
+            string q = f.Quantity.Replace("|", "", StringComparison.Ordinal);
+            string name = f.Kind switch
+            {
+                FlagKinds.PivotDeviation => q + "-deviation",
+                FlagKinds.SpectrumDeviation => q + "-spectrum-deviation",
+                FlagKinds.BackgroundPhase => q + "-phase",
+                _ => q + "-" + f.Kind,
+            };
+            if (!names.Contains(name)) names.Add(name);
+        }
+        return names;
+    }
+}
