@@ -157,7 +157,7 @@ public sealed class ModeIntegrator
         }
         catch (IntegrationException e)
         {
-            throw new PhysicsException($"mode k = {k:G6}: the integration broke down at N = {e.T:G8} ({e.Failure}); check the background there", e);
+            throw new PhysicsException($"mode k = {k:G6}: the integration broke down at N = {e.T:G8} ({e.Failure}; {StateAt(e.T)}); check the background there", e);
         }
         _steps += sol.Statistics.AcceptedSteps + sol.Statistics.RejectedSteps;
         Array.Copy(sol.FinalState, _y, _dim);
@@ -351,6 +351,11 @@ public sealed class ModeIntegrator
             if (_tensor) DerivativeBlocks(6, _tOff, _dataFt, dn, c);
         }
         double xs = Math.Exp(_lnK - n0) / _bg.At(n0).H;
+        for (int i = 0; i < _dim; i++)
+        {
+            if (!double.IsFinite(_y[i]))
+                throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6}: the initial data at N = {n0:G8} are not finite (k/aH = {xs:G4}; {StateAt(n0)}); the background is not usable there");
+        }
         if (_scalar)
         {
             _scaleS = xs / Math.Sqrt(_y[0] * _y[0] + _y[1] * _y[1]); // |zeta| of order 1 after horizon exit
@@ -441,6 +446,14 @@ public sealed class ModeIntegrator
                 d[6 + 2 * j + 1] = du - u;
             }
         }
+    }
+
+    /// <summary>The background state at N, for error messages.</summary>
+    private string StateAt(double n)
+    {
+        if (!(n >= _bg.NStart && n <= _bg.NStop)) return "outside the background";
+        var p = _bg.At(n);
+        return FormattableString.Invariant($"phi = {p.Phi:G6}, dphi/dN = {p.DPhi:G6}, H = {p.H:G4}, epsilon_1 = {p.Epsilon1:G4}, epsilon_2 = {p.Epsilon2:G4}");
     }
 
     private static double IndexFrom(double u, double oneMinusE1)
