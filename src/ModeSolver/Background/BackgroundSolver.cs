@@ -47,7 +47,7 @@ public static class BackgroundSolver
             throw new PhysicsException($"The initial velocity dphi/dN = {dphi0} at phi = {phi0:G6} is not finite; give a finite dphi0.");
         double e1Start = 0.5 * k0.Value * dphi0 * dphi0;
         if (e1Start >= 3.0)
-            throw new PhysicsException($"epsilon_1 = {e1Start:G6} >= 3 at the start (N = 0, phi = {phi0:G6}, dphi/dN = {dphi0:G6}): the kinetic start is too large (H^2 = V/(3 - epsilon_1) needs epsilon_1 < 3); lower |dphi0| below {Math.Sqrt(6.0 / k0.Value):G6}.");
+            throw new PhysicsException($"epsilon_1 = {e1Start:G6} >= 3 at the start (N = 0, phi = {phi0:G6}, dphi/dN = {dphi0:G6}): the kinetic start is too large (H^2 = V/(3 - epsilon_1) needs epsilon_1 < 3); {(settings.DPhi0 is null ? "the slow-roll attractor velocity -V_phi/(K V) is that large here: start where the potential is flatter, or give a smaller dphi0" : $"lower |dphi0| below {Math.Sqrt(6.0 / k0.Value):G6}")}.");
         if (!(settings.Tolerance > 0 && settings.Tolerance < 1))
             throw new ArgumentOutOfRangeException(nameof(settings), "Tolerance must lie in (0, 1).");
 
@@ -142,7 +142,7 @@ public static class BackgroundSolver
             {
                 string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
                 if (ex.State.Length >= 2 && NonFiniteModel(ex.State[0], ex.State[1]) is { } bad)
-                    throw new PhysicsException($"The background reached a field value where the model is not finite ({bad}) at N = {ex.T:G8}, {state}; the potential or kinetic function is undefined there (e.g. sqrt or log of a negative number): restrict the model or end inflation before it (phi_end).", ex);
+                    throw new PhysicsException($"The background integration broke down at N = {ex.T:G8}, {state}: the model is not finite there ({bad}); the potential or kinetic function is undefined there (e.g. sqrt or log of a negative number): restrict the model or end inflation before it (phi_end).", ex);
                 throw new PhysicsException($"The background integration broke down ({ex.Failure}) at N = {ex.T:G8}, {state}: {OneLine(ex.Message)}; check the potential there or loosen the tolerance.", ex);
             }
         }

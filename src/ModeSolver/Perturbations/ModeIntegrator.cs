@@ -351,11 +351,6 @@ public sealed class ModeIntegrator
             if (_tensor) DerivativeBlocks(6, _tOff, _dataFt, dn, c);
         }
         double xs = Math.Exp(_lnK - n0) / _bg.At(n0).H;
-        for (int i = 0; i < _dim; i++)
-        {
-            if (!double.IsFinite(_y[i]))
-                throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6}: the initial data at N = {n0:G8} are not finite (k/aH = {xs:G4}; {StateAt(n0)}); the background is not usable there");
-        }
         if (_scalar)
         {
             _scaleS = xs / Math.Sqrt(_y[0] * _y[0] + _y[1] * _y[1]); // |zeta| of order 1 after horizon exit
@@ -365,6 +360,11 @@ public sealed class ModeIntegrator
         {
             _scaleT = xs / Math.Sqrt(_y[_tOff] * _y[_tOff] + _y[_tOff + 1] * _y[_tOff + 1]);
             for (int i = _tOff; i < _dim; i++) _y[i] *= _scaleT;
+        }
+        for (int i = 0; i < _dim; i++)
+        {
+            if (!double.IsFinite(_y[i]))
+                throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6}: the initial data at N = {n0:G8} are not finite (k/aH = {xs:G4}; {StateAt(n0)}); the background is not usable there");
         }
     }
 

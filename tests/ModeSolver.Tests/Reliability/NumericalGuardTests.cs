@@ -27,7 +27,7 @@ public class NumericalGuardTests
         // On the slow-roll attractor phi' = -V_phi/V the field takes about 76 e-folds from 8 to 3.
         var ex = Assert.Throws<PhysicsException>(() => BackgroundSolver.Solve(new NaNBelowThree(), new BackgroundSettings { Phi0 = 8 }));
         Assert.DoesNotContain("\n", ex.Message);
-        Assert.Contains("the model is not finite (V = NaN", ex.Message);
+        Assert.Contains("the model is not finite there (V = NaN", ex.Message);
         Assert.Matches(@"at N = 7\d\.\d+, phi = 3(\.0+\d*)?, dphi/dN = -0\.07", ex.Message);
     }
 
