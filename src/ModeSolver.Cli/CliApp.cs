@@ -39,7 +39,9 @@ public static class CliApp
             var parse = root.Parse(args);
             if (parse.Errors.Count > 0)
             {
-                Console.Error.WriteLine("modesolver: " + Commands.CommandErrors.OneLine(parse.Errors[0].Message) + " (see --help)");
+                // The most specific error first: an unknown command or argument explains a "command not provided".
+                var error = parse.Errors.FirstOrDefault(e => e.Message.StartsWith("Unrecognized", StringComparison.Ordinal)) ?? parse.Errors[0];
+                Console.Error.WriteLine("modesolver: " + Commands.CommandErrors.OneLine(error.Message) + " (see --help)");
                 return Commands.CommandErrors.UserError;
             }
             return parse.Invoke();

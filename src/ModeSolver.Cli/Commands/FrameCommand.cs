@@ -3,13 +3,14 @@ using System.Globalization;
 using System.Text;
 using ModeSolver.Decks;
 using ModeSolver.Models;
+using ModeSolver.Output;
 
 namespace ModeSolver.Cli.Commands;
 
 /// <summary>
 /// `modesolver frame`: the canonical field chi(phi) = int sqrt(K) dphi of a model and its potential V(chi), written as a
-/// text table and two plots (PNG and SVG) into --out DIR. Files are written under temporary names and renamed at the
-/// end, so an error leaves no partial file.
+/// text table and two plots (PNG and SVG) into --out DIR, all or nothing (<see cref="OutputTransaction"/>): an error
+/// leaves the directory as it was.
 /// </summary>
 public static class FrameCommand
 {
@@ -122,25 +123,18 @@ public static class FrameCommand
             v[i] = theory.Potential(phi[i]).Value;
         }
 
-        Directory.CreateDirectory(dir);
-        string tag = ".tmp-" + Guid.NewGuid().ToString("N")[..8] + "-";
-        var temps = OutputFiles.Select(f => Path.Combine(dir, tag + f)).ToArray();
-        try
-        {
-            File.WriteAllText(temps[0], Table(spec, reference, phi, chi, k, v));
-            var chiPlot = MakePlot(phi, chi, "phi (Jordan/input field, M_pl)", "chi (canonical field, M_pl)", "Canonical field chi(phi)");
-            chiPlot.SavePng(temps[1], 900, 560);
-            chiPlot.SaveSvg(temps[2], 900, 560);
-            var vPlot = MakePlot(chi, v, "chi (canonical field, M_pl)", "V (Einstein frame, M_pl^4, unnormalised)", "Potential against the canonical field");
-            vPlot.SavePng(temps[3], 900, 560);
-            vPlot.SaveSvg(temps[4], 900, 560);
-            for (int i = 0; i < temps.Length; i++) File.Move(temps[i], Path.Combine(dir, OutputFiles[i]), overwrite: true);
-        }
-        finally
-        {
-            foreach (string t in temps)
-                if (File.Exists(t)) File.Delete(t);
-        }
+        // All or nothing: every file is staged under a temporary name and renamed into place at the end; on any failure
+        // the temporaries (and a directory this run created) are removed, so the directory is left as it was.
+        string table = Table(spec, reference, phi, chi, k, v);
+        var chiPlot = MakePlot(phi, chi, "phi (Jordan/input field, M_pl)", "chi (canonical field, M_pl)", "Canonical field chi(phi)");
+        var vPlot = MakePlot(chi, v, "chi (canonical field, M_pl)", "V (Einstein frame, M_pl^4, unnormalised)", "Potential against the canonical field");
+        using var tx = new OutputTransaction(dir);
+        tx.Stage(OutputFiles[0], p => File.WriteAllText(p, table));
+        tx.Stage(OutputFiles[1], p => chiPlot.SavePng(p, 900, 560));
+        tx.Stage(OutputFiles[2], p => chiPlot.SaveSvg(p, 900, 560));
+        tx.Stage(OutputFiles[3], p => vPlot.SavePng(p, 900, 560));
+        tx.Stage(OutputFiles[4], p => vPlot.SaveSvg(p, 900, 560));
+        tx.Commit();
     }
 
     private static string Table(ModelSpec spec, double reference, double[] phi, double[] chi, double[] k, double[] v)

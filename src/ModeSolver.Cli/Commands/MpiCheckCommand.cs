@@ -37,7 +37,7 @@ public static class MpiCheckCommand
             }
             catch (MessagePassingException e)
             {
-                Console.Error.WriteLine($"error: {e.Message}");
+                Console.Error.WriteLine($"modesolver: {CommandErrors.OneLine(e.Message)}");
                 return 2;
             }
         });

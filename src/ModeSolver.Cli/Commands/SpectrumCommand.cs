@@ -64,6 +64,13 @@ public static class SpectrumCommand
             Threads = run.Threads,
             Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null,
         };
+        if (!tableOnly) OutputTransaction.Precheck(settings.Output.Directory);
+        else if (run.TablePath != "-")
+        {
+            if (string.IsNullOrWhiteSpace(run.TablePath) || Path.GetFileName(run.TablePath).Length == 0 || Directory.Exists(run.TablePath))
+                throw new DeckException($"--table expects a file path or '-' (got '{run.TablePath}', which names a directory)", "--table");
+            OutputTransaction.Precheck(Path.GetDirectoryName(Path.GetFullPath(run.TablePath))!);
+        }
         var report = SpectrumPipeline.Run(settings, pipelineOptions);
 
         if (tableOnly)

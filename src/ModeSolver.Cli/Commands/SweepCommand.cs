@@ -25,9 +25,9 @@ public static class SweepCommand
         {
             deck, output, threads, shard, restart, quiet, logR,
         };
-        command.SetAction((parseResult, ct) => Task.FromResult(Run(
+        command.SetAction((parseResult, ct) => Task.FromResult(CommandErrors.Guard(() => Run(
             parseResult.GetValue(deck)!, parseResult.GetValue(output), parseResult.GetValue(threads), parseResult.GetValue(shard),
-            parseResult.GetValue(restart), parseResult.GetValue(quiet), parseResult.GetValue(logR), ct)));
+            parseResult.GetValue(restart), parseResult.GetValue(quiet), parseResult.GetValue(logR), ct))));
         return command;
     }
 
@@ -91,12 +91,12 @@ public static class SweepCommand
         }
         catch (Exception e) when (e is SweepException or MessagePassingException or ModeSolver.Decks.DeckException)
         {
-            Console.Error.WriteLine($"error: {e.Message}");
+            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}");
             return 2;
         }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
-            Console.Error.WriteLine($"error: {SweepDeckMessage(e.Message)}");
+            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}");
             return 2;
         }
         finally

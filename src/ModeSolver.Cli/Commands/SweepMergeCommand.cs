@@ -13,7 +13,7 @@ public static class SweepMergeCommand
         var output = new Option<DirectoryInfo>("--out", "-o") { Description = "Directory for the merged files", Required = true };
         var logR = new Option<bool>("--log-r") { Description = "Plot r on a logarithmic axis" };
         var command = new Command("sweep-merge", "Merge the shard outputs of a sweep (sweep --shard I/N) into one set of files") { dirs, output, logR };
-        command.SetAction(parseResult =>
+        command.SetAction(parseResult => CommandErrors.Guard(() =>
         {
             try
             {
@@ -25,10 +25,10 @@ public static class SweepMergeCommand
             }
             catch (Exception e) when (e is SweepException or IOException or UnauthorizedAccessException)
             {
-                Console.Error.WriteLine($"error: {e.Message.Replace('\n', ' ')}");
+                Console.Error.WriteLine($"modesolver: {e.Message.Replace('\n', ' ')}");
                 return 2;
             }
-        });
+        }));
         return command;
     }
 }

@@ -68,7 +68,9 @@ internal static class BackgroundEquations
         double r = pp / p;
         double e2 = 2.0 * r + k1k * p;
         double e2d = 2.0 * ppp / p - 2.0 * r * r + (k2 / k - k1k * k1k) * p * p + k1k * pp;
-        double e3 = e2d / e2;
+        // e3 = d ln|e2|/dN is 0/0 where e2 vanishes identically (power law on its attractor): only e2 e3 = e2' enters
+        // the equations, so e3 = 0 where e2 = 0 exactly keeps every product finite instead of NaN.
+        double e3 = e2 != 0 ? e2d / e2 : 0.0;
         return new BackgroundPoint(n, phi, p, Math.Sqrt(hsq * vScale), e1, e2, e3);
     }
 }

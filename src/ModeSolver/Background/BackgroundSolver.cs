@@ -47,7 +47,7 @@ public static class BackgroundSolver
             throw new PhysicsException($"The initial velocity dphi/dN = {dphi0} at phi = {phi0:G6} is not finite; give a finite dphi0.");
         double e1Start = 0.5 * k0.Value * dphi0 * dphi0;
         if (e1Start >= 3.0)
-            throw new PhysicsException($"epsilon_1 = {e1Start:G6} >= 3 at the start (N = 0, phi = {phi0:G6}, dphi/dN = {dphi0:G6}): the kinetic start is too large (H^2 = V/(3 - epsilon_1) needs epsilon_1 < 3); lower |dphi0| below {Math.Sqrt(6.0 / k0.Value):G6}.");
+            throw new PhysicsException($"epsilon_1 = {e1Start:G6} >= 3 at the start (N = 0, phi = {phi0:G6}, dphi/dN = {dphi0:G6}): the kinetic start is too large (H^2 = V/(3 - epsilon_1) needs epsilon_1 < 3); {(settings.DPhi0 is null ? "the slow-roll attractor velocity -V_phi/(K V) is that large here: start where the potential is flatter, or give a smaller dphi0" : $"lower |dphi0| below {Math.Sqrt(6.0 / k0.Value):G6}")}.");
         if (!(settings.Tolerance > 0 && settings.Tolerance < 1))
             throw new ArgumentOutOfRangeException(nameof(settings), "Tolerance must lie in (0, 1).");
 
@@ -141,6 +141,8 @@ public static class BackgroundSolver
             catch (IntegrationException ex)
             {
                 string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
+                if (ex.State.Length >= 2 && NonFiniteModel(ex.State[0], ex.State[1]) is { } bad)
+                    throw new PhysicsException($"The background integration broke down at N = {ex.T:G8}, {state}: the model is not finite there ({bad}); the potential or kinetic function is undefined there (e.g. sqrt or log of a negative number): restrict the model or end inflation before it (phi_end).", ex);
                 throw new PhysicsException($"The background integration broke down ({ex.Failure}) at N = {ex.T:G8}, {state}: {OneLine(ex.Message)}; check the potential there or loosen the tolerance.", ex);
             }
         }
@@ -151,6 +153,26 @@ public static class BackgroundSolver
             foreach (var ev in sol.Events)
                 if (specs[ev.EventIndex].Terminal && ev.T == sol.TFinal) return ev;
             return sol.Events[^1];
+        }
+
+        /// <summary>Describes V, K or a derivative that is NaN or infinite at, beside or just ahead of <paramref name="phi"/>; null when all are finite.</summary>
+        private string? NonFiniteModel(double phi, double dphi)
+        {
+            if (!double.IsFinite(phi)) return $"phi = {phi}";
+            // The failing step may have probed a little ahead of the last good state: look there too, in the direction of motion.
+            double dir = double.IsFinite(dphi) && dphi != 0 ? Math.Sign(dphi) * Math.Max(Math.Abs(dphi), 1e-3) : 1.0;
+            var probes = new List<double> { phi, Math.BitIncrement(phi), Math.BitDecrement(phi) };
+            for (double h = 1e-9; h <= 0.5; h *= 3) probes.Add(phi + dir * h);
+            foreach (double x in probes)
+            {
+                var v = _theory.Potential(x);
+                var k = _theory.Kinetic(x);
+                if (!double.IsFinite(v.Value) || !double.IsFinite(v.D1) || !double.IsFinite(v.D2))
+                    return $"V = {v.Value:G6}, V_phi = {v.D1:G6} at phi = {x:G10}";
+                if (!double.IsFinite(k.Value) || !double.IsFinite(k.D1) || !double.IsFinite(k.D2))
+                    return $"K = {k.Value:G6}, K_phi = {k.D1:G6} at phi = {x:G10}";
+            }
+            return null;
         }
 
         private static string OneLine(string s) => s.Replace('\n', ' ').Replace('\r', ' ');
@@ -295,7 +317,8 @@ public static class BackgroundSolver
                         break;
                     case Kind.RangeLow:
                     case Kind.RangeHigh:
-                        throw new PhysicsException($"The field left the theory's valid range after the end of inflation at N = {n:G8}, phi = {value:G6}; set fewer e-folds after the end.");
+                        // Inflation has ended already: the model being undefined further on only cuts the continuation short.
+                        return (false, y, n);
                     case Kind.Fall:
                         pendingFall = n;
                         SetRestart(y[0], y[1], atKink: false);

@@ -51,6 +51,9 @@ public static class DeckReader
         TomlTable root;
         try
         {
+            // Strict syntax pass with semantic validation first: it rejects what the deserializer lets through
+            // (a key defined twice, a table defined twice).
+            _ = Tomlyn.Parsing.SyntaxParser.ParseStrict(text, sourceName, validate: true);
             root = TomlSerializer.Deserialize<TomlTable>(text, options) ?? new TomlTable();
         }
         catch (TomlException e)
@@ -68,7 +71,11 @@ public static class DeckReader
     private static string FirstLine(string s)
     {
         int i = s.IndexOf('\n');
-        return (i < 0 ? s : s[..i]).Trim();
+        string line = (i < 0 ? s : s[..i]).Trim();
+        // "deck.toml(4,7) : error : what" -> "column 7: what" (the file and line are already in front of the message).
+        var m = System.Text.RegularExpressions.Regex.Match(line, @"^.*?\((\d+),(\d+)\)\s*:\s*error\s*:\s*(.*)$");
+        if (m.Success) line = $"column {m.Groups[2].Value}: {m.Groups[3].Value}";
+        return line.Replace("\u2424", "end of line");
     }
 
     private sealed class Walker(string file, TomlMetadataStore store)

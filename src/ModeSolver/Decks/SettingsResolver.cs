@@ -164,7 +164,7 @@ public static class SettingsResolver
         double tol = kd.Tolerance;
         if (input.Tolerance is { } tt)
         {
-            if (!(tt.Value > 0 && tt.Value <= 0.1)) throw tt.Error($"must lie in (0, 0.1] (got {tt.Value})");
+            if (!(tt.Value > 0 && tt.Value < 0.1)) throw tt.Error($"must lie in (0, 0.1), e.g. 1e-5 (got {tt.Value})");
             tol = tt.Value;
         }
         var kRange = new KRangeSpec(kMin, kMax, (int)count, tol);

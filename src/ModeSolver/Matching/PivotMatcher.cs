@@ -56,7 +56,18 @@ public static class PivotMatcher
             if (settings.ScalarAmplitude is double target)
             {
                 double kbg = Math.Exp(nPiv) * pt.H;
-                psPivot = amplitude.ScalarPower(bgs, kbg);
+                try
+                {
+                    psPivot = amplitude.ScalarPower(bgs, kbg);
+                }
+                catch (PhysicsException e) when (nPiv > 600)
+                {
+                    throw new PhysicsException($"The pivot lies {nPiv:G6} e-folds after the start of the background (phi0 = {background.At(background.NStart).Phi:G6}): more than about 600 e-folds before the pivot exceed the floating-point range of a = exp(N); start the field closer to the end of inflation (phi0).", e);
+                }
+                catch (PhysicsException e)
+                {
+                    throw new PhysicsException($"The pivot mode (N_* = {nStar:G6}, at N = {nPiv:G8}, phi = {pt.Phi:G6}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
+                }
                 if (!(psPivot > 0) || !double.IsFinite(psPivot))
                     throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {psPivot} at the pivot (N = {nPiv:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
                 ratio = target / psPivot;

@@ -24,6 +24,32 @@ public sealed class OutputTransaction : IDisposable
         Directory = Path.GetFullPath(directory);
     }
 
+    /// <summary>
+    /// A cheap check before a long run: throws <see cref="OutputException"/> when <paramref name="directory"/> is an
+    /// existing file or cannot be created because a part of its path is a file. Touches nothing.
+    /// </summary>
+    public static void Precheck(string directory)
+    {
+        if (string.IsNullOrWhiteSpace(directory)) throw new OutputException("the output directory is empty");
+        string full;
+        try
+        {
+            full = Path.GetFullPath(directory);
+        }
+        catch (Exception ex) when (ex is ArgumentException or NotSupportedException or PathTooLongException)
+        {
+            throw new OutputException($"the output directory '{directory}' is not a valid path: {OneLine(ex.Message)}", ex);
+        }
+        for (string? d = full; d is not null; d = Path.GetDirectoryName(d))
+        {
+            if (File.Exists(d))
+                throw new OutputException(d == full
+                    ? $"output directory {full} is an existing file; choose another directory"
+                    : $"cannot create output directory {full}: {d} is a file; choose another directory");
+            if (System.IO.Directory.Exists(d)) return;
+        }
+    }
+
     /// <summary>Absolute path of the output directory.</summary>
     public string Directory { get; }
 

@@ -159,7 +159,7 @@ public sealed class ModeIntegrator
         }
         catch (IntegrationException e)
         {
-            throw new PhysicsException($"mode k = {k:G6}: the integration broke down at N = {e.T:G8} ({e.Failure}); check the background there", e);
+            throw new PhysicsException($"mode k = {k:G6}: the integration broke down at N = {e.T:G8} ({e.Failure}; {StateAt(e.T)}); check the background there", e);
         }
         _steps += sol.Statistics.AcceptedSteps + sol.Statistics.RejectedSteps;
         Array.Copy(sol.FinalState, _y, _dim);
@@ -419,6 +419,11 @@ public sealed class ModeIntegrator
             _scaleT = xs / Math.Sqrt(_y[_tOff] * _y[_tOff] + _y[_tOff + 1] * _y[_tOff + 1]);
             for (int i = _tOff; i < _dim; i++) _y[i] *= _scaleT;
         }
+        for (int i = 0; i < _dim; i++)
+        {
+            if (!double.IsFinite(_y[i]))
+                throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6}: the initial data at N = {n0:G8} are not finite (k/aH = {xs:G4}; {StateAt(n0)}); the background is not usable there");
+        }
     }
 
     /// <summary>Value, first and second total ln k derivative blocks for the quantity whose data start at <paramref name="d"/>.</summary>
@@ -499,6 +504,14 @@ public sealed class ModeIntegrator
                 d[6 + 2 * j + 1] = du - u;
             }
         }
+    }
+
+    /// <summary>The background state at N, for error messages.</summary>
+    private string StateAt(double n)
+    {
+        if (!(n >= _bg.NStart && n <= _bg.NStop)) return "outside the background";
+        var p = _bg.At(n);
+        return FormattableString.Invariant($"phi = {p.Phi:G6}, dphi/dN = {p.DPhi:G6}, H = {p.H:G4}, epsilon_1 = {p.Epsilon1:G4}, epsilon_2 = {p.Epsilon2:G4}");
     }
 
     private static double IndexFrom(double u, double oneMinusE1)

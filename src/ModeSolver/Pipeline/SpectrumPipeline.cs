@@ -97,6 +97,7 @@ public static class SpectrumPipeline
             KMin = pivot.ToBackgroundUnits(kr.KMin),
             KMax = pivot.ToBackgroundUnits(kr.KMax),
             KCount = kr.Count,
+            MaxPoints = Math.Max(kr.Count + 1, 2000), // the deck may ask for more wavenumbers than the default refinement cap
             Tolerance = kr.Tolerance,
             DegreeOfParallelism = options.Threads,
             ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [kPivotBg] : [],
