@@ -46,6 +46,18 @@ public sealed class FrictionScan
         return new FrictionScan(nFrom, h, logG);
     }
 
+    /// <summary>
+    /// The scan of <paramref name="background"/> from its start: for a <see cref="BackgroundSolution"/> built once and
+    /// shared by all its rescaled views (F depends on e1 and e2 only, not on the V scale); otherwise built now.
+    /// </summary>
+    public static FrictionScan FromStart(IBackground background)
+    {
+        ArgumentNullException.ThrowIfNull(background);
+        return background is BackgroundSolution b
+            ? b.ScaleFreeTable(static x => Build(x, x.NStart))
+            : Build(background, background.NStart);
+    }
+
     /// <summary>ln G(N) (conservative: the larger of the two neighbouring grid values).</summary>
     public double LogGrowthAfter(double n)
     {

@@ -171,7 +171,7 @@ public sealed class ModeIntegrator
         y.CopyTo(_y);
         var p = _bg.At(n);
         double x = Math.Exp(_lnK - n) / p.H;
-        _scan ??= FrictionScan.Build(_bg, n);
+        _scan ??= _bg is BackgroundSolution ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n);
         if (!(x * x * Math.Exp(_scan.LogGrowthAfter(n)) <= _stopTol)) return false;
         Rhs(n, _y, _k1);
         if (!TryFreeze(_stopTol, out _stopCorrection)) return false;
