@@ -32,6 +32,7 @@ if (args.Length >= 3 && args[0] == "--loop")
             case "mode": ModeSolver.Spectra.PivotValues.Compute(run.Pivot.Background, kp, 1e-6); break;
             case "pivot": SpectrumPipeline.RunPivot(s); break;
             case "spectrum": SpectrumPipeline.Run(s); break;
+            case "stages": BenchDecks.Stages(s); break;
             case "background": ModeSolver.Background.BackgroundSolver.Solve(run.Theory, SpectrumPipeline.BackgroundSettingsFor(s)); break;
             case "theory": ModeSolver.Decks.TheoryFactory.Build(s); break;
             default: throw new ArgumentException("unknown loop " + args[1]);
