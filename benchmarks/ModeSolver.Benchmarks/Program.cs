@@ -53,7 +53,7 @@ if (args.Length >= 1 && args[0] == "--profile")
         Array.Sort(t);
         return t[count / 2];
     }
-    for (int i = 0; i < 3; i++) SpectrumPipeline.Run(s);
+    for (int i = 0; i < 40; i++) { SpectrumPipeline.Run(s); BenchDecks.Stages(s); } // past tiered JIT
     var stageNames = new List<string>();
     var stageTimes = new Dictionary<string, List<double>>();
     double full = Median(() =>
