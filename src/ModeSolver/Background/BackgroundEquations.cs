@@ -52,9 +52,11 @@ internal static class BackgroundEquations
     /// (differentiating the equation of motion along the flow, with (H^2)' = -2 e1 H^2), never by differencing.
     /// </summary>
     public static BackgroundPoint Point(IInflatonTheory theory, double n, double phi, double p, double hsq, double vScale)
+        => Point(theory.Potential(phi), theory.Kinetic(phi), n, phi, p, hsq, vScale);
+
+    /// <summary>As <see cref="Point(IInflatonTheory, double, double, double, double, double)"/> with V and K already evaluated at phi.</summary>
+    public static BackgroundPoint Point(Jet3 v, Jet3 kj, double n, double phi, double p, double hsq, double vScale)
     {
-        Jet3 v = theory.Potential(phi);
-        Jet3 kj = theory.Kinetic(phi);
         double k = kj.Value, k1 = kj.D1, k2 = kj.D2;
         double v1 = v.D1, v2 = v.D2;
         double k1k = k1 / k;

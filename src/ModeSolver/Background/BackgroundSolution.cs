@@ -36,6 +36,19 @@ public sealed class BackgroundSolution : IBackground
         public required double[] GridPhi { get; init; }
         public required int GridEndIndex { get; init; }     // GridN[GridEndIndex] == NEnd
         public required double[] SuffixMinLnAH { get; init; } // suffix minimum of ln(aH) (unscaled) over [0, NEnd]
+        // One derived table that does not depend on the V scale (built once, shared by every view and thread).
+        public object? ScaleFreeTable;
+    }
+
+    /// <summary>
+    /// A table derived from the shape of this background only (not from the V scale), built on first use by
+    /// <paramref name="create"/> and then shared by every rescaled view and thread. One slot: one table type per background.
+    /// </summary>
+    internal T ScaleFreeTable<T>(Func<BackgroundSolution, T> create) where T : class
+    {
+        if (Volatile.Read(ref _shared.ScaleFreeTable) is T existing) return existing;
+        Interlocked.CompareExchange(ref _shared.ScaleFreeTable, create(this), null);
+        return (T)_shared.ScaleFreeTable!;
     }
 
     private BackgroundSolution(Shared shared, double vScale)
@@ -166,8 +179,11 @@ public sealed class BackgroundSolution : IBackground
             return BackgroundEquations.Point(theory, n, y[0], y[1], Math.Exp(2.0 * y[2]), VScale);
         }
         seg.Solution.Evaluate(t, y[..2]);
-        double hsq = BackgroundEquations.ConstraintHubbleSquared(theory, y[0], y[1]);
-        return BackgroundEquations.Point(theory, n, y[0], y[1], hsq, VScale);
+        // V and K once each (the same values ConstraintHubbleSquared and Point would compute separately).
+        Jet3 v = theory.Potential(y[0]);
+        Jet3 kj = theory.Kinetic(y[0]);
+        double hsq = v.Value / (3.0 - 0.5 * kj.Value * y[1] * y[1]);
+        return BackgroundEquations.Point(v, kj, n, y[0], y[1], hsq, VScale);
     }
 
     /// <summary>The scaled potential V(phi(N)).</summary>

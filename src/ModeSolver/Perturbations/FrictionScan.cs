@@ -13,84 +13,118 @@ namespace ModeSolver.Perturbations;
 /// </summary>
 public sealed class FrictionScan
 {
+    private readonly IBackground _background;
     private readonly double _n0;
     private readonly double _dn;
+    private readonly double _nEnd;
+    private readonly double[] _f;
     private readonly double[] _logG;
+    private readonly double[] _nuS;
+    private readonly double[] _nuT;
+    private readonly double[] _lnAH; // ln(aH) at unit V scale, so that one table serves every rescaled view
+    private readonly double _lnSqrtScale;
     private readonly double[] _logDrift;
+    private readonly object _gate = new();
+    private int _lo; // lowest grid index computed so far (entries at and above it are final)
 
-    private FrictionScan(double n0, double dn, double[] logG, double[] logDrift)
+    private FrictionScan(IBackground background, double nFrom, double dn)
     {
-        _n0 = n0;
-        _dn = dn;
-        _logG = logG;
-        _logDrift = logDrift;
+        _background = background;
+        _lnSqrtScale = 0.5 * Math.Log(background.VScale);
+        _nEnd = background.NEnd;
+        if (!(nFrom < _nEnd)) nFrom = _nEnd - dn;
+        int m = Math.Max(2, (int)Math.Ceiling((_nEnd - nFrom) / dn) + 1);
+        _n0 = nFrom;
+        _dn = (_nEnd - nFrom) / (m - 1);
+        _f = new double[m];
+        _logG = new double[m];
+        _nuS = new double[m];
+        _nuT = new double[m];
+        _lnAH = new double[m];
+        _logDrift = new double[m - 1];
+        _lo = m;
     }
 
     /// <summary>Tabulates G on [<paramref name="nFrom"/>, background NEnd] with spacing <paramref name="dn"/> e-folds.</summary>
     public static FrictionScan Build(IBackground background, double nFrom, double dn = 0.01)
     {
         ArgumentNullException.ThrowIfNull(background);
-        double nEnd = background.NEnd;
-        if (!(nFrom < nEnd)) nFrom = nEnd - dn;
-        int m = Math.Max(2, (int)Math.Ceiling((nEnd - nFrom) / dn) + 1);
-        double h = (nEnd - nFrom) / (m - 1);
-        var f = new double[m];
-        var nuS = new double[m];
-        var nuT = new double[m];
-        var lnAH = new double[m];
-        for (int i = 0; i < m; i++)
+        var scan = new FrictionScan(background, nFrom, dn);
+        scan.ExtendTo(0);
+        return scan;
+    }
+
+    /// <summary>
+    /// The scan of <paramref name="background"/> from its start: for a <see cref="BackgroundSolution"/> one table shared
+    /// by all its rescaled views and threads (F and the indices depend on e1, e2, e3 only, not on the V scale; the drift
+    /// table uses ln aH, which a V scale shifts by a constant that the caller's ln k carries too), filled backwards from
+    /// the end only as far as the queries reach (the same grid and values as <see cref="Build"/>); otherwise built now.
+    /// </summary>
+    public static FrictionScan FromStart(IBackground background)
+    {
+        ArgumentNullException.ThrowIfNull(background);
+        return background is BackgroundSolution b
+            ? b.ScaleFreeTable(static x => new FrictionScan(x, x.NStart, 0.01))
+            : Build(background, background.NStart);
+    }
+
+    /// <summary>Fills the table down to grid index <paramref name="target"/> (thread-safe; idempotent).</summary>
+    private void ExtendTo(int target)
+    {
+        lock (_gate)
         {
-            double n = Math.Min(nEnd, nFrom + i * h);
-            var p = background.At(n);
-            f[i] = 3.0 - p.Epsilon1 + p.Epsilon2;
-            nuS[i] = ModeIntegrator.ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
-            nuT[i] = ModeIntegrator.TensorIndexOf(p.Epsilon1);
-            lnAH[i] = n + Math.Log(p.H);
+            int lo = _lo, m = _f.Length;
+            if (target >= lo) return;
+            var kinks = _background.NonSmoothTimes;
+            for (int i = lo - 1; i >= target; i--)
+            {
+                double n = Math.Min(_nEnd, _n0 + i * _dn);
+                var p = _background.At(n);
+                _f[i] = 3.0 - p.Epsilon1 + p.Epsilon2;
+                _nuS[i] = ModeIntegrator.ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
+                _nuT[i] = ModeIntegrator.TensorIndexOf(p.Epsilon1);
+                _lnAH[i] = n + Math.Log(p.H) - _lnSqrtScale;
+                if (i == m - 1) { _logG[i] = 0.0; continue; }
+                // The smaller end value of F over the cell: conservative.
+                double fc = Math.Min(_f[i], _f[i + 1]);
+                _logG[i] = Math.Max(0.0, _logG[i + 1] - fc * _dn);
+                // Per cell: ln(|d nu / dN| (aH)^3), with the later (larger) aH of the cell: conservative. A mode k has
+                // |d nu/dN| / (k/aH)^3 = exp(logDrift - 3 ln k) there. Cells holding a non-smooth point are left out
+                // (-inf): modes are started before those anyway.
+                double a = _n0 + i * _dn, b = a + _dn;
+                bool kink = false;
+                for (int j = 0; j < kinks.Count; j++)
+                    if (kinks[j] >= a - 1e-12 && kinks[j] <= b + 1e-12) kink = true;
+                double d = Math.Max(Math.Abs(_nuS[i + 1] - _nuS[i]), Math.Abs(_nuT[i + 1] - _nuT[i])) / _dn;
+                _logDrift[i] = kink || !(d > 0) ? double.NegativeInfinity : Math.Log(d) + 3.0 * Math.Max(_lnAH[i], _lnAH[i + 1]);
+            }
+            Volatile.Write(ref _lo, target);
         }
-        // Per cell: ln(|d nu / dN| (aH)^3), with the later (larger) aH of the cell: conservative. A mode k has
-        // |d nu/dN| / (k/aH)^3 = exp(logDrift - 3 ln k) there. Cells holding a non-smooth point are left out (-inf):
-        // modes are started before those anyway.
-        var logDrift = new double[m - 1];
-        var kinks = background.NonSmoothTimes;
-        for (int i = 0; i < m - 1; i++)
-        {
-            double a = nFrom + i * h, b = a + h;
-            bool kink = false;
-            for (int j = 0; j < kinks.Count; j++)
-                if (kinks[j] >= a - 1e-12 && kinks[j] <= b + 1e-12) kink = true;
-            double d = Math.Max(Math.Abs(nuS[i + 1] - nuS[i]), Math.Abs(nuT[i + 1] - nuT[i])) / h;
-            logDrift[i] = kink || !(d > 0) ? double.NegativeInfinity : Math.Log(d) + 3.0 * Math.Max(lnAH[i], lnAH[i + 1]);
-        }
-        var logG = new double[m];
-        logG[m - 1] = 0.0;
-        for (int i = m - 2; i >= 0; i--)
-        {
-            // The smaller end value of F over the cell: conservative.
-            double fc = Math.Min(f[i], f[i + 1]);
-            logG[i] = Math.Max(0.0, logG[i + 1] - fc * h);
-        }
-        return new FrictionScan(nFrom, h, logG, logDrift);
     }
 
     /// <summary>ln G(N) (conservative: the larger of the two neighbouring grid values).</summary>
     public double LogGrowthAfter(double n)
     {
         double u = (n - _n0) / _dn;
-        if (u <= 0) return _logG[0];
-        int i = (int)u;
+        int i = u <= 0 ? 0 : (int)Math.Min(u, _logG.Length);
         if (i >= _logG.Length - 1) return 0.0;
+        // Fill in blocks of at least 2 e-folds so that a sweep of queries extends the table only a few times.
+        if (i < Volatile.Read(ref _lo)) ExtendTo(Math.Max(0, Math.Min(i, Volatile.Read(ref _lo) - 200)));
+        if (u <= 0) return _logG[0];
         return Math.Max(_logG[i], _logG[i + 1]);
     }
 
     /// <summary>
     /// The start of the earliest grid cell in [<paramref name="nFrom"/>, <paramref name="nTo"/>) where the index drift
     /// of mode ln k = <paramref name="lnK"/>, |d nu/dN| / (k/aH)^3, exceeds exp(<paramref name="lnTolerance"/>); NaN when none.
+    /// <paramref name="lnK"/> is ln k at unit V scale: ln k - ln sqrt(VScale) of the background the mode runs on.
     /// </summary>
     public double FirstDriftAbove(double nFrom, double nTo, double lnK, double lnTolerance)
     {
         double limit = lnTolerance + 3.0 * lnK;
         int i0 = Math.Max(0, (int)Math.Floor((nFrom - _n0) / _dn));
         int i1 = Math.Min(_logDrift.Length, (int)Math.Ceiling((nTo - _n0) / _dn));
+        if (i0 < i1 && i0 < Volatile.Read(ref _lo)) ExtendTo(i0);
         for (int i = i0; i < i1; i++)
             if (_logDrift[i] > limit) return _n0 + i * _dn;
         return double.NaN;

@@ -173,7 +173,7 @@ public sealed class ModeIntegrator
         y.CopyTo(_y);
         var p = _bg.At(n);
         double x = Math.Exp(_lnK - n) / p.H;
-        _scan ??= FrictionScan.Build(_bg, n);
+        _scan ??= _bg is BackgroundSolution ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n);
         if (!(x * x * Math.Exp(_scan.LogGrowthAfter(n)) <= _stopTol)) return false;
         Rhs(n, _y, _k1);
         if (!TryFreeze(_stopTol, out _stopCorrection)) return false;
@@ -319,7 +319,7 @@ public sealed class ModeIntegrator
     private double FirstDriftBefore(double nFrom, double nTo, double tol, FrictionScan? scan)
     {
         if (!(nTo > nFrom)) return double.NaN;
-        if (scan is not null && scan.NFrom <= nFrom) return scan.FirstDriftAbove(nFrom, nTo, _lnK, Math.Log(tol));
+        if (scan is not null && scan.NFrom <= nFrom) return scan.FirstDriftAbove(nFrom, nTo, _lnK - 0.5 * Math.Log(_bg.VScale), Math.Log(tol));
         const double h = 0.01;
         int cells = (int)Math.Ceiling((nTo - nFrom) / h);
         double prevS = 0, prevT = 0, prevLnAH = 0;
@@ -527,6 +527,18 @@ public sealed class ModeIntegrator
     /// <summary>g[j] = (X d/dX)^j H^(1)_nu(X), j = 0..3, from the Bessel equation: D^2 H = (nu^2 - X^2) H.</summary>
     internal static void HankelDerivatives(double nu, double bigX, Span<Complex> g)
     {
+        if (RealHankel.TryBesselJY(nu, bigX, out double bj, out double by, out double bjp, out double byp))
+        {
+            // H = J + iY and X H' = X (J' + iY') directly (Steed's method, no allocation).
+            Complex h0 = new(bj, by);
+            Complex xd = new(bigX * bjp, bigX * byp);
+            double qq = nu * nu - bigX * bigX;
+            g[0] = h0;
+            g[1] = xd;
+            g[2] = qq * h0;
+            g[3] = -2.0 * bigX * bigX * h0 + qq * xd;
+            return;
+        }
         Complex hn = SpecialFunctions.HankelH1(nu, new Complex(bigX, 0));
         Complex hp = SpecialFunctions.HankelH1(nu + 1.0, new Complex(bigX, 0));
         // H'_nu = (nu/X) H_nu - H_{nu+1}  =>  X H' = nu H_nu - X H_{nu+1}

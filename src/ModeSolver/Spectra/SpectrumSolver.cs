@@ -21,7 +21,7 @@ public static class SpectrumSolver
         settings.Validate();
         var modeSettings = settings.ModeSettings();
         CheckRange(background, settings, modeSettings);
-        var scan = FrictionScan.Build(background, background.NStart);
+        var scan = FrictionScan.FromStart(background);
 
         var ks = new List<double>();
         int n0 = settings.KCount;
