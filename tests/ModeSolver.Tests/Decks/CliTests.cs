@@ -3,32 +3,10 @@ using ModeSolver.Models;
 
 namespace ModeSolver.Tests.Decks;
 
-/// <summary>Tests that swap Console.Out/Error run alone (the console is process-wide).</summary>
-[CollectionDefinition("ConsoleCapture", DisableParallelization = true)]
-public sealed class ConsoleCaptureCollection;
-
 [Collection("ConsoleCapture")]
 public class CliTests
 {
-    private static (int Code, string Out, string Err) Run(params string[] args)
-    {
-        var oldOut = Console.Out;
-        var oldErr = Console.Error;
-        var o = new StringWriter();
-        var e = new StringWriter();
-        Console.SetOut(o);
-        Console.SetError(e);
-        try
-        {
-            int code = CliApp.Run(args);
-            return (code, o.ToString(), e.ToString());
-        }
-        finally
-        {
-            Console.SetOut(oldOut);
-            Console.SetError(oldErr);
-        }
-    }
+    private static (int Code, string Out, string Err) Run(params string[] args) => CliRunner.Run(args);
 
     private static string TempDir()
     {

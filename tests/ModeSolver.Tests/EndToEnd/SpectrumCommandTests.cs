@@ -8,33 +8,6 @@ using PureHDF;
 
 namespace ModeSolver.Tests.EndToEnd;
 
-/// <summary>Runs the CLI in-process with Console.Out/Error captured (callers are in the ConsoleCapture collection).</summary>
-internal static class CliRunner
-{
-    public static (int Code, string Out, string Err) Run(params string[] args)
-    {
-        var oldOut = Console.Out;
-        var oldErr = Console.Error;
-        var o = new StringWriter();
-        var e = new StringWriter();
-        Console.SetOut(o);
-        Console.SetError(e);
-        try
-        {
-            int code = CliApp.Run(args);
-            return (code, o.ToString(), e.ToString());
-        }
-        finally
-        {
-            Console.SetOut(oldOut);
-            Console.SetError(oldErr);
-        }
-    }
-
-    public static string TempDir(string tag) =>
-        Path.Combine(Path.GetTempPath(), $"modesolver-e2e-{tag}-" + Guid.NewGuid().ToString("N")[..10]);
-}
-
 /// <summary>One full `modesolver spectrum` run of the plateau demo (24 wavenumbers), shared by the file checks.</summary>
 public sealed class PlateauDemoRun : IDisposable
 {

@@ -115,26 +115,3 @@ public class BadInputTests
     }
 }
 
-/// <summary>Runs the CLI in-process with Console.Out and Console.Error captured (callers sit in the ConsoleCapture collection).</summary>
-internal static class CliRunner
-{
-    public static (int Code, string Out, string Err) Run(string[] args)
-    {
-        var oldOut = Console.Out;
-        var oldErr = Console.Error;
-        var o = new StringWriter();
-        var e = new StringWriter();
-        Console.SetOut(o);
-        Console.SetError(e);
-        try
-        {
-            int code = CliApp.Run(args);
-            return (code, o.ToString(), e.ToString());
-        }
-        finally
-        {
-            Console.SetOut(oldOut);
-            Console.SetError(oldErr);
-        }
-    }
-}
