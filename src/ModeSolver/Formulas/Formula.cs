@@ -35,6 +35,11 @@ public sealed class Formula : IFieldFunction
     // Monomial fast path c*phi^n (n >= 2), the commonest potentials (quadratic, quartic): skips the interpreter.
     private readonly int _monomialPower;
     private readonly double _monomialScale;
+    // Straight-line code generated for this program's shape (null where the runtime cannot compile code),
+    // fed the program's constants; the interpreter stays the reference and the fallback.
+    private readonly Func<double[], double, double>? _jitValue;
+    private readonly Func<double[], double, Jet3>? _jitJet;
+    private readonly double[] _constants;
 
     private Formula(string text, string variable, Node root, CompiledProgram program,
         IReadOnlyDictionary<string, double> parameters, IReadOnlyList<string> unused, List<SwitchFunction> switches)
@@ -47,6 +52,12 @@ public sealed class Formula : IFieldFunction
         UnusedParameters = unused;
         _switches = switches;
         (_monomialPower, _monomialScale) = DetectMonomial(program);
+        _constants = ProgramJit.Constants(program);
+        if (_monomialPower == 0 && ProgramJit.For(program) is { } jit)
+        {
+            _jitValue = jit.Value;
+            _jitJet = jit.Jet;
+        }
         _nonSmooth = new Lazy<IReadOnlyList<double>>(
             () => NonSmoothPointsIn(-DefaultScanRange, DefaultScanRange, includeAllLinear: true).AsReadOnly(),
             LazyThreadSafetyMode.ExecutionAndPublication);
@@ -135,11 +146,29 @@ public sealed class Formula : IFieldFunction
     }
 
     /// <summary>f(phi), value only (fast path).</summary>
+    // Small enough to inline into the caller, so c*phi^2 costs a multiply; the rest goes through ValueOther.
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public double Value(double phi)
-        => _monomialPower == 2 ? phi * phi * _monomialScale
-         : _monomialPower != 0 ? Taylor.PowIntScalar(phi, _monomialPower) * _monomialScale
+    public double Value(double phi) => _monomialPower == 2 ? phi * phi * _monomialScale : ValueOther(phi);
+
+    private double ValueOther(double phi)
+        => _monomialPower != 0 ? Taylor.PowIntScalar(phi, _monomialPower) * _monomialScale
+         : _jitValue != null ? _jitValue(_constants, phi)
          : ValueProgram(phi);
+
+    /// <summary>f(phi) by the interpreter (the reference for the generated code).</summary>
+    internal double ValueInterpreted(double phi) => ValueProgram(phi);
+
+    /// <summary>The order-3 jet by the interpreter (the reference for the generated code).</summary>
+    internal Jet3 EvaluateInterpreted(double phi) => EvaluateProgram(phi);
+
+    /// <summary>True when <see cref="Value"/> and <see cref="Evaluate"/> run generated code (not for c*phi^n, which has its own path).</summary>
+    internal bool IsGenerated => _jitJet != null;
+
+    /// <summary>f(phi) by the generated code (requires <see cref="IsGenerated"/>).</summary>
+    internal double ValueGenerated(double phi) => _jitValue!(_constants, phi);
+
+    /// <summary>The order-3 jet by the generated code (requires <see cref="IsGenerated"/>).</summary>
+    internal Jet3 EvaluateGenerated(double phi) => _jitJet!(_constants, phi);
 
     [SkipLocalsInit]
     private unsafe double ValueProgram(double phi)
@@ -164,11 +193,15 @@ public sealed class Formula : IFieldFunction
         }
     }
 
-    /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding (an unrolled third-order path).</summary>
+    /// <summary>f, f', f'', f''' at <paramref name="phi"/>, exact up to rounding (generated straight-line code, or an unrolled third-order path).</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public Jet3 Evaluate(double phi)
         => _monomialPower == 2 ? new Jet3(phi * phi * _monomialScale, 2 * phi * _monomialScale, 2 * _monomialScale, 0)
-         : _monomialPower != 0 ? MonomialJet(phi)
+         : EvaluateOther(phi);
+
+    private Jet3 EvaluateOther(double phi)
+        => _monomialPower != 0 ? MonomialJet(phi)
+         : _jitJet != null ? _jitJet(_constants, phi)
          : EvaluateProgram(phi);
 
     [SkipLocalsInit]

@@ -13,7 +13,7 @@ public class FormulaPropertyTests
     private static string R(double x) => x.ToString("R", CultureInfo.InvariantCulture);
 
     /// <summary>Small trees of safe operations whose values stay moderate for phi in [-1.5, 1.5].</summary>
-    private static Gen<string> Safe(int depth)
+    internal static Gen<string> Safe(int depth)
     {
         var leaf = Gen.Frequency((2, Gen.Const("phi")), (1, Gen.Double[0.5, 2.0].Select(R)));
         if (depth == 0) return leaf;
@@ -154,7 +154,7 @@ public class FormulaPropertyTests
     }
 
     /// <summary>Any well-formed text, with few parentheses so that precedence matters when printing.</summary>
-    private static Gen<string> Any(int depth)
+    internal static Gen<string> Any(int depth)
     {
         var leaf = Gen.OneOf(Gen.Const("phi"), Gen.Const("a"), Gen.Const("pi"), Gen.Const("e"),
             Gen.Int[0, 12].Select(i => i.ToString(CultureInfo.InvariantCulture)),
