@@ -42,8 +42,14 @@ public sealed record BackgroundSettings
     /// <summary>Method for the inflationary part; null uses the default explicit high-order method.</summary>
     public IOdeMethod? InflationMethod { get; init; }
 
-    /// <summary>Method for the continuation after the end (oscillations); null uses the default.</summary>
+    /// <summary>Method for the continuation after the end (oscillations); null uses the explicit/implicit switching method.</summary>
     public IOdeMethod? ReheatingMethod { get; init; }
+
+    /// <summary>
+    /// Largest step in e-folds. Keeps the dense output accurate and the explicit method inside its stability region on the
+    /// attractor (perturbations off it decay like exp(-3N)).
+    /// </summary>
+    public double MaxStep { get; init; } = 0.5;
 
     /// <summary>Step budget of each integration segment.</summary>
     public int MaxSteps { get; init; } = 2_000_000;

@@ -80,7 +80,7 @@ public sealed class BackgroundSolution : IBackground
     /// <summary>Number of integration pieces (restarts at kinks and crossings).</summary>
     public int SegmentCount => _shared.Segments.Length;
 
-    /// <summary>A view of the same background with the potential multiplied by <paramref name="scale"/> (H by its square root).</summary>
+    /// <summary>A view of the same background with the theory's potential multiplied by <paramref name="scale"/> (absolute, not relative to this view); H scales by its square root.</summary>
     public BackgroundSolution WithVScale(double scale)
     {
         if (!(scale > 0) || double.IsInfinity(scale))

@@ -17,8 +17,11 @@ namespace ModeSolver.Background;
 /// </remarks>
 public static class BackgroundSolver
 {
-    /// <summary>The default integration method for both phases.</summary>
-    public static IOdeMethod DefaultMethod() => throw new NotImplementedException("awaiting integrators merge");
+    /// <summary>The default method for the inflationary phase (explicit, high order).</summary>
+    public static IOdeMethod DefaultMethod() => new DormandPrince853();
+
+    /// <summary>The default method after the end (oscillations): switches between explicit and implicit steps as stiffness requires.</summary>
+    public static IOdeMethod DefaultReheatingMethod() => new AutoSwitching();
 
     private enum Kind { Rise, Fall, VZero, PhiEnd, RangeLow, RangeHigh, Kink }
 
@@ -49,7 +52,7 @@ public static class BackgroundSolver
             throw new ArgumentOutOfRangeException(nameof(settings), "Tolerance must lie in (0, 1).");
 
         var inflationMethod = settings.InflationMethod ?? DefaultMethod();
-        var reheatingMethod = settings.ReheatingMethod ?? inflationMethod;
+        var reheatingMethod = settings.ReheatingMethod ?? DefaultReheatingMethod();
         var run = new Run(theory, settings, inflationMethod, reheatingMethod);
         return run.Execute(phi0, dphi0);
     }
@@ -129,6 +132,7 @@ public static class BackgroundSolver
                 Events = events,
                 DenseOutput = true,
                 MaxSteps = _s.MaxSteps,
+                MaxStep = _s.MaxStep,
             };
             try
             {
@@ -139,6 +143,14 @@ public static class BackgroundSolver
                 string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
                 throw new PhysicsException($"The background integration broke down ({ex.Failure}) at N = {ex.T:G8}, {state}: {OneLine(ex.Message)}; check the potential there or loosen the tolerance.", ex);
             }
+        }
+
+        /// <summary>The event that stopped the integration (the driver may append simultaneous non-terminal ones after it).</summary>
+        private static EventOccurrence TerminalEvent(OdeSolution sol, List<EventSpec> specs)
+        {
+            foreach (var ev in sol.Events)
+                if (specs[ev.EventIndex].Terminal && ev.T == sol.TFinal) return ev;
+            return sol.Events[^1];
         }
 
         private static string OneLine(string s) => s.Replace('\n', ' ').Replace('\r', ' ');
@@ -191,7 +203,7 @@ public static class BackgroundSolver
                     var yf = sol.FinalState;
                     throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (at N = {sol.TFinal:G8}, phi = {yf[0]:G6}, epsilon_1 = {E1(yf):G4}); raise the e-fold limit, start nearer the end, or set an end field value.");
                 }
-                var last = sol.Events[^1];
+                var last = TerminalEvent(sol, specs);
                 var (kind, value) = kinds[last.EventIndex];
                 n = last.T;
                 switch (kind)
@@ -239,7 +251,7 @@ public static class BackgroundSolver
             double hsq = BackgroundEquations.ConstraintHubbleSquared(_theory, stateAtUp[0], stateAtUp[1]);
             double[] y = { stateAtUp[0], stateAtUp[1], 0.5 * Math.Log(hsq) };
             double pendingFall = double.NaN;
-            while (n < stop)
+            while (n < stop || !double.IsNaN(pendingFall))
             {
                 var specs = new List<EventSpec>();
                 var kinds = new List<(Kind Kind, double Value)>();
@@ -254,15 +266,15 @@ public static class BackgroundSolver
                 }
                 AddRangeEvents(specs, kinds);
                 AddKinkEvents(specs, kinds, y[0]);
-                double window = pending ? pendingFall + _s.ReentryEFolds : double.PositiveInfinity;
-                double tEnd = Math.Min(stop, window);
+                // A pending fall is followed for the whole re-entry window, even past the planned stop.
+                double tEnd = pending ? pendingFall + _s.ReentryEFolds : stop;
                 var sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
                 AddSegment(n, sol, regular: true);
                 if (sol.Status != OdeStatus.TerminalEvent)
                 {
                     n = sol.TFinal;
                     y = sol.FinalState;
-                    if (pending && window <= stop)
+                    if (pending)
                     {
                         // epsilon_1 stayed below 1 for the whole window: inflation resumed at the fall.
                         _crossings.Add(pendingFall);
@@ -270,7 +282,7 @@ public static class BackgroundSolver
                     }
                     break;
                 }
-                var last = sol.Events[^1];
+                var last = TerminalEvent(sol, specs);
                 var (kind, value) = kinds[last.EventIndex];
                 n = last.T;
                 y = last.State;

@@ -15,22 +15,25 @@ public static class SlowRoll
     /// <summary>First-order Hubble-flow estimate at a background point (taken at k = aH).</summary>
     public static SlowRollPrediction HubbleFirstOrder(in BackgroundPoint p)
     {
-        double h2 = p.H * p.H, e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
+        double h2 = p.H * p.H, e1 = p.Epsilon1, e2 = p.Epsilon2;
         double ps = h2 / (8 * Math.PI * Math.PI * e1);
         double pt = 2 * h2 / (Math.PI * Math.PI);
-        return new SlowRollPrediction("hubble-1", ps, pt, 1 - 2 * e1 - e2, 16 * e1, -2 * e1, -2 * e1 * e2 - e2 * e3);
+        return new SlowRollPrediction("hubble-1", ps, pt, 1 - 2 * e1 - e2, 16 * e1, -2 * e1, -2 * e1 * e2 - E2E3(p));
     }
+
+    /// <summary>e2 e3 = d e2/dN, taken as 0 where e2 = 0 exactly (there e3 is 0/0, e.g. on the power-law attractor).</summary>
+    private static double E2E3(in BackgroundPoint p) => p.Epsilon2 == 0 ? 0 : p.Epsilon2 * p.Epsilon3;
 
     /// <summary>Second-order Hubble-flow estimate at a background point (taken at k = aH); C = gamma_E + ln 2 - 2.</summary>
     public static SlowRollPrediction HubbleSecondOrder(in BackgroundPoint p)
     {
-        double h2 = p.H * p.H, e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
+        double h2 = p.H * p.H, e1 = p.Epsilon1, e2 = p.Epsilon2, e23 = E2E3(p);
         double ps = h2 / (8 * Math.PI * Math.PI * e1) * (1 - 2 * (C + 1) * e1 - C * e2);
         double pt = 2 * h2 / (Math.PI * Math.PI) * (1 - 2 * (C + 1) * e1);
-        double ns = 1 - 2 * e1 - e2 - 2 * e1 * e1 - (2 * C + 3) * e1 * e2 - C * e2 * e3;
+        double ns = 1 - 2 * e1 - e2 - 2 * e1 * e1 - (2 * C + 3) * e1 * e2 - C * e23;
         double nt = -2 * e1 - 2 * e1 * e1 - 2 * (C + 1) * e1 * e2;
         double r = 16 * e1 * (1 + C * e2);
-        double alpha = -2 * e1 * e2 - e2 * e3;
+        double alpha = -2 * e1 * e2 - e23;
         return new SlowRollPrediction("hubble-2", ps, pt, ns, r, nt, alpha);
     }
 

@@ -104,3 +104,28 @@ internal sealed class PoleTModel(double alpha) : IInflatonTheory
     public IReadOnlyList<double> NonSmoothPoints => Array.Empty<double>();
     public (double Min, double Max) ValidRange => (-Math.Sqrt(_c), Math.Sqrt(_c));
 }
+
+/// <summary>Continuous V = exp(-lambda_i phi + c_i) with slope lambda_i between the break points (kinks in V_phi).</summary>
+internal sealed class PiecewiseExponential : CanonicalTheory
+{
+    private readonly double[] _breaks, _lambdas, _offsets;
+
+    public PiecewiseExponential(double[] breaks, double[] lambdas)
+    {
+        _breaks = breaks;
+        _lambdas = lambdas;
+        _offsets = new double[lambdas.Length];
+        for (int i = 1; i < lambdas.Length; i++)
+            _offsets[i] = _offsets[i - 1] + (lambdas[i] - lambdas[i - 1]) * breaks[i - 1];
+    }
+
+    public override string Description => "piecewise exponential";
+    public override Jet3 Potential(double phi)
+    {
+        int i = 0;
+        while (i < _breaks.Length && phi >= _breaks[i]) i++;
+        double l = _lambdas[i], e = Math.Exp(-l * phi + _offsets[i]);
+        return new(e, -l * e, l * l * e, -l * l * l * e);
+    }
+    public override IReadOnlyList<double> NonSmoothPoints => _breaks;
+}

@@ -72,4 +72,15 @@ internal static class TestProblems
         f[0] = y[1];
         f[1] = -y[0];
     }
+
+    /// <summary>
+    /// Stiff only in the middle: y' = -lambda(t) (y - cos t) - sin t, lambda = 1 + 1e5 * (tanh(4(t - 2.5)) - tanh(4(t - 7.5)))/2,
+    /// exact solution y = cos t for y(0) = 1 (Prothero-Robinson type, Hairer and Wanner II, sec. IV.15 / IV.1).
+    /// </summary>
+    public static double BumpLambda(double t) => 1 + 1e5 * 0.5 * (Math.Tanh(4 * (t - 2.5)) - Math.Tanh(4 * (t - 7.5)));
+
+    public static void Bump(double t, ReadOnlySpan<double> y, Span<double> f) =>
+        f[0] = -BumpLambda(t) * (y[0] - Math.Cos(t)) - Math.Sin(t);
+
+    public static OdeProblem BumpProblem() => new(Bump, 0.0, new[] { 1.0 }, 12.0);
 }
