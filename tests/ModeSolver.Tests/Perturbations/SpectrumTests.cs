@@ -146,4 +146,56 @@ public class SpectrumTests
         Assert.True(spec.Ps[0] / dipP > 5, "the dip is deep");
         Assert.True(spec.Count > 60, "refinement added samples in the oscillations");
     }
+
+    /// <summary>
+    /// A linear slope s0 with a smooth near-inflection point of width w at phi = 0 (the slope falls to zero there and
+    /// V'' = 0): V = V0 [1 + s0 (phi - w atan(phi/w))], so V' = V0 s0 (phi/w)^2 / (1 + (phi/w)^2). The model class
+    /// of near-inflection points that produce an ultra-slow-roll phase (Garcia-Bellido &amp; Ruiz Morales 2017, Phys. Dark
+    /// Univ. 18, 47); written here in a closed form whose width is easy to set. With w = 0.002 smaller than the
+    /// field's travel per e-fold (~ s0 / 3), the field coasts across: e2 reaches -6.
+    /// </summary>
+    private sealed class NearInflection(double s0, double w) : IInflatonTheory
+    {
+        public string Description => "linear slope with a near-inflection point";
+        public Jet3 Potential(double u)
+        {
+            double q = u / w, d = 1 + q * q, c = 1e-10 * s0;
+            return new(1e-10 + c * (u - w * Math.Atan(q)), c * q * q / d, c * 2 * q / (w * d * d), c * 2 * (1 - 3 * q * q) / (w * w * d * d * d));
+        }
+        public Jet3 Kinetic(double phi) => new(1, 0, 0, 0);
+        public bool IsCanonical => true;
+        public IReadOnlyList<double> NonSmoothPoints => Array.Empty<double>();
+        public (double Min, double Max) ValidRange => (double.NegativeInfinity, double.PositiveInfinity);
+    }
+
+    [Fact]
+    public void NearInflection_GrowthBoundedByK4AndSlowRollFails()
+    {
+        var bg = Solve(new NearInflection(0.02, 0.002), 0.2, phiEnd: -0.3);
+        double nUsr = 0, e2Min = 0;
+        for (double n = 0; n < bg.NEnd; n += 0.01)
+        {
+            double e2 = bg.At(n).Epsilon2;
+            if (e2 < e2Min) { e2Min = e2; nUsr = n; }
+        }
+        Assert.True(e2Min < -5, $"ultra-slow roll expected, min e2 = {e2Min}");
+        double kc = Math.Exp(nUsr) * bg.At(nUsr).H;
+        var spec = SpectrumSolver.Compute(bg, new SpectrumSettings { KMin = kc * Math.Exp(-4), KMax = kc * Math.Exp(4), KCount = 40, Kinds = ModeKinds.Scalar, ErrorChecks = 2 });
+        int peak = 0;
+        for (int i = 0; i < spec.Count; i++) if (spec.Ps[i] > spec.Ps[peak]) peak = i;
+        int dip = 0;
+        for (int i = 0; i < peak; i++) if (spec.Ps[i] < spec.Ps[dip]) dip = i;
+        Assert.True(spec.Ps[peak] / spec.Ps[dip] > 10, "a real peak");
+        double steepest = 0;
+        for (int i = dip; i <= peak; i++) steepest = Math.Max(steepest, spec.Ns[i] - 1);
+        // Byrnes, Cole & Patil 2019 (JCAP 06, 028), physics.md 4e: the growth from the dip to the peak is no steeper
+        // than about k^4 (a small margin for this fairly sharp feature; found here: 3.2, peak/dip = 19).
+        Assert.InRange(steepest, 2.0, 4.3);
+        // Second-order slow roll (physics.md 4c) at the peak misses by far more than 10% (found: it gives 0.13 of it).
+        var sr = SlowRoll.HubbleSecondOrder(bg.At(bg.NAtHorizonExit(spec.K[peak])));
+        Assert.True(Math.Abs(sr.Ps / spec.Ps[peak] - 1) > 0.1, $"slow roll / exact = {sr.Ps / spec.Ps[peak]:F3}");
+        // Far from the feature slow roll is fine again (1e-2).
+        var srFar = SlowRoll.HubbleSecondOrder(bg.At(bg.NAtHorizonExit(spec.K[0])));
+        Assert.True(Math.Abs(srFar.Ps / spec.Ps[0] - 1) < 1e-2);
+    }
 }
