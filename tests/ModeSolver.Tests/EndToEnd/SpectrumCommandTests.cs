@@ -134,7 +134,7 @@ public class SpectrumCommandTests : IClassFixture<PlateauDemoRun>
     [SkippableFact]
     public void Hdf5ReadsBackWithTheReferenceLibrary()
     {
-        string? h5dump = WriterTests.FindOnPath("h5dump");
+        string? h5dump = ExternalTools.FindOnPath("h5dump");
         Skip.If(h5dump is null, "h5dump not installed: apt-get install hdf5-tools");
         // h5dump: the HDF Group's reference implementation (Debian hdf5-tools); %.17g prints every double exactly.
         string path = _run.File("run.h5");
@@ -146,7 +146,7 @@ public class SpectrumCommandTests : IClassFixture<PlateauDemoRun>
         var dk = H5DumpValues(h5dump!, "-d /table/k -m %.17g " + path);
         Assert.Equal(tk.Length, dk.Length);
         for (int i = 0; i < tk.Length; i++) Assert.True(Math.Abs(tk[i] / dk[i] - 1) < 1e-10);
-        Assert.Contains("\"e-model\"", RunTool(h5dump!, "-a /model/id " + path));
+        Assert.Contains("\"e-model\"", ExternalTools.Run(h5dump!, "-a /model/id " + path));
     }
 
     [Fact]
@@ -284,26 +284,7 @@ public class SpectrumCommandTests : IClassFixture<PlateauDemoRun>
         return (rows.Select(r => r[0]).ToArray(), rows.Select(r => r[1]).ToArray(), rows.Select(r => r[2]).ToArray());
     }
 
-    private static double[] H5DumpValues(string h5dump, string args)
-    {
-        string dump = RunTool(h5dump, args);
-        int at = dump.IndexOf("DATA {", StringComparison.Ordinal);
-        Assert.True(at >= 0, "no DATA block in h5dump output");
-        string body = dump[(at + 6)..];
-        body = body[..body.IndexOf('}')];
-        body = System.Text.RegularExpressions.Regex.Replace(body, @"\(\d+\):", " ");
-        return body.Split([',', ' ', '\n', '\t', '\r'], StringSplitOptions.RemoveEmptyEntries)
-            .Select(t => double.Parse(t, CultureInfo.InvariantCulture)).ToArray();
-    }
+    private static double[] H5DumpValues(string h5dump, string args) =>
+        ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump, args));
 
-    private static string RunTool(string exe, string args)
-    {
-        var psi = new ProcessStartInfo(exe, args) { RedirectStandardOutput = true, RedirectStandardError = true };
-        using var p = Process.Start(psi)!;
-        string o = p.StandardOutput.ReadToEnd();
-        string e = p.StandardError.ReadToEnd();
-        p.WaitForExit();
-        Assert.True(p.ExitCode == 0, $"{exe} {args} failed: {e}");
-        return o;
-    }
 }

@@ -95,7 +95,7 @@ public class WriterTests
     [SkippableFact]
     public void Hdf5_is_readable_by_the_reference_library_h5dump()
     {
-        string? h5dump = FindOnPath("h5dump");
+        string? h5dump = ExternalTools.FindOnPath("h5dump");
         Skip.If(h5dump is null, "h5dump not installed: apt-get install hdf5-tools");
         var r = SyntheticReport.Create(modes: 12);
         string dir = SyntheticReport.TempDir();
@@ -104,15 +104,15 @@ public class WriterTests
             string path = Path.Combine(dir, "run.h5");
             Hdf5Writer.Write(r, path);
             // h5dump (the HDF Group's reference implementation) prints every sample; %.17g keeps full precision.
-            var k = DataValues(Run(h5dump!, "-d /spectrum/k -m %.17g " + path));
+            var k = ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-d /spectrum/k -m %.17g " + path));
             Assert.Equal(r.Spectrum.K.ToArray(), k);
-            var ps = DataValues(Run(h5dump!, "-d /spectrum/P_s -m %.17g " + path));
+            var ps = ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-d /spectrum/P_s -m %.17g " + path));
             Assert.Equal(r.Spectrum.Ps.ToArray(), ps);
-            var ns = DataValues(Run(h5dump!, "-a /pivot/n_s -m %.17g " + path));
+            var ns = ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-a /pivot/n_s -m %.17g " + path));
             Assert.Equal([r.Pivot.Ns], ns);
-            string frame = Run(h5dump!, "-a /model/frame " + path);
+            string frame = ExternalTools.Run(h5dump!, "-a /model/frame " + path);
             Assert.Contains("\"einstein\"", frame);
-            string flagKinds = Run(h5dump!, "-d /flags/kind " + path);
+            string flagKinds = ExternalTools.Run(h5dump!, "-d /flags/kind " + path);
             Assert.Contains("\"spectrum-deviation\"", flagKinds);
         }
         finally { Directory.Delete(dir, true); }
@@ -201,38 +201,4 @@ public class WriterTests
             Assert.Contains("N [e-folds]", File.ReadAllText(bsvg));
         }
         finally { Directory.Delete(dir, true); }
-    }
-
-    /// <summary>The numbers of an h5dump DATA block (index prefixes like "(3):" removed).</summary>
-    private static double[] DataValues(string dump)
-    {
-        int at = dump.IndexOf("DATA {", StringComparison.Ordinal);
-        Assert.True(at >= 0, "no DATA block in h5dump output");
-        string body = dump[(at + 6)..];
-        body = body[..body.IndexOf('}')];
-        body = System.Text.RegularExpressions.Regex.Replace(body, @"\(\d+\):", " ");
-        return body.Split([',', ' ', '\n', '\t'], StringSplitOptions.RemoveEmptyEntries)
-            .Select(t => double.Parse(t, CultureInfo.InvariantCulture)).ToArray();
-    }
-
-    internal static string? FindOnPath(string exe)
-    {
-        foreach (var d in (Environment.GetEnvironmentVariable("PATH") ?? "").Split(':', StringSplitOptions.RemoveEmptyEntries))
-        {
-            string p = Path.Combine(d, exe);
-            if (File.Exists(p)) return p;
-        }
-        return null;
-    }
-
-    private static string Run(string exe, string args)
-    {
-        var psi = new ProcessStartInfo(exe, args) { RedirectStandardOutput = true, RedirectStandardError = true };
-        using var p = Process.Start(psi)!;
-        string o = p.StandardOutput.ReadToEnd();
-        string e = p.StandardError.ReadToEnd();
-        p.WaitForExit();
-        Assert.True(p.ExitCode == 0, $"{exe} {args} failed: {e}");
-        return o;
-    }
-}
+    }}

@@ -14,7 +14,7 @@ public static class MpiTestHost
     public const string SkipReason = "OpenMPI (mpirun and libmpi.so.40) is not installed: apt-get install -y openmpi-bin libopenmpi-dev";
 
     /// <summary>True when mpirun is on the PATH and libmpi.so.40 can be loaded.</summary>
-    public static bool MpirunAvailable => FindOnPath("mpirun") is not null && System.Runtime.InteropServices.NativeLibrary.TryLoad("libmpi.so.40", out _);
+    public static bool MpirunAvailable => ExternalTools.FindOnPath("mpirun") is not null && System.Runtime.InteropServices.NativeLibrary.TryLoad("libmpi.so.40", out _);
 
     /// <summary>The CLI assembly built beside the test assembly.</summary>
     public static string CliDll => Path.Combine(AppContext.BaseDirectory, "ModeSolver.Cli.dll");
@@ -22,7 +22,7 @@ public static class MpiTestHost
     /// <summary>Runs <c>mpirun ... -np ranks dotnet modesolver.dll args</c>; returns exit code, stdout and stderr. Kills it after <paramref name="timeout"/>.</summary>
     public static (int ExitCode, string Stdout, string Stderr) RunModesolver(int ranks, string[] args, TimeSpan? timeout = null)
     {
-        var psi = new ProcessStartInfo(FindOnPath("mpirun") ?? "mpirun")
+        var psi = new ProcessStartInfo(ExternalTools.FindOnPath("mpirun") ?? "mpirun")
         {
             RedirectStandardOutput = true,
             RedirectStandardError = true,
@@ -51,13 +51,4 @@ public static class MpiTestHost
         return dir;
     }
 
-    private static string? FindOnPath(string name)
-    {
-        foreach (var d in (Environment.GetEnvironmentVariable("PATH") ?? "").Split(':', StringSplitOptions.RemoveEmptyEntries))
-        {
-            var f = Path.Combine(d, name);
-            if (File.Exists(f)) return f;
-        }
-        return null;
-    }
 }

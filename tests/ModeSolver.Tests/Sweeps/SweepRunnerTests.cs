@@ -208,7 +208,7 @@ public class SweepRunnerTests
     public void HdfFileIsReadableByTheReferenceHdf5Tools()
     {
         // h5dump (HDF Group's hdf5-tools) is the reference reader; skipped where it is not installed.
-        string? h5dump = new[] { "/usr/bin/h5dump", "/usr/local/bin/h5dump" }.FirstOrDefault(File.Exists);
+        string? h5dump = ExternalTools.FindOnPath("h5dump");
         Skip.If(h5dump is null, "h5dump is not installed: apt-get install -y hdf5-tools");
         var dir = SweepTestSupport.ReferenceRun();
         var psi = new System.Diagnostics.ProcessStartInfo(h5dump!, ["-d", "/points/status", Path.Combine(dir, SweepFiles.Hdf5)])
