@@ -201,4 +201,5 @@ public class WriterTests
             Assert.Contains("N [e-folds]", File.ReadAllText(bsvg));
         }
         finally { Directory.Delete(dir, true); }
-    }}
+    }
+}
