@@ -190,10 +190,40 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 Flags = FlagNames(flags),
             };
         }
-        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or ArgumentException or ArithmeticException
-                                      or Formulas.FormulaException or TheoryException)
+        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or Formulas.FormulaException or TheoryException)
         {
+            // Only physics and input errors make a failed point; anything else is a bug and stops the sweep (SweepRunner).
             return SweepPointResult.Failed(SweepDeck.OneLine(e.Message));
+        }
+    }
+
+    /// <summary>
+    /// Checks, before any point runs, everything that does not depend on the swept values: the settings of the first
+    /// and the last point are resolved and their model built; an input error (deck key, range, formula, model) that
+    /// both give with the same message is common to the grid and is thrown as a one-line <see cref="SweepException"/>
+    /// (which the CLI reports with exit code 2). An error of only one of them (a swept value out of range) is left to
+    /// that point, which fails on its own; physics is never judged here.
+    /// </summary>
+    public void ValidateGrid(SweepSpec spec)
+    {
+        ArgumentNullException.ThrowIfNull(spec);
+        if (spec.PointCount == 0) return;
+        string? first = InputError(spec.GetPoint(0));
+        if (first is null) return;
+        string? last = spec.PointCount == 1 ? first : InputError(spec.GetPoint(spec.PointCount - 1));
+        if (last == first) throw new SweepException($"{first} (at the first and the last point of the sweep alike, so no point was run)");
+    }
+
+    private string? InputError(SweepPoint point)
+    {
+        try
+        {
+            TheoryFactory.Build(SettingsFor(point));
+            return null;
+        }
+        catch (Exception e) when (e is DeckException or Formulas.FormulaException or TheoryException)
+        {
+            return SweepDeck.OneLine(e.Message);
         }
     }
 
