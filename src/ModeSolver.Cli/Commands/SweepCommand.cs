@@ -1,4 +1,5 @@
 using System.CommandLine;
+using System.Runtime.InteropServices;
 using ModeSolver.Cluster;
 using ModeSolver.Sweeps;
 using Spectre.Console;
@@ -46,6 +47,18 @@ public static class SweepCommand
         long maxPoints, CancellationToken ct)
     {
         IMessagePassing? comm = null;
+        // Ctrl+C (SIGINT) or SIGTERM: stop handing out points, keep the finished ones, write the final snapshot, exit
+        // 130. A second signal ends the process at once.
+        using var interrupted = CancellationTokenSource.CreateLinkedTokenSource(ct);
+        int signals = 0;
+        void OnSignal(PosixSignalContext context)
+        {
+            context.Cancel = Interlocked.Increment(ref signals) == 1;
+            interrupted.Cancel();
+        }
+        using var sigint = PosixSignalRegistration.Create(PosixSignal.SIGINT, OnSignal);
+        using var sigterm = PosixSignalRegistration.Create(PosixSignal.SIGTERM, OnSignal);
+        ct = interrupted.Token;
         try
         {
             comm = MessagePassing.Create();
