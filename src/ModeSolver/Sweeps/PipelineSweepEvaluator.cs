@@ -138,7 +138,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         {
             string key = point.Keys[i];
             double v = point.Values[i];
-            var at = new Located<double>(v, $"sweep value {key} = {v.ToString("R", CultureInfo.InvariantCulture)}");
+            var at = new Located<double>(v, SweptValueName(key, v));
             switch (key)
             {
                 case "efolds": o.Efolds = at; break;
@@ -156,6 +156,8 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         }
         return SettingsResolver.Resolve(RunInput.Merge(_deck, o));
     }
+
+    private static string SweptValueName(string key, double v) => $"sweep value {key} = {v.ToString("R", CultureInfo.InvariantCulture)}";
 
     /// <inheritdoc />
     public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
@@ -223,7 +225,11 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         }
         catch (Exception e) when (e is DeckException or Formulas.FormulaException or TheoryException)
         {
-            return SweepDeck.OneLine(e.Message);
+            // Without the point's own values, so that one error of the whole grid reads the same at both points.
+            string message = SweepDeck.OneLine(e.Message);
+            for (int i = 0; i < point.Keys.Count; i++)
+                message = message.Replace(SweptValueName(point.Keys[i], point.Values[i]), $"sweep value {point.Keys[i]}", StringComparison.Ordinal);
+            return message;
         }
     }
 
