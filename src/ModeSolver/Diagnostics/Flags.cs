@@ -173,6 +173,25 @@ public static class Flags
         return flags;
     }
 
+    /// <summary>
+    /// A warning when the exact P_s exceeds 1 somewhere (the perturbations are then not small and linear perturbation
+    /// theory breaks down there), naming the k range; null otherwise.
+    /// </summary>
+    public static string? PerturbativityWarning(SpectrumSamples spectrum)
+    {
+        ArgumentNullException.ThrowIfNull(spectrum);
+        double lo = double.NaN, hi = double.NaN, peak = 0;
+        for (int i = 0; i < spectrum.K.Length; i++)
+        {
+            if (!(spectrum.Ps[i] > 1)) continue;
+            if (double.IsNaN(lo)) lo = spectrum.K[i];
+            hi = spectrum.K[i];
+            peak = Math.Max(peak, spectrum.Ps[i]);
+        }
+        return double.IsNaN(lo) ? null : string.Create(Inv,
+            $"P_s exceeds 1 (up to {peak:0.000e+00}) for k = {lo:0.000e+00} .. {hi:0.000e+00} /Mpc: the perturbations are not small there and linear perturbation theory breaks down");
+    }
+
     /// <summary>A contiguous run of samples whose measure exceeds the limit.</summary>
     internal readonly record struct Run(int FirstIndex, int LastIndex, int WorstIndex, double Lower, double Upper);
 
