@@ -6,6 +6,7 @@ using ModeSolver.Pipeline;
 // `--memory-sweep N`: a pivot-only sweep of N models in parallel, for peak memory (run under /usr/bin/time -v).
 // `--profile`: Stopwatch timings (medians) of the spectrum pipeline, its stages and the pivot sweep, with work counts.
 // `--warm-deck DECK [REPS]`: warm median of SpectrumPipeline.Run on a deck, one line (for benchmarks/baseline/compare.py).
+// `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
 if (args.Length >= 2 && args[0] == "--memory-sweep")
 {
@@ -29,6 +30,11 @@ if (args.Length >= 2 && args[0] == "--warm-deck")
     for (int i = 0; i < reps; i++) { last = SpectrumPipeline.Run(s); t[i] = last.Statistics.WallSeconds; }
     Array.Sort(t);
     Console.WriteLine(FormattableString.Invariant($"warm_ms {t[reps / 2] * 1e3:F3} modes {last!.Statistics.ModeCount} rhs_per_mode {last.Pivot.RhsEvaluationsPerMode:F1} spectrum_rhs {last.Statistics.RhsEvaluations}"));
+    return;
+}
+if (args.Length >= 1 && args[0] == "--frames")
+{
+    ModeSolver.Benchmarks.Formulas.FrameBenchmarks.Console(args.Length >= 2 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 41);
     return;
 }
 if (args.Length >= 3 && args[0] == "--loop")
