@@ -8,14 +8,7 @@ namespace ModeSolver.Tests.Perturbations;
 /// <summary>The oscillatory-regime propagator (deep starts) against exact power-law modes and reference Bessel functions.</summary>
 public class OscillatoryRegimeTests
 {
-    /// <summary>Lyth &amp; Stewart 1992 (Phys. Lett. B 274, 168), physics.md 4a: exact power-law spectra.</summary>
-    private static (double Ps, double Pt) LythStewart(PowerLawBackground bg, double k)
-    {
-        double e1 = bg.Epsilon1, nu = bg.Nu;
-        double h = bg.At(bg.CrossingN(k)).H;
-        double pre = Math.Pow(2, 2 * nu - 3) * Math.Pow(SpecialFunctions.Gamma(nu) / SpecialFunctions.Gamma(1.5), 2) * Math.Pow(1 - e1, 2 * nu - 1);
-        return (pre * h * h / (8 * Math.PI * Math.PI * e1), pre * 2 * h * h / (Math.PI * Math.PI));
-    }
+    private static (double Ps, double Pt) LythStewart(PowerLawBackground bg, double k) => ModeTests.LythStewart(bg, k);
 
     [Theory]
     [InlineData(0.5)]
