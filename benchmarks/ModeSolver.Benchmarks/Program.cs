@@ -5,9 +5,15 @@ using ModeSolver.Pipeline;
 
 // `--memory-sweep N`: a pivot-only sweep of N models in parallel, for peak memory (run under /usr/bin/time -v).
 // `--profile`: Stopwatch timings (medians) of the spectrum pipeline, its stages and the pivot sweep, with work counts.
+// `--sweep-scale N [--machinery] [--threads T] [--out DIR]`: a pivot-only sweep of N points, peak memory and points/s.
 // `--warm-deck DECK [REPS]`: warm median of SpectrumPipeline.Run on a deck, one line (for benchmarks/baseline/compare.py).
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
+if (args.Length >= 2 && args[0] == "--sweep-scale")
+{
+    ModeSolver.Benchmarks.Sweeps.SweepScaleBenchmark.Run(args);
+    return;
+}
 if (args.Length >= 2 && args[0] == "--memory-sweep")
 {
     int n = int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture);

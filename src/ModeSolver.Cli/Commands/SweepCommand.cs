@@ -1,4 +1,5 @@
 using System.CommandLine;
+using System.Runtime.InteropServices;
 using ModeSolver.Cluster;
 using ModeSolver.Sweeps;
 using Spectre.Console;
@@ -21,13 +22,18 @@ public static class SweepCommand
         var restart = new Option<bool>("--restart") { Description = "Discard the journal in the output directory and start over" };
         var quiet = new Option<bool>("--quiet", "-q") { Description = "No progress bar" };
         var logR = new Option<bool>("--log-r") { Description = "Plot r on a logarithmic axis" };
+        var maxPoints = new Option<long>("--max-points")
+        {
+            Description = $"Refuse a grid of more points than this (default {SweepSpec.DefaultMaxPoints})",
+            DefaultValueFactory = _ => SweepSpec.DefaultMaxPoints,
+        };
         var command = new Command("sweep", "Sweep settings over a grid and map the predictions in the (n_s, r) plane (resumable; MPI-aware)")
         {
-            deck, output, threads, shard, restart, quiet, logR,
+            deck, output, threads, shard, restart, quiet, logR, maxPoints,
         };
         command.SetAction((parseResult, ct) => Task.FromResult(CommandErrors.Guard(() => Run(
             parseResult.GetValue(deck)!, parseResult.GetValue(output), parseResult.GetValue(threads), parseResult.GetValue(shard),
-            parseResult.GetValue(restart), parseResult.GetValue(quiet), parseResult.GetValue(logR), ct))));
+            parseResult.GetValue(restart), parseResult.GetValue(quiet), parseResult.GetValue(logR), parseResult.GetValue(maxPoints), ct))));
         return command;
     }
 
@@ -35,11 +41,24 @@ public static class SweepCommand
     /// Builds the physics evaluator for a deck: the run deck (without <c>[sweep]</c>) parsed once, the swept keys
     /// checked (an unknown key is a one-line error listing the valid ones) before any point runs.
     /// </summary>
-    public static ISweepEvaluator CreateEvaluator(string deckPath) => PipelineSweepEvaluator.FromDeck(deckPath);
+    public static PipelineSweepEvaluator CreateEvaluator(string deckPath) => PipelineSweepEvaluator.FromDeck(deckPath);
 
-    private static int Run(FileInfo deckFile, DirectoryInfo? outDir, int? threads, string? shardText, bool restart, bool quiet, bool logR, CancellationToken ct)
+    private static int Run(FileInfo deckFile, DirectoryInfo? outDir, int? threads, string? shardText, bool restart, bool quiet, bool logR,
+        long maxPoints, CancellationToken ct)
     {
         IMessagePassing? comm = null;
+        // Ctrl+C (SIGINT) or SIGTERM: stop handing out points, keep the finished ones, write the final snapshot, exit
+        // 130. A second signal ends the process at once.
+        using var interrupted = CancellationTokenSource.CreateLinkedTokenSource(ct);
+        int signals = 0;
+        void OnSignal(PosixSignalContext context)
+        {
+            context.Cancel = Interlocked.Increment(ref signals) == 1;
+            interrupted.Cancel();
+        }
+        using var sigint = PosixSignalRegistration.Create(PosixSignal.SIGINT, OnSignal);
+        using var sigterm = PosixSignalRegistration.Create(PosixSignal.SIGTERM, OnSignal);
+        ct = interrupted.Token;
         try
         {
             comm = MessagePassing.Create();
@@ -47,13 +66,18 @@ public static class SweepCommand
             if (threads is < 1) throw new SweepException($"--threads: must be at least 1, got {threads}");
             var shard = shardText is null ? ShardSpec.All : ShardSpec.Parse(shardText);
             string deckText = File.ReadAllText(deckFile.FullName);
+            if (maxPoints < 1) throw new SweepException($"--max-points: must be at least 1, got {maxPoints}");
             var spec = SweepDeck.ParseSpec(deckText, deckFile.FullName);
+            spec.CheckPointCount(maxPoints, deckFile.FullName);
             string dir = outDir?.FullName ?? Path.Combine(deckFile.DirectoryName ?? ".", Path.GetFileNameWithoutExtension(deckFile.Name) + "-sweep");
             var evaluator = CreateEvaluator(deckFile.FullName);
-            bool showProgress = comm.Rank == 0 && !quiet && !Console.IsErrorRedirected;
+            evaluator.ValidateGrid(spec);
+            // No progress bar (and so no terminal control codes) under mpirun, whose ranks may sit on a pseudo-terminal.
+            bool showProgress = comm.Rank == 0 && !quiet && !Console.IsErrorRedirected && !MessagePassing.LaunchedByMpi;
             var options = new Func<Action<SweepProgress>?, SweepRunOptions>(progress => new SweepRunOptions
             {
                 OutputDirectory = dir, Threads = threads ?? DefaultThreads(comm), Shard = shard, Restart = restart, Progress = progress,
+                AfterOutputs = () => SweepDensityPlot.Write(dir, spec, SweepResults.Open(dir).Records, new SweepPlotOptions { LogR = logR || spec.LogR }),
             });
             SweepSummary summary;
             if (showProgress)
@@ -79,8 +103,6 @@ public static class SweepCommand
                 summary = SweepRunner.Run(spec, deckText, evaluator, options(null), comm, ct);
             }
             if (comm.Rank != 0) return summary.Completed ? 0 : InterruptedExitCode;
-            var (_, records) = SweepResults.Load(dir);
-            SweepPlot.Write(dir, spec, records, new SweepPlotOptions { LogR = logR || spec.LogR });
             if (!summary.Completed)
             {
                 Console.Error.WriteLine($"sweep interrupted: {summary.Done} of {summary.Total} points done in {dir}; run the same command again to resume");
@@ -98,6 +120,13 @@ public static class SweepCommand
         {
             Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}");
             return 2;
+        }
+        catch (SweepInternalException e)
+        {
+            // A bug, not a failed point: the finished points stay in the journal (and the snapshots), exit 1.
+            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}; the sweep stopped (run again with --debug for details)");
+            if (CliApp.Debug) Console.Error.WriteLine(e.InnerException?.ToString() ?? e.ToString());
+            return CommandErrors.InternalError;
         }
         finally
         {

@@ -18,8 +18,8 @@ public static class SweepMergeCommand
             try
             {
                 var outDir = parseResult.GetValue(output)!.FullName;
-                var (spec, records, summary) = SweepMerge.Merge(parseResult.GetValue(dirs)!.Select(d => d.FullName).ToArray(), outDir);
-                SweepPlot.Write(outDir, spec, records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) || spec.LogR });
+                var (spec, summary) = SweepMerge.Merge(parseResult.GetValue(dirs)!.Select(d => d.FullName).ToArray(), outDir);
+                SweepDensityPlot.Write(outDir, spec, SweepResults.Open(outDir).Records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) || spec.LogR });
                 Console.WriteLine($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}");
                 return 0;
             }

@@ -138,7 +138,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         {
             string key = point.Keys[i];
             double v = point.Values[i];
-            var at = new Located<double>(v, $"sweep value {key} = {v.ToString("R", CultureInfo.InvariantCulture)}");
+            var at = new Located<double>(v, SweptValueName(key, v));
             switch (key)
             {
                 case "efolds": o.Efolds = at; break;
@@ -156,6 +156,8 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         }
         return SettingsResolver.Resolve(RunInput.Merge(_deck, o));
     }
+
+    private static string SweptValueName(string key, double v) => $"sweep value {key} = {v.ToString("R", CultureInfo.InvariantCulture)}";
 
     /// <inheritdoc />
     public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
@@ -190,10 +192,44 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 Flags = FlagNames(flags),
             };
         }
-        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or ArgumentException or ArithmeticException
-                                      or Formulas.FormulaException or TheoryException)
+        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or Formulas.FormulaException or TheoryException)
         {
+            // Only physics and input errors make a failed point; anything else is a bug and stops the sweep (SweepRunner).
             return SweepPointResult.Failed(SweepDeck.OneLine(e.Message));
+        }
+    }
+
+    /// <summary>
+    /// Checks, before any point runs, everything that does not depend on the swept values: the settings of the first
+    /// and the last point are resolved and their model built; an input error (deck key, range, formula, model) that
+    /// both give with the same message is common to the grid and is thrown as a one-line <see cref="SweepException"/>
+    /// (which the CLI reports with exit code 2). An error of only one of them (a swept value out of range) is left to
+    /// that point, which fails on its own; physics is never judged here.
+    /// </summary>
+    public void ValidateGrid(SweepSpec spec)
+    {
+        ArgumentNullException.ThrowIfNull(spec);
+        if (spec.PointCount == 0) return;
+        string? first = InputError(spec.GetPoint(0));
+        if (first is null) return;
+        string? last = spec.PointCount == 1 ? first : InputError(spec.GetPoint(spec.PointCount - 1));
+        if (last == first) throw new SweepException($"{first} (at the first and the last point of the sweep alike, so no point was run)");
+    }
+
+    private string? InputError(SweepPoint point)
+    {
+        try
+        {
+            TheoryFactory.Build(SettingsFor(point));
+            return null;
+        }
+        catch (Exception e) when (e is DeckException or Formulas.FormulaException or TheoryException)
+        {
+            // Without the point's own values, so that one error of the whole grid reads the same at both points.
+            string message = SweepDeck.OneLine(e.Message);
+            for (int i = 0; i < point.Keys.Count; i++)
+                message = message.Replace(SweptValueName(point.Keys[i], point.Values[i]), $"sweep value {point.Keys[i]}", StringComparison.Ordinal);
+            return message;
         }
     }
 

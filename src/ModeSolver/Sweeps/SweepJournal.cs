@@ -26,10 +26,14 @@ public readonly record struct ShardSpec(int Index, int Count)
     public override string ToString() => $"{Index}/{Count}";
 }
 
+/// <summary>Receives a journal record, the byte offset of its line and the line itself (without its newline).</summary>
+public delegate void JournalLineHandler(SweepRecord record, long offset, ReadOnlySpan<byte> line);
+
 /// <summary>The header line of a journal.</summary>
 public sealed record SweepJournalHeader(string Fingerprint, long PointCount, ShardSpec Shard)
 {
     internal const string Magic = "modesolver-sweep-journal";
+    private const long MaxPoints = 1L << 40;
 
     internal byte[] ToJsonLine()
     {
@@ -55,7 +59,9 @@ public sealed record SweepJournalHeader(string Fingerprint, long PointCount, Sha
             using var doc = JsonDocument.Parse(line.ToArray());
             var e = doc.RootElement;
             if (!e.TryGetProperty("journal", out var m) || m.GetString() != Magic) return null;
-            return new SweepJournalHeader(e.GetProperty("fingerprint").GetString() ?? "", e.GetProperty("points").GetInt64(),
+            long points = e.GetProperty("points").GetInt64();
+            if (points < 0 || points > MaxPoints) return null; // not a journal we wrote (and not worth a bit set that large)
+            return new SweepJournalHeader(e.GetProperty("fingerprint").GetString() ?? "", points,
                 ShardSpec.Parse(e.GetProperty("shard").GetString() ?? ""));
         }
         catch (Exception ex) when (ex is JsonException or KeyNotFoundException or InvalidOperationException or SweepException or FormatException)
@@ -90,96 +96,174 @@ public sealed class SweepJournal : IDisposable
     /// <summary>The fingerprint of a sweep: SHA-256 of the spec's canonical text and of the deck without its sweep table.</summary>
     public static string Fingerprint(SweepSpec spec, string deckTextWithoutSweep)
     {
-        var text = spec.CanonicalText() + "\n--- deck ---\n" + deckTextWithoutSweep.Replace("\r\n", "\n");
-        return Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(text)));
+        // Streamed into the hash: a long axis never becomes one big string.
+        using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        void Add(string piece) => hash.AppendData(Encoding.UTF8.GetBytes(piece));
+        spec.WriteCanonical(Add);
+        Add("\n--- deck ---\n");
+        Add(deckTextWithoutSweep.Replace("\r\n", "\n"));
+        return Convert.ToHexStringLower(hash.GetHashAndReset());
     }
 
     /// <summary>
     /// Reads a journal file: its header and its records (first occurrence of each index wins). A last line without
     /// its newline (a write cut by a kill) is ignored and reported in <paramref name="validLength"/> (the byte length
     /// up to the last complete line). Throws a <see cref="SweepException"/> naming the file and line for any other damage.
+    /// Holds every record: for small journals and tests; the runner and the merge use <see cref="Scan"/>.
     /// </summary>
     public static (SweepJournalHeader Header, List<SweepRecord> Records) Read(string path, out long validLength)
     {
-        byte[] bytes = File.ReadAllBytes(path);
-        int lastNewline = Array.LastIndexOf(bytes, (byte)'\n');
-        validLength = lastNewline + 1;
-        int pos = 0, lineNo = 0;
-        SweepJournalHeader? header = null;
         var records = new List<SweepRecord>();
-        var seen = new HashSet<long>();
-        while (pos < validLength)
+        var header = Scan(path, (r, _, _) => records.Add(r), out validLength);
+        return (header, records);
+    }
+
+    /// <summary>
+    /// Streams a journal file: calls <paramref name="onRecord"/> with each record (first occurrence of each index),
+    /// the byte offset of its line and the line (without the newline), in file order. Memory: one line and
+    /// one bit per point of the sweep. Same damage rules as <see cref="Read"/>.
+    /// </summary>
+    public static SweepJournalHeader Scan(string path, JournalLineHandler onRecord, out long validLength)
+    {
+        var result = new ScanResult();
+        foreach (var (rec, offset, line) in Entries(path, result)) onRecord(rec, offset, line.Span);
+        validLength = result.ValidLength;
+        return result.Header;
+    }
+
+    /// <summary>The records of a journal file (first occurrence of each index), streamed in file order; same damage rules as <see cref="Read"/>.</summary>
+    public static IEnumerable<SweepRecord> Records(string path)
+    {
+        foreach (var (rec, _, _) in Entries(path, new ScanResult())) yield return rec;
+    }
+
+    private sealed class ScanResult
+    {
+        public SweepJournalHeader Header = new("", 0, ShardSpec.All);
+        public long ValidLength;
+    }
+
+    // The line memory is valid until the next item.
+    private static IEnumerable<(SweepRecord Record, long Offset, ReadOnlyMemory<byte> Line)> Entries(string path, ScanResult result)
+    {
+        using var fs = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.ReadWrite, 1 << 16);
+        var reader = new LineReader(fs);
+        long lineNo = 0;
+        SweepJournalHeader? header = null;
+        PointSet? seen = null;
+        while (reader.Next(out var line, out long offset))
         {
-            int nl = Array.IndexOf(bytes, (byte)'\n', pos);
-            var line = new ReadOnlySpan<byte>(bytes, pos, nl - pos);
-            pos = nl + 1;
             lineNo++;
+            result.ValidLength = offset + line.Length + 1;
             if (lineNo == 1)
             {
-                header = SweepJournalHeader.TryParse(line) ?? throw new SweepException($"{path}: line 1 is not a sweep journal header");
+                header = SweepJournalHeader.TryParse(line.Span) ?? throw new SweepException($"{path}: line 1 is not a sweep journal header");
+                result.Header = header;
+                seen = new PointSet(header.PointCount);
                 continue;
             }
             if (line.IsEmpty) continue;
             SweepRecord rec;
-            try { rec = SweepRecord.FromJson(line); }
+            try { rec = SweepRecord.FromJson(line.Span); }
             catch (Exception e) when (e is JsonException or KeyNotFoundException or InvalidOperationException or FormatException)
             {
                 throw new SweepException($"{path}: line {lineNo} is damaged ({SweepDeck.OneLine(e.Message)})");
             }
             if (rec.Index < 0 || rec.Index >= header!.PointCount)
                 throw new SweepException($"{path}: line {lineNo} has point index {rec.Index} outside 0..{header!.PointCount - 1}");
-            if (seen.Add(rec.Index)) records.Add(rec);
+            if (seen!.Add(rec.Index)) yield return (rec, offset, line);
         }
-        if (header is null)
-        {
-            // Not even a complete header: treat as empty (the kill came before the first flush).
-            validLength = 0;
-            return (new SweepJournalHeader("", 0, ShardSpec.All), records);
-        }
-        return (header, records);
+        // Without even a complete header the journal counts as empty (the kill came before the first flush).
+        if (header is null) result.ValidLength = 0;
+    }
+
+    /// <summary>The header of the journal at <paramref name="path"/>, or null when its first line is not complete or not a header.</summary>
+    public static SweepJournalHeader? ReadHeader(string path)
+    {
+        using var probe = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.ReadWrite, 1 << 12);
+        return new LineReader(probe).Next(out var first, out _) ? SweepJournalHeader.TryParse(first.Span) : null;
     }
 
     /// <summary>
     /// Opens the journal for appending. An existing journal must carry the same fingerprint, point count and shard,
     /// else a <see cref="SweepException"/> says so (unless <paramref name="restart"/>, which starts a new journal).
-    /// Returns the journal and the records already in it.
+    /// <paramref name="onExisting"/> receives the records already in it (with their line offsets and lengths).
     /// </summary>
-    public static SweepJournal Open(string path, SweepJournalHeader header, bool restart, out List<SweepRecord> existing)
+    public static SweepJournal Open(string path, SweepJournalHeader header, bool restart, JournalLineHandler? onExisting = null)
     {
-        existing = [];
         if (File.Exists(path) && !restart)
         {
-            var (h, recs) = Read(path, out long valid);
-            if (valid > 0)
+            long valid;
+            // Check the header before handing out any record, so a journal of another sweep is refused without side effects.
+            var h = HasCompleteFirstLine(path)
+                ? ReadHeader(path) ?? throw new SweepException($"{path}: line 1 is not a sweep journal header")
+                : new SweepJournalHeader("", 0, ShardSpec.All);
+            if (h.Fingerprint.Length > 0)
             {
                 if (h.Fingerprint != header.Fingerprint || h.PointCount != header.PointCount)
                     throw new SweepException($"{path} belongs to a different deck or sweep (fingerprint {Short(h.Fingerprint)} here, {Short(header.Fingerprint)} now); use --restart to start over or another --out");
                 if (h.Shard != header.Shard)
                     throw new SweepException($"{path} was written for shard {h.Shard}, not {header.Shard}; use --restart to start over or another --out");
-                existing = recs;
-                var fs = new FileStream(path, FileMode.Open, FileAccess.Write, FileShare.Read);
+                Scan(path, onExisting ?? ((_, _, _) => { }), out valid);
+                var fs = OpenExclusive(path, FileMode.Open);
                 fs.SetLength(valid);
                 fs.Seek(valid, SeekOrigin.Begin);
                 return new SweepJournal(fs, path, header);
             }
         }
-        var created = new FileStream(path, FileMode.Create, FileAccess.Write, FileShare.Read);
+        var created = OpenExclusive(path, FileMode.Create);
         var bytes = header.ToJsonLine();
         created.Write(bytes);
         created.Flush(true);
         return new SweepJournal(created, path, header);
     }
 
-    /// <summary>Appends a record as one line (one write, then flush). Thread-safe.</summary>
-    public void Append(SweepRecord record) => AppendLine(record.ToJsonLine());
+    /// <summary>Same as <see cref="Open(string, SweepJournalHeader, bool, JournalLineHandler?)"/>, collecting the existing records.</summary>
+    public static SweepJournal Open(string path, SweepJournalHeader header, bool restart, out List<SweepRecord> existing)
+    {
+        var list = new List<SweepRecord>();
+        var journal = Open(path, header, restart, (r, _, _) => list.Add(r));
+        existing = list;
+        return journal;
+    }
 
-    /// <summary>Appends ready-made journal line bytes (ending in '\n'). Thread-safe.</summary>
-    public void AppendLine(byte[] line)
+    private static bool HasCompleteFirstLine(string path)
+    {
+        using var probe = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.ReadWrite, 1 << 12);
+        return new LineReader(probe).Next(out _, out _);
+    }
+
+    // Unbuffered (every append is one write), readable by this process for the snapshots (RandomAccess on the handle).
+    private static FileStream OpenExclusive(string path, FileMode mode, FileShare share = FileShare.Read) =>
+        new(path, mode, FileAccess.ReadWrite, share, bufferSize: 0);
+
+    /// <summary>
+    /// Creates a new journal that no other process can open while this one holds it (an exclusive flock): a rank's
+    /// own journal, so that a later run cannot fold it while a rank of a killed run still writes.
+    /// </summary>
+    public static SweepJournal CreateHeld(string path, SweepJournalHeader header)
+    {
+        var created = OpenExclusive(path, FileMode.Create, FileShare.None);
+        created.Write(header.ToJsonLine());
+        created.Flush(true);
+        return new SweepJournal(created, path, header);
+    }
+
+    /// <summary>The bytes of a line at <paramref name="offset"/> written through this journal (or found in it when opened).</summary>
+    public void ReadLine(long offset, Span<byte> line) => RandomAccess.Read(_stream.SafeFileHandle, line, offset);
+
+    /// <summary>Appends a record as one line (one write, then flush). Thread-safe. Returns the line's offset.</summary>
+    public long Append(SweepRecord record) => AppendLine(record.ToJsonLine());
+
+    /// <summary>Appends ready-made journal line bytes (ending in '\n'). Thread-safe. Returns the line's offset.</summary>
+    public long AppendLine(ReadOnlySpan<byte> line)
     {
         lock (_gate)
         {
+            long at = _stream.Position;
             _stream.Write(line);
             _stream.Flush(false);
+            return at;
         }
     }
 
@@ -196,6 +280,41 @@ public sealed class SweepJournal : IDisposable
         {
             _stream.Flush(true);
             _stream.Dispose();
+        }
+    }
+
+    /// <summary>Reads a stream line by line (lines end in '\n'; a last line without one is not returned), with offsets.</summary>
+    private sealed class LineReader(Stream stream)
+    {
+        private byte[] _buffer = new byte[1 << 16];
+        private int _start, _end;
+        private long _bufferOffset;
+        private bool _eof;
+
+        public bool Next(out ReadOnlyMemory<byte> line, out long offset)
+        {
+            while (true)
+            {
+                int nl = Array.IndexOf(_buffer, (byte)'\n', _start, _end - _start);
+                if (nl >= 0)
+                {
+                    line = new ReadOnlyMemory<byte>(_buffer, _start, nl - _start);
+                    offset = _bufferOffset + _start;
+                    _start = nl + 1;
+                    return true;
+                }
+                if (_eof) { line = default; offset = _bufferOffset + _start; return false; }
+                // Move the partial line to the front (grow for a long line) and read more.
+                int rest = _end - _start;
+                if (rest == _buffer.Length) Array.Resize(ref _buffer, _buffer.Length * 2);
+                Buffer.BlockCopy(_buffer, _start, _buffer, 0, rest);
+                _bufferOffset += _start;
+                _start = 0;
+                _end = rest;
+                int n = stream.Read(_buffer, _end, _buffer.Length - _end);
+                if (n == 0) _eof = true;
+                else _end += n;
+            }
         }
     }
 

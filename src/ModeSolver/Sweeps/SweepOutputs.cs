@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Text;
 using PureHDF;
+using PureHDF.Selections;
 
 namespace ModeSolver.Sweeps;
 
@@ -21,24 +22,71 @@ public static class SweepFiles
     public const string PlotSvg = "ns-r.svg";
 }
 
-/// <summary>Writes the CSV and HDF5 files of a sweep from its records, sorted by index, each under a temporary name then renamed.</summary>
+/// <summary>
+/// Writes the CSV and HDF5 files of a sweep from its records sorted by index, streamed (one block of rows in memory),
+/// each under a temporary name unique to the run, then renamed.
+/// </summary>
 public static class SweepOutputs
 {
     /// <summary>The result columns of the CSV after the index and the swept keys.</summary>
     public static readonly IReadOnlyList<string> ResultColumns = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "flags", "status", "message"];
 
-    /// <summary>Writes points.csv and sweep.h5 into <paramref name="directory"/>. Records need not be sorted.</summary>
+    /// <summary>The end of every temporary name a sweep writes (leftovers of killed runs are recognised by it).</summary>
+    public const string TemporaryExtension = ".sweep-tmp";
+
+    private const int RowBlock = 1 << 14;
+
+    /// <summary>Writes points.csv and sweep.h5 into <paramref name="directory"/>. Records need not be sorted (they are held in memory: small sweeps and tests).</summary>
     public static void Write(string directory, SweepSpec spec, string fingerprint, IEnumerable<SweepRecord> records)
     {
         var sorted = records.OrderBy(r => r.Index).ToList();
-        WriteAtomically(Path.Combine(directory, SweepFiles.Csv), path => File.WriteAllText(path, Csv(spec, sorted), new UTF8Encoding(false)));
-        WriteAtomically(Path.Combine(directory, SweepFiles.Hdf5), path => BuildHdf5(spec, fingerprint, sorted).Write(path));
+        Write(directory, spec, fingerprint, () => sorted, sorted.Count, sorted.Count(r => !r.Ok));
     }
 
-    /// <summary>Runs <paramref name="write"/> on a temporary name beside <paramref name="path"/>, then renames it over <paramref name="path"/>.</summary>
+    /// <summary>
+    /// Writes points.csv and sweep.h5 into <paramref name="directory"/> from <paramref name="sorted"/> (enumerated once,
+    /// twice with spectra), which yields <paramref name="count"/> records in index order, <paramref name="failed"/> of them failed.
+    /// </summary>
+    public static void Write(string directory, SweepSpec spec, string fingerprint, Func<IEnumerable<SweepRecord>> sorted, long count, long failed)
+    {
+        string csvPath = Path.Combine(directory, SweepFiles.Csv), h5Path = Path.Combine(directory, SweepFiles.Hdf5);
+        string csvTmp = TemporaryName(csvPath), h5Tmp = TemporaryName(h5Path);
+        try
+        {
+            var spectra = spec.Spectra ? SpectraGroup(sorted()) : null;
+            var layout = new Hdf5Layout(spec, fingerprint, count, failed, spectra);
+            using (var csv = new StreamWriter(csvTmp, false, new UTF8Encoding(false), 1 << 16))
+            using (var h5 = layout.File.BeginWrite(h5Tmp))
+            {
+                csv.NewLine = "\n";
+                WriteCsvHeader(csv, spec);
+                var values = new double[spec.Keys.Count];
+                var block = new RowBuffer(spec.Keys.Count);
+                long written = 0;
+                foreach (var r in sorted())
+                {
+                    spec.GetValues(r.Index, values);
+                    WriteCsvRow(csv, values, r);
+                    block.Add(r, values);
+                    if (block.Count == RowBlock) { layout.WriteBlock(h5, block, written); written += block.Count; block.Clear(); }
+                }
+                if (block.Count > 0) { layout.WriteBlock(h5, block, written); written += block.Count; }
+                if (written != count) throw new InvalidOperationException($"sweep outputs: {written} records where {count} were announced");
+            }
+            File.Move(csvTmp, csvPath, overwrite: true);
+            File.Move(h5Tmp, h5Path, overwrite: true);
+        }
+        finally
+        {
+            if (File.Exists(csvTmp)) File.Delete(csvTmp);
+            if (File.Exists(h5Tmp)) File.Delete(h5Tmp);
+        }
+    }
+
+    /// <summary>Runs <paramref name="write"/> on a temporary name beside <paramref name="path"/> (unique to this run), then renames it over <paramref name="path"/>.</summary>
     public static void WriteAtomically(string path, Action<string> write)
     {
-        string tmp = path + ".tmp";
+        string tmp = TemporaryName(path);
         try
         {
             write(tmp);
@@ -50,102 +98,173 @@ public static class SweepOutputs
         }
     }
 
+    /// <summary>A temporary name beside <paramref name="path"/>, unique to this process and call.</summary>
+    public static string TemporaryName(string path) =>
+        $"{path}.{Environment.ProcessId:x}-{Guid.NewGuid().ToString("N")[..8]}{TemporaryExtension}";
+
+    /// <summary>
+    /// Removes the temporaries of killed runs (regular files ending in <see cref="TemporaryExtension"/>) from
+    /// <paramref name="directory"/>. Call only while holding the directory's lock.
+    /// </summary>
+    public static void RemoveLeftovers(string directory)
+    {
+        foreach (var p in Directory.GetFiles(directory, "*" + TemporaryExtension))
+            if (FileKind.IsRegularFile(p)) File.Delete(p);
+    }
+
     /// <summary>The CSV text: header, then one row per record sorted by index (records must be sorted).</summary>
     public static string Csv(SweepSpec spec, IReadOnlyList<SweepRecord> sorted)
     {
-        var sb = new StringBuilder();
-        sb.Append("index");
-        foreach (var k in spec.Keys) sb.Append(',').Append(Quote(k));
-        foreach (var c in ResultColumns) sb.Append(',').Append(c);
-        sb.Append('\n');
+        using var w = new StringWriter(CultureInfo.InvariantCulture) { NewLine = "\n" };
+        WriteCsvHeader(w, spec);
         var values = new double[spec.Keys.Count];
         foreach (var r in sorted)
         {
             spec.GetValues(r.Index, values);
-            sb.Append(r.Index.ToString(CultureInfo.InvariantCulture));
-            foreach (var v in values) sb.Append(',').Append(F(v));
-            if (r.Ok)
-            {
-                foreach (var v in new[] { r.Ns, r.R, r.AlphaS, r.Nt, r.As, r.NStar, r.VScale }) sb.Append(',').Append(F(v));
-                sb.Append(',').Append(Quote(string.Join(';', r.Flags))).Append(",ok,");
-            }
-            else
-            {
-                sb.Append(",,,,,,,,,failed,").Append(Quote(r.Message));
-            }
-            sb.Append('\n');
+            WriteCsvRow(w, values, r);
         }
-        return sb.ToString();
+        return w.ToString();
+    }
+
+    private static void WriteCsvHeader(TextWriter w, SweepSpec spec)
+    {
+        w.Write("index");
+        foreach (var k in spec.Keys) { w.Write(','); w.Write(Quote(k)); }
+        foreach (var c in ResultColumns) { w.Write(','); w.Write(c); }
+        w.Write('\n');
+    }
+
+    private static void WriteCsvRow(TextWriter w, double[] values, SweepRecord r)
+    {
+        w.Write(r.Index.ToString(CultureInfo.InvariantCulture));
+        foreach (var v in values) { w.Write(','); w.Write(F(v)); }
+        if (r.Ok)
+        {
+            foreach (var v in new[] { r.Ns, r.R, r.AlphaS, r.Nt, r.As, r.NStar, r.VScale }) { w.Write(','); w.Write(F(v)); }
+            w.Write(',');
+            w.Write(Quote(string.Join(';', r.Flags)));
+            w.Write(",ok,");
+        }
+        else
+        {
+            w.Write(",,,,,,,,,failed,");
+            w.Write(Quote(r.Message));
+        }
+        w.Write('\n');
+    }
+
+    private static H5Group SpectraGroup(IEnumerable<SweepRecord> sorted)
+    {
+        // Spectra sweeps keep the per-point spectrum groups in memory while the file is written (a documented limit).
+        var spectra = new H5Group();
+        foreach (var r in sorted)
+        {
+            if (r.K is null) continue;
+            var g = new H5Group { ["k"] = r.K };
+            if (r.Ps is not null) g["P_s"] = r.Ps;
+            if (r.Pt is not null) g["P_t"] = r.Pt;
+            spectra[r.Index.ToString("D8", CultureInfo.InvariantCulture)] = g;
+        }
+        return spectra;
+    }
+
+    /// <summary>A block of HDF5 rows (column buffers, reused).</summary>
+    private sealed class RowBuffer
+    {
+        public readonly long[] Index = new long[RowBlock];
+        public readonly double[][] Settings;
+        public readonly double[][] Results = new double[7][];
+        public readonly string[] Status = new string[RowBlock], Message = new string[RowBlock], Flags = new string[RowBlock];
+        public int Count;
+
+        public RowBuffer(int keys)
+        {
+            Settings = new double[keys][];
+            for (int j = 0; j < keys; j++) Settings[j] = new double[RowBlock];
+            for (int j = 0; j < Results.Length; j++) Results[j] = new double[RowBlock];
+        }
+
+        public void Add(SweepRecord r, double[] values)
+        {
+            int i = Count++;
+            Index[i] = r.Index;
+            for (int j = 0; j < values.Length; j++) Settings[j][i] = values[j];
+            Results[0][i] = r.Ok ? r.Ns : double.NaN;
+            Results[1][i] = r.Ok ? r.R : double.NaN;
+            Results[2][i] = r.Ok ? r.AlphaS : double.NaN;
+            Results[3][i] = r.Ok ? r.Nt : double.NaN;
+            Results[4][i] = r.Ok ? r.As : double.NaN;
+            Results[5][i] = r.Ok ? r.NStar : double.NaN;
+            Results[6][i] = r.Ok ? r.VScale : double.NaN;
+            Status[i] = r.Ok ? "ok" : "failed";
+            Message[i] = r.Message;
+            Flags[i] = r.Flags.Count == 0 ? "" : string.Join(';', r.Flags);
+        }
+
+        public void Clear() => Count = 0;
     }
 
     /// <summary>
-    /// The HDF5 object model: root attributes (format, fingerprint, keys, counts), /grid/&lt;key&gt; (each axis'
-    /// values), /points/index, /points/settings/&lt;key&gt;, /points/{n_s, r, alpha_s, n_t, A_s, N_star, V_scale} (NaN
-    /// for failed points), /points/{status, message, flags} (strings), and /spectra/&lt;index, 8 digits&gt;/{k, P_s, P_t}.
+    /// The HDF5 layout: root attributes (format, fingerprint, keys, counts), /grid/&lt;key&gt; (each axis' values),
+    /// /points/index, /points/settings/&lt;key&gt;, /points/{n_s, r, alpha_s, n_t, A_s, N_star, V_scale} (NaN for
+    /// failed points), /points/{status, message, flags} (strings), and /spectra/&lt;index, 8 digits&gt;/{k, P_s, P_t}.
+    /// The /points datasets are declared with their final length and filled block by block.
     /// </summary>
-    public static H5File BuildHdf5(SweepSpec spec, string fingerprint, IReadOnlyList<SweepRecord> sorted)
+    private sealed class Hdf5Layout
     {
-        int n = sorted.Count;
-        var file = new H5File();
-        file.Attributes["format"] = "modesolver-sweep-1";
-        file.Attributes["fingerprint"] = fingerprint;
-        file.Attributes["keys"] = spec.Keys.ToArray();
-        file.Attributes["point_count"] = spec.PointCount;
-        file.Attributes["done_count"] = (long)n;
-        file.Attributes["failed_count"] = (long)sorted.Count(r => !r.Ok);
-        var grid = new H5Group();
-        foreach (var a in spec.Axes)
-        {
-            var ds = new H5Dataset<double[]>(a.Values.ToArray());
-            ds.Attributes["kind"] = a.Kind.ToString().ToLowerInvariant();
-            grid[a.Key] = ds;
-        }
-        file["grid"] = grid;
-        var points = new H5Group();
-        points["index"] = sorted.Select(r => r.Index).ToArray();
-        var settings = new H5Group();
-        var cols = new double[spec.Keys.Count][];
-        for (int j = 0; j < cols.Length; j++) cols[j] = new double[n];
-        var v = new double[spec.Keys.Count];
-        for (int i = 0; i < n; i++)
-        {
-            spec.GetValues(sorted[i].Index, v);
-            for (int j = 0; j < cols.Length; j++) cols[j][i] = v[j];
-        }
-        for (int j = 0; j < cols.Length; j++) settings[spec.Keys[j]] = cols[j];
-        points["settings"] = settings;
-        points["n_s"] = Col(sorted, r => r.Ns);
-        points["r"] = Col(sorted, r => r.R);
-        points["alpha_s"] = Col(sorted, r => r.AlphaS);
-        points["n_t"] = Col(sorted, r => r.Nt);
-        points["A_s"] = Col(sorted, r => r.As);
-        points["N_star"] = Col(sorted, r => r.NStar);
-        points["V_scale"] = Col(sorted, r => r.VScale);
-        points["status"] = sorted.Select(r => r.Ok ? "ok" : "failed").ToArray();
-        points["message"] = sorted.Select(r => r.Message).ToArray();
-        points["flags"] = sorted.Select(r => string.Join(';', r.Flags)).ToArray();
-        file["points"] = points;
-        if (spec.Spectra)
-        {
-            var spectra = new H5Group();
-            foreach (var r in sorted)
-            {
-                if (r.K is null) continue;
-                var g = new H5Group { ["k"] = r.K };
-                if (r.Ps is not null) g["P_s"] = r.Ps;
-                if (r.Pt is not null) g["P_t"] = r.Pt;
-                spectra[r.Index.ToString("D8", CultureInfo.InvariantCulture)] = g;
-            }
-            file["spectra"] = spectra;
-        }
-        return file;
-    }
+        private static readonly string[] ResultNames = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale"];
+        private readonly H5Dataset<long[]> _index;
+        private readonly H5Dataset<double[]>[] _settings, _results;
+        private readonly H5Dataset<string[]> _status, _message, _flags;
 
-    private static double[] Col(IReadOnlyList<SweepRecord> sorted, Func<SweepRecord, double> f)
-    {
-        var a = new double[sorted.Count];
-        for (int i = 0; i < a.Length; i++) a[i] = sorted[i].Ok ? f(sorted[i]) : double.NaN;
-        return a;
+        public Hdf5Layout(SweepSpec spec, string fingerprint, long count, long failed, H5Group? spectra)
+        {
+            File = new H5File();
+            File.Attributes["format"] = "modesolver-sweep-1";
+            File.Attributes["fingerprint"] = fingerprint;
+            File.Attributes["keys"] = spec.Keys.ToArray();
+            File.Attributes["point_count"] = spec.PointCount;
+            File.Attributes["done_count"] = count;
+            File.Attributes["failed_count"] = failed;
+            var grid = new H5Group();
+            foreach (var a in spec.Axes)
+            {
+                var values = new double[a.Count];
+                for (int i = 0; i < values.Length; i++) values[i] = a.ValueAt(i);
+                var ds = new H5Dataset<double[]>(values);
+                ds.Attributes["kind"] = a.Kind.ToString().ToLowerInvariant();
+                grid[a.Key] = ds;
+            }
+            File["grid"] = grid;
+            ulong[] dims = [(ulong)count];
+            var points = new H5Group();
+            points["index"] = _index = new H5Dataset<long[]>(fileDims: dims);
+            var settings = new H5Group();
+            _settings = new H5Dataset<double[]>[spec.Keys.Count];
+            for (int j = 0; j < _settings.Length; j++) settings[spec.Keys[j]] = _settings[j] = new H5Dataset<double[]>(fileDims: dims);
+            points["settings"] = settings;
+            _results = new H5Dataset<double[]>[ResultNames.Length];
+            for (int j = 0; j < _results.Length; j++) points[ResultNames[j]] = _results[j] = new H5Dataset<double[]>(fileDims: dims);
+            points["status"] = _status = new H5Dataset<string[]>(fileDims: dims);
+            points["message"] = _message = new H5Dataset<string[]>(fileDims: dims);
+            points["flags"] = _flags = new H5Dataset<string[]>(fileDims: dims);
+            File["points"] = points;
+            if (spectra is not null) File["spectra"] = spectra;
+        }
+
+        public H5File File { get; }
+
+        public void WriteBlock(H5NativeWriter w, RowBuffer b, long start)
+        {
+            int n = b.Count;
+            var sel = new HyperslabSelection(start: (ulong)start, block: (ulong)n);
+            w.Write(_index, n == RowBlock ? b.Index : b.Index[..n], fileSelection: sel);
+            for (int j = 0; j < _settings.Length; j++) w.Write(_settings[j], n == RowBlock ? b.Settings[j] : b.Settings[j][..n], fileSelection: sel);
+            for (int j = 0; j < _results.Length; j++) w.Write(_results[j], n == RowBlock ? b.Results[j] : b.Results[j][..n], fileSelection: sel);
+            w.Write(_status, n == RowBlock ? b.Status : b.Status[..n], fileSelection: sel);
+            w.Write(_message, n == RowBlock ? b.Message : b.Message[..n], fileSelection: sel);
+            w.Write(_flags, n == RowBlock ? b.Flags : b.Flags[..n], fileSelection: sel);
+        }
     }
 
     private static string F(double x) => x.ToString("R", CultureInfo.InvariantCulture);

@@ -84,13 +84,16 @@ public sealed class SweepRecord
     {
         using var doc = JsonDocument.Parse(line.ToArray());
         var e = doc.RootElement;
-        long i = e.GetProperty("i").GetInt64();
-        bool ok = e.GetProperty("ok").GetBoolean();
-        if (!ok) return new SweepRecord { Index = i, Ok = false, Message = e.GetProperty("msg").GetString() ?? "" };
+        if (e.ValueKind != JsonValueKind.Object) throw new FormatException("not a JSON object");
+        long i = Required(e, "i").GetInt64();
+        bool ok = Required(e, "ok").GetBoolean();
+        if (!ok) return new SweepRecord { Index = i, Ok = false, Message = Required(e, "msg").GetString() ?? "" };
+        // An ok point carries every value: a line without them is damage, never a point full of NaN.
         return new SweepRecord
         {
             Index = i, Ok = true,
-            Ns = D(e, "n_s"), R = D(e, "r"), AlphaS = D(e, "alpha_s"), Nt = D(e, "n_t"), As = D(e, "A_s"), NStar = D(e, "N_star"), VScale = D(e, "V_scale"),
+            Ns = Value(e, "n_s"), R = Value(e, "r"), AlphaS = Value(e, "alpha_s"), Nt = Value(e, "n_t"), As = Value(e, "A_s"),
+            NStar = Value(e, "N_star"), VScale = Value(e, "V_scale"),
             Flags = e.TryGetProperty("flags", out var f) ? f.EnumerateArray().Select(x => x.GetString() ?? "").ToArray() : [],
             K = A(e, "k"), Ps = A(e, "P_s"), Pt = A(e, "P_t"),
         };
@@ -117,7 +120,10 @@ public sealed class SweepRecord
     private static double D(JsonElement x) =>
         x.ValueKind == JsonValueKind.String ? double.Parse(x.GetString()!, CultureInfo.InvariantCulture) : x.GetDouble();
 
-    private static double D(JsonElement e, string name) => e.TryGetProperty(name, out var x) ? D(x) : double.NaN;
+    private static JsonElement Required(JsonElement e, string name) =>
+        e.TryGetProperty(name, out var x) ? x : throw new FormatException($"'{name}' is missing");
+
+    private static double Value(JsonElement e, string name) => D(Required(e, name));
 
     private static double[]? A(JsonElement e, string name)
     {

@@ -13,4 +13,13 @@ public static class SweepResults
         records.Sort((a, b) => a.Index.CompareTo(b.Index));
         return (spec, records);
     }
+
+    /// <summary>The spec of an output directory and its records streamed from the journal (file order, each index once), for large sweeps.</summary>
+    public static (SweepSpec Spec, Func<IEnumerable<SweepRecord>> Records) Open(string directory)
+    {
+        string jpath = Path.Combine(directory, SweepFiles.Journal), dpath = Path.Combine(directory, SweepFiles.Deck);
+        if (!File.Exists(jpath) || !File.Exists(dpath)) throw new SweepException($"{directory}: not a sweep output directory (no {SweepFiles.Journal} or {SweepFiles.Deck})");
+        var spec = SweepDeck.ParseSpec(File.ReadAllText(dpath), dpath);
+        return (spec, () => SweepJournal.Records(jpath));
+    }
 }

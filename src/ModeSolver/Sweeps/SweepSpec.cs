@@ -24,6 +24,10 @@ public enum SweepAxisKind
 /// <summary>One swept setting: an opaque key (interpreted by the evaluator) and its ordered values.</summary>
 public sealed class SweepAxis
 {
+    private readonly double[]? _list;
+    private readonly double _start, _stop;
+    private readonly int _count;
+
     /// <summary>Creates an axis; <paramref name="values"/> is copied.</summary>
     public SweepAxis(string key, SweepAxisKind kind, IReadOnlyList<double> values)
     {
@@ -31,7 +35,20 @@ public sealed class SweepAxis
         if (values.Count == 0) throw new SweepException($"sweep axis '{key}': no values");
         Key = key;
         Kind = kind;
-        Values = values.ToArray();
+        _list = values.ToArray();
+        _count = _list.Length;
+        Values = _list;
+    }
+
+    // A linear or log axis keeps only its bounds: its values are computed on demand, so a huge count allocates nothing.
+    private SweepAxis(string key, SweepAxisKind kind, double start, double stop, int count)
+    {
+        Key = key;
+        Kind = kind;
+        _start = start;
+        _stop = stop;
+        _count = count;
+        Values = new LazyValues(this);
     }
 
     /// <summary>The setting's key, e.g. "param.alpha" or "efolds".</summary>
@@ -40,18 +57,31 @@ public sealed class SweepAxis
     /// <summary>How the values were specified.</summary>
     public SweepAxisKind Kind { get; }
 
-    /// <summary>The values in deck order.</summary>
+    /// <summary>The values in deck order (computed on demand for linear and log axes).</summary>
     public IReadOnlyList<double> Values { get; }
+
+    /// <summary>The number of values.</summary>
+    public int Count => _count;
+
+    /// <summary>The value at position <paramref name="i"/> (0 &lt;= i &lt; <see cref="Count"/>).</summary>
+    public double ValueAt(int i)
+    {
+        if ((uint)i >= (uint)_count) throw new ArgumentOutOfRangeException(nameof(i));
+        if (_list is not null) return _list[i];
+        if (_count == 1 || i == 0) return _start;
+        if (i == _count - 1) return _stop;
+        if (Kind == SweepAxisKind.Linear) return _start + (_stop - _start) * i / (_count - 1);
+        double l0 = Math.Log10(_start), l1 = Math.Log10(_stop);
+        return Math.Pow(10.0, l0 + (l1 - l0) * i / (_count - 1));
+    }
 
     /// <summary>count values from start to stop, linearly spaced; the end points are exact.</summary>
     public static SweepAxis Linear(string key, double start, double stop, int count)
     {
         if (count < 1) throw new SweepException($"sweep axis '{key}': linear count must be at least 1, got {count}");
         if (!double.IsFinite(start) || !double.IsFinite(stop)) throw new SweepException($"sweep axis '{key}': linear bounds must be finite");
-        var v = new double[count];
-        for (int i = 0; i < count; i++)
-            v[i] = count == 1 ? start : i == count - 1 ? stop : start + (stop - start) * i / (count - 1);
-        return new SweepAxis(key, SweepAxisKind.Linear, v);
+        if (string.IsNullOrWhiteSpace(key)) throw new SweepException("sweep axis: key is empty");
+        return new SweepAxis(key, SweepAxisKind.Linear, start, stop, count);
     }
 
     /// <summary>count values from start to stop, evenly spaced in log10; the end points are exact.</summary>
@@ -60,11 +90,8 @@ public sealed class SweepAxis
         if (count < 1) throw new SweepException($"sweep axis '{key}': log count must be at least 1, got {count}");
         if (!(start > 0) || !(stop > 0) || !double.IsFinite(start) || !double.IsFinite(stop))
             throw new SweepException($"sweep axis '{key}': log bounds must be positive and finite, got [{Fmt(start)}, {Fmt(stop)}]");
-        var v = new double[count];
-        double l0 = Math.Log10(start), l1 = Math.Log10(stop);
-        for (int i = 0; i < count; i++)
-            v[i] = count == 1 ? start : i == 0 ? start : i == count - 1 ? stop : Math.Pow(10.0, l0 + (l1 - l0) * i / (count - 1));
-        return new SweepAxis(key, SweepAxisKind.Log, v);
+        if (string.IsNullOrWhiteSpace(key)) throw new SweepException("sweep axis: key is empty");
+        return new SweepAxis(key, SweepAxisKind.Log, start, stop, count);
     }
 
     /// <summary>An explicit list of values.</summary>
@@ -76,6 +103,17 @@ public sealed class SweepAxis
     }
 
     internal static string Fmt(double x) => x.ToString("R", CultureInfo.InvariantCulture);
+
+    private sealed class LazyValues(SweepAxis axis) : IReadOnlyList<double>
+    {
+        public double this[int index] => axis.ValueAt(index);
+        public int Count => axis.Count;
+        public IEnumerator<double> GetEnumerator()
+        {
+            for (int i = 0; i < axis.Count; i++) yield return axis.ValueAt(i);
+        }
+        System.Collections.IEnumerator System.Collections.IEnumerable.GetEnumerator() => GetEnumerator();
+    }
 }
 
 /// <summary>
@@ -114,9 +152,9 @@ public sealed class SweepSpec
                     if (ai < 0) throw new SweepException($"sweep.zip: '{key}' is not a swept key");
                     if (groupOf[ai] >= 0) throw new SweepException($"sweep.zip: '{key}' appears in two zip groups");
                     groupOf[ai] = g;
-                    if (len >= 0 && Axes[ai].Values.Count != len)
-                        throw new SweepException($"sweep.zip: '{key}' has {Axes[ai].Values.Count} values but '{group[0]}' has {len}; zipped axes need equal lengths");
-                    len = Axes[ai].Values.Count;
+                    if (len >= 0 && Axes[ai].Count != len)
+                        throw new SweepException($"sweep.zip: '{key}' has {Axes[ai].Count} values but '{group[0]}' has {len}; zipped axes need equal lengths");
+                    len = Axes[ai].Count;
                 }
                 zipGroups.Add(group.ToArray());
             }
@@ -139,8 +177,8 @@ public sealed class SweepSpec
         for (int d = _dimensions.Length - 1; d >= 0; d--)
         {
             _strides[d] = total;
-            long len = Axes[_dimensions[d][0]].Values.Count;
-            if (total > long.MaxValue / len) throw new SweepException("sweep: too many points");
+            long len = Axes[_dimensions[d][0]].Count;
+            if (total > long.MaxValue / len) throw new SweepException($"sweep: the grid has more than {long.MaxValue} points ({GridSizeText()}); use fewer or shorter axes");
             total *= len;
         }
         PointCount = total;
@@ -194,7 +232,7 @@ public sealed class SweepSpec
         {
             int i = (int)(rest / _strides[d]);
             rest %= _strides[d];
-            foreach (int ai in _dimensions[d]) values[ai] = Axes[ai].Values[i];
+            foreach (int ai in _dimensions[d]) values[ai] = Axes[ai].ValueAt(i);
         }
     }
 
@@ -206,25 +244,47 @@ public sealed class SweepSpec
         return new SweepPoint(index, Keys, v, Spectra);
     }
 
-    /// <summary>All points in index order.</summary>
+    /// <summary>All points in index order (enumerated lazily).</summary>
     public IEnumerable<SweepPoint> Points()
     {
         for (long i = 0; i < PointCount; i++) yield return GetPoint(i);
     }
 
+    /// <summary>The default limit on the number of points of one sweep (<see cref="CheckPointCount"/>).</summary>
+    public const long DefaultMaxPoints = 100_000_000;
+
+    /// <summary>
+    /// Refuses a grid above <paramref name="maxPoints"/> points in one line with the count (checked before anything
+    /// is allocated per point: the grid itself is never materialised).
+    /// </summary>
+    public void CheckPointCount(long maxPoints, string source)
+    {
+        if (PointCount > maxPoints)
+            throw new SweepException($"{source}: the sweep has {PointCount} points ({GridSizeText()}), above the limit of {maxPoints}; shorten the axes or raise the limit with --max-points");
+    }
+
+    private string GridSizeText() => string.Join(" x ", Axes.Select(a => $"{a.Count} {a.Key}"));
+
     /// <summary>A canonical text of the spec (values in round-trip form), used for the fingerprint.</summary>
     public string CanonicalText()
     {
         var sb = new StringBuilder();
-        sb.Append("sweep-spec v1\n");
+        WriteCanonical(piece => sb.Append(piece));
+        return sb.ToString();
+    }
+
+    /// <summary>The pieces of <see cref="CanonicalText"/> in order, without building the whole text.</summary>
+    public void WriteCanonical(Action<string> sink)
+    {
+        ArgumentNullException.ThrowIfNull(sink);
+        sink("sweep-spec v1\n");
         foreach (var a in Axes)
         {
-            sb.Append("axis ").Append(a.Key).Append(' ').Append(a.Kind.ToString()).Append(':');
-            foreach (var x in a.Values) sb.Append(' ').Append(SweepAxis.Fmt(x));
-            sb.Append('\n');
+            sink("axis " + a.Key + " " + a.Kind.ToString() + ":");
+            for (int i = 0; i < a.Count; i++) sink(" " + SweepAxis.Fmt(a.ValueAt(i)));
+            sink("\n");
         }
-        foreach (var g in Zip) sb.Append("zip ").Append(string.Join(' ', g)).Append('\n');
-        sb.Append("spectra ").Append(Spectra ? "true" : "false").Append('\n');
-        return sb.ToString();
+        foreach (var g in Zip) sink("zip " + string.Join(' ', g) + "\n");
+        sink("spectra " + (Spectra ? "true" : "false") + "\n");
     }
 }

@@ -48,6 +48,9 @@ public static class MpiTestHost
         var dir = SweepTestSupport.TempDir("mpi-sweep");
         var (code, stdout, stderr) = RunModesolver(ranks, ["sweep", deckPath, "--out", dir, "--quiet", .. extraArgs], TimeSpan.FromMinutes(5));
         Assert.True(code == 0, $"mpirun sweep exited with {code}: {stderr} {stdout}");
+        // A rank's stdout may be a pseudo-terminal: still no terminal control codes in what mpirun passes on.
+        Assert.DoesNotContain('\u001b', stdout);
+        Assert.DoesNotContain('\u001b', stderr);
         return dir;
     }
 

@@ -184,7 +184,7 @@ public class PipelineSweepTests
             Assert.Contains("valid: param.NAME, efolds, reheat.w, reheat.T, reheat.efolds, phi0, k_pivot, amplitude", ex.Message, StringComparison.Ordinal);
 
         var outDir = Path.Combine(dir, "out");
-        var (code, stdout, stderr) = RunCli(["sweep", deck, "--out", outDir, "--quiet"]);
+        var (code, stdout, stderr) = CliProcess.Run(["sweep", deck, "--out", outDir, "--quiet"]);
         Assert.Equal(2, code);
         Assert.Equal("", stdout);
         var line = Assert.Single(stderr.Split('\n', StringSplitOptions.RemoveEmptyEntries));
@@ -273,7 +273,7 @@ public class PipelineSweepTests
             values = [50, 60]
             """));
         var serial = Path.Combine(dir, "serial");
-        var (code, _, stderr) = RunCli(["sweep", deck, "--out", serial, "--quiet"]);
+        var (code, _, stderr) = CliProcess.Run(["sweep", deck, "--out", serial, "--quiet"]);
         Assert.True(code == 0, stderr);
         var mpi = MpiTestHost.RunSweepUnderMpi(2, deck);
         SweepTestSupport.AssertSameOutputs(serial, mpi);
@@ -302,7 +302,7 @@ public class PipelineSweepTests
             """));
         const int total = 38;
         var reference = Path.Combine(dir, "reference");
-        Assert.Equal(0, RunCli(["sweep", deck, "--out", reference, "--quiet", "--threads", "1"]).ExitCode);
+        Assert.Equal(0, CliProcess.Run(["sweep", deck, "--out", reference, "--quiet", "--threads", "1"]).ExitCode);
 
         var rng = new Random();
         // Scenario 1: one kill, then resume. Scenario 2: two kills at increasing moments, then resume.
@@ -314,7 +314,7 @@ public class PipelineSweepTests
             string[] args = ["sweep", deck, "--out", outDir, "--quiet", "--threads", "1"];
             foreach (int after in kills)
                 if (KillAfter(args, Path.Combine(outDir, SweepFiles.Journal), after, total)) interrupted++;
-            var (code, stdout, stderr) = RunCli(args);
+            var (code, stdout, stderr) = CliProcess.Run(args);
             Assert.True(code == 0, $"resume after kills at {string.Join(", ", kills)} points: exit {code}: {stderr}");
             Assert.Contains("from an earlier run", stdout, StringComparison.Ordinal);
             SweepTestSupport.AssertSameOutputs(reference, outDir);
@@ -325,55 +325,16 @@ public class PipelineSweepTests
     /// <summary>Starts the CLI, kills its process tree once the journal holds <paramref name="points"/> points; true when it was still running.</summary>
     private static bool KillAfter(string[] args, string journal, int points, int total)
     {
-        using var p = Process.Start(CliStartInfo(args))!;
+        using var p = Process.Start(CliProcess.StartInfo(args))!;
         var sw = Stopwatch.StartNew();
         while (!p.HasExited && sw.Elapsed < TimeSpan.FromSeconds(60))
         {
-            if (JournalPoints(journal) >= points) break;
+            if (CliProcess.JournalPoints(journal) >= points) break;
             Thread.Sleep(5);
         }
         bool running = !p.HasExited;
         if (running) p.Kill(entireProcessTree: true);
         p.WaitForExit();
-        return running && JournalPoints(journal) < total;
-    }
-
-    private static int JournalPoints(string journal)
-    {
-        try
-        {
-            using var s = new FileStream(journal, FileMode.Open, FileAccess.Read, FileShare.ReadWrite | FileShare.Delete);
-            using var r = new StreamReader(s);
-            int lines = 0;
-            while (r.ReadLine() is not null) lines++;
-            return Math.Max(0, lines - 1); // the first line is the header
-        }
-        catch (IOException)
-        {
-            return 0;
-        }
-    }
-
-    private static ProcessStartInfo CliStartInfo(string[] args)
-    {
-        var psi = new ProcessStartInfo("dotnet") { RedirectStandardOutput = true, RedirectStandardError = true, UseShellExecute = false };
-        psi.ArgumentList.Add(MpiTestHost.CliDll);
-        foreach (var a in args) psi.ArgumentList.Add(a);
-        // A child of the test host must not believe it runs under mpirun.
-        foreach (var v in new[] { "OMPI_COMM_WORLD_SIZE", "OMPI_COMM_WORLD_RANK", "PMIX_RANK" }) psi.Environment.Remove(v);
-        return psi;
-    }
-
-    private static (int ExitCode, string Stdout, string Stderr) RunCli(string[] args)
-    {
-        using var p = Process.Start(CliStartInfo(args))!;
-        var stdout = p.StandardOutput.ReadToEndAsync();
-        var stderr = p.StandardError.ReadToEndAsync();
-        if (!p.WaitForExit(TimeSpan.FromSeconds(120)))
-        {
-            p.Kill(entireProcessTree: true);
-            throw new TimeoutException($"modesolver {string.Join(' ', args)} did not finish");
-        }
-        return (p.ExitCode, stdout.Result, stderr.Result);
+        return running && CliProcess.JournalPoints(journal) < total;
     }
 }

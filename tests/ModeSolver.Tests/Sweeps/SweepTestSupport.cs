@@ -7,7 +7,7 @@ namespace ModeSolver.Tests.Sweeps;
 /// <summary>
 /// A synthetic deterministic evaluator (NOT physics, no outside source): n_s = 1 - 2/N, r = 12 alpha / N^2 with
 /// N = "efolds" and alpha = "param.alpha"; the point with alpha == <see cref="FailAlpha"/> and N == <see cref="FailEfolds"/>
-/// throws. Optional jitter shuffles the finishing order; optional cancellation after a number of points.
+/// throws a physics error (a failed point). Optional jitter shuffles the finishing order; optional cancellation after a number of points.
 /// </summary>
 internal sealed class SyntheticEvaluator : ISweepEvaluator
 {
@@ -41,7 +41,7 @@ internal sealed class SyntheticEvaluator : ISweepEvaluator
         }
         Evaluated.Add(point.Index);
         double n = point["efolds"], alpha = point.TryGet("param.alpha", out var a) ? a : 1.0;
-        if (alpha == FailAlpha && n == FailEfolds) throw new InvalidOperationException("synthetic failure at alpha=1, N=55\nsecond line");
+        if (alpha == FailAlpha && n == FailEfolds) throw new ModeSolver.Physics.PhysicsException("synthetic failure at alpha=1, N=55\nsecond line");
         double ns = 1 - 2 / n, r = 12 * alpha / (n * n);
         double[]? k = null, ps = null, pt = null;
         if (point.WantSpectrum)
