@@ -54,7 +54,7 @@ internal static class RunInputKeys
                         throw new Located<long>(0, key).Error($"must be a whole number (got {value.ToString("R", CultureInfo.InvariantCulture)})");
                     o.KCount = new Located<long>((long)value, key);
                     break;
-                default: throw Unknown(key, NumberKeys, "number");
+                default: throw Unknown(key, NumberKeys, "a number");
             }
         }
         return RunInput.Merge(input, o);
@@ -122,10 +122,10 @@ internal static class RunInputKeys
             case "modes.k_max": input.KMax = null; break;
             case "modes.count": input.KCount = null; break;
             case "modes.tolerance": input.Tolerance = null; break;
-            default: throw Unknown(key, [.. TextKeys.Union(NumberKeys)], "value");
+            default: throw Unknown(key, [.. TextKeys.Union(NumberKeys)], "a value");
         }
     }
 
     private static DeckException Unknown(string key, string[] valid, string kind) =>
-        new($"{key} is not a deck key that takes a {kind} here (valid: {string.Join(", ", valid)})", key);
+        new($"{key} is not a deck key that takes {kind} here (valid: {string.Join(", ", valid)})", key);
 }
