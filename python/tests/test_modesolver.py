@@ -111,10 +111,13 @@ class RunTests(unittest.TestCase):
         self.assertGreater(ps[0], ps[-1])
 
     def test_flags_and_warnings_are_strings(self):
-        with modesolver.Run(DEMO, params={"unused": 1.0}, count=8) as run:
+        with modesolver.Run(DEMO, count=8) as run:
             run.spectrum()
-            self.assertTrue(any("unused" in w for w in run.warnings), run.warnings)
+            self.assertTrue(all(isinstance(w, str) for w in run.warnings))
             self.assertTrue(all(isinstance(f, str) for f in run.flags))
+        with self.assertRaises(modesolver.InputError) as cm:
+            modesolver.Run(DEMO, params={"unused": 1.0}, count=8).spectrum()
+        self.assertIn("model.parameters.unused", cm.exception.message)
 
 
 class ErrorTests(unittest.TestCase):

@@ -128,7 +128,7 @@ size_t ms_run_flag_count(const ms_run *run);
 /* Flag i (0-based), or NULL when i is out of range. Owned by the run. */
 const char *ms_run_flag(const ms_run *run, size_t i);
 
-/* Warnings of the last run or check (e.g. a parameter the formulas do not use), one line each. */
+/* Warnings of the last run or check, one line each. */
 size_t ms_run_warning_count(const ms_run *run);
 /* Warning i (0-based), or NULL when i is out of range. Owned by the run. */
 const char *ms_run_warning(const ms_run *run, size_t i);
