@@ -62,7 +62,7 @@ public static class DeckReader
             // Strict syntax pass with semantic validation first: it rejects what the deserializer lets through
             // (a key defined twice, a table defined twice).
             _ = Tomlyn.Parsing.SyntaxParser.ParseStrict(text, sourceName, validate: true);
-            root = TomlSerializer.Deserialize<TomlTable>(text, options) ?? new TomlTable();
+            root = DeckToml.Parse(text, options);
         }
         catch (TomlException e)
         {

@@ -146,7 +146,7 @@ internal sealed class ProgramJit
         private static X Call(string name, X a) => new(Expression.Call(typeof(Math).GetMethod(name, [typeof(double)])!, a.E));
         private static X Call(string name, X a, X b) => new(Expression.Call(typeof(Math).GetMethod(name, [typeof(double), typeof(double)])!, a.E, b.E));
         private const System.Reflection.BindingFlags Flags = System.Reflection.BindingFlags.Static | System.Reflection.BindingFlags.NonPublic | System.Reflection.BindingFlags.Public;
-        private static X Helper(Type type, string name, params X[] args) => new(Expression.Call(type.GetMethod(name, Flags)!, args.Select(a => a.E)));
+        private static X Helper([System.Diagnostics.CodeAnalysis.DynamicallyAccessedMembers(System.Diagnostics.CodeAnalysis.DynamicallyAccessedMemberTypes.PublicMethods | System.Diagnostics.CodeAnalysis.DynamicallyAccessedMemberTypes.NonPublicMethods)] Type type, string name, params X[] args) => new(Expression.Call(type.GetMethod(name, Flags)!, args.Select(a => a.E)));
 
         private Expression Cond(int relation, X a, X b) => (Relation)relation switch
         {

@@ -33,7 +33,7 @@ public static class SweepDeck
     public static SweepSpec ParseSpec(string deckText, string source = "deck")
     {
         TomlTable root;
-        try { root = TomlSerializer.Deserialize<TomlTable>(deckText) ?? new TomlTable(); }
+        try { root = Decks.DeckToml.Parse(deckText); }
         catch (TomlException e) { throw new SweepException($"{source}: invalid TOML: {OneLine(e.Message)}"); }
         return ParseSpec(root, source);
     }
