@@ -128,11 +128,33 @@ public sealed class ModeIntegrator
             if (ns[i] > n0 && ns[i] < n1) { n1 = ns[i]; break; }
         if (!(n1 > n0)) return n0;
         _deep ??= new OscillatoryRegime();
+        Carried(n0, toCarried: false); // the propagator advances zeta, zeta_k, zeta_kk
         var run = _deep.Advance(_bg, _lnK, n0, n1, _y.AsSpan(0, _dim), _scalar, _tensor, _derivs, _tOff, tolerance, maxSteps);
+        Carried(run.TFinal, toCarried: true);
         _rhsCount += _deep.BackgroundEvaluations;
         _steps += run.Accepted + run.Rejected;
         _deepError = run.SumErrorEstimate;
         return run.TFinal;
+    }
+
+    /// <summary>Converts the derivative blocks between the carried scale-subtracted form and (zeta_k, zeta_kk) at N, keeping the scales.</summary>
+    private void Carried(double n, bool toCarried)
+    {
+        if (!_derivs) return;
+        var p = _bg.At(n);
+        double x = Math.Exp(_lnK - n) / p.H, x2 = x * x;
+        if (_scalar)
+        {
+            var b = _y.AsSpan(0, 12);
+            if (toCarried) ScaleSubtractedBlocks.FromSensitivities(b, 3.0 - p.Epsilon1 + p.Epsilon2, x2, _s1S, _s2S);
+            else ScaleSubtractedBlocks.ToSensitivities(b, 3.0 - p.Epsilon1 + p.Epsilon2, x2, _s1S, _s2S);
+        }
+        if (_tensor)
+        {
+            var b = _y.AsSpan(_tOff, 12);
+            if (toCarried) ScaleSubtractedBlocks.FromSensitivities(b, 3.0 - p.Epsilon1, x2, _s1T, _s2T);
+            else ScaleSubtractedBlocks.ToSensitivities(b, 3.0 - p.Epsilon1, x2, _s1T, _s2T);
+        }
     }
 
     /// <summary>Global error of the integration relative to the step tolerance (measured about 0.01 on the benchmark modes; 10x margin).</summary>

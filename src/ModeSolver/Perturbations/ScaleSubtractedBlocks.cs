@@ -32,6 +32,22 @@ internal static class ScaleSubtractedBlocks
         }
     }
 
+    /// <summary>The inverse of <see cref="FromSensitivities"/>, in place.</summary>
+    public static void ToSensitivities(Span<double> b, double f, double x2, double s1, double s2)
+    {
+        for (int c = 0; c < 2; c++)
+        {
+            double z = b[c], zp = b[2 + c], w1 = s1 * b[4 + c], w1p = s1 * b[6 + c], y2 = s2 * b[8 + c], y2p = s2 * b[10 + c];
+            double zpp = -f * zp - x2 * z;
+            double z1 = w1 - 1.5 * z - zp, z1p = w1p - 1.5 * zp - zpp;
+            double z1pp = -f * z1p - x2 * (z1 + 2.0 * z);
+            b[4 + c] = z1;
+            b[6 + c] = z1p;
+            b[8 + c] = y2 - 1.5 * z1 - z1p;
+            b[10 + c] = y2p - 1.5 * z1p - z1pp;
+        }
+    }
+
     /// <summary>Right-hand side of one block (friction f, its N-derivative fp).</summary>
     public static void Rhs(ReadOnlySpan<double> y, Span<double> dy, double f, double fp, double e1, double x2, double s1, double s2, bool derivatives)
     {

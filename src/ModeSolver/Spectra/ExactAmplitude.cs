@@ -33,7 +33,7 @@ public sealed class ExactAmplitude : IPivotAmplitude
 /// <param name="R">Tensor-to-scalar ratio.</param>
 /// <param name="AlphaS">Running of the scalar index.</param>
 /// <param name="ErrorEstimate">Estimated relative error of P.</param>
-/// <param name="RhsEvaluations">Work of the mode integration (the check at a tighter tolerance included).</param>
+/// <param name="RhsEvaluations">Work of the mode integration (the check at a tighter tolerance not counted).</param>
 public sealed record PivotValues(double K, double Ps, double Pt, double Ns, double Nt, double R, double AlphaS, double ErrorEstimate, int RhsEvaluations)
 {
     /// <summary>Estimated absolute error of each quantity (see <see cref="Compute"/>).</summary>
@@ -63,7 +63,6 @@ public sealed record PivotValues(double K, double Ps, double Pt, double Ns, doub
         var m = integrator.Solve(background, k, new ModeSettings { Tolerance = tolerance });
         int work = m.RhsEvaluations;
         var t = integrator.Solve(background, k, new ModeSettings { Tolerance = Math.Max(tolerance * CheckFactor, Math.Min(tolerance, CheckFloor)) });
-        work += t.RhsEvaluations;
         var errors = new PivotErrors(
             As: m.Ps * (m.ErrorEstimate + 2.0 * Math.Abs(m.Ps / t.Ps - 1.0)),
             Ns: 2.0 * Math.Abs(m.Ns - t.Ns) + SlopeFloor,
