@@ -6,7 +6,7 @@ using Spectre.Console;
 namespace ModeSolver.Cli.Output;
 
 /// <summary>
-/// Terminal summary of a run: a table of the exact pivot values beside the slow-roll ones (first order, second order,
+/// Terminal summary of a run: a table of the exact pivot values with their estimated errors beside the slow-roll ones (first order, second order,
 /// potential form) with the differences exact minus slow roll (relative for A_s), then N_*, phi_*, H_*, V_*^(1/4),
 /// N_total, then the flags (one line each) and warnings.
 /// </summary>
@@ -53,18 +53,20 @@ public static class SummaryPrinter
         var table = new Table().Border(border);
         table.AddColumn("quantity");
         table.AddColumn(new TableColumn("exact").RightAligned());
+        table.AddColumn(new TableColumn("+- error").RightAligned());
         table.AddColumn(new TableColumn("SR 1st").RightAligned());
         table.AddColumn(new TableColumn("diff").RightAligned());
         table.AddColumn(new TableColumn("SR 2nd").RightAligned());
         table.AddColumn(new TableColumn("diff").RightAligned());
         table.AddColumn(new TableColumn("SR potential").RightAligned());
         table.AddColumn(new TableColumn("diff").RightAligned());
-        Row(table, "A_s", p.As, sr.FirstOrder.As, sr.SecondOrder.As, sr.Potential.As, relative: true);
-        Row(table, "n_s", p.Ns, sr.FirstOrder.Ns, sr.SecondOrder.Ns, sr.Potential.Ns);
-        Row(table, "alpha_s", p.AlphaS, sr.FirstOrder.AlphaS, sr.SecondOrder.AlphaS, sr.Potential.AlphaS);
-        Row(table, "r", p.R, sr.FirstOrder.R, sr.SecondOrder.R, sr.Potential.R);
-        Row(table, "n_t", p.Nt, sr.FirstOrder.Nt, sr.SecondOrder.Nt, sr.Potential.Nt);
-        table.Caption("diff = exact - slow roll (A_s: relative, exact/SR - 1)");
+        var e = p.Errors;
+        Row(table, "A_s", p.As, e.As, sr.FirstOrder.As, sr.SecondOrder.As, sr.Potential.As, relative: true);
+        Row(table, "n_s", p.Ns, e.Ns, sr.FirstOrder.Ns, sr.SecondOrder.Ns, sr.Potential.Ns);
+        Row(table, "alpha_s", p.AlphaS, e.AlphaS, sr.FirstOrder.AlphaS, sr.SecondOrder.AlphaS, sr.Potential.AlphaS);
+        Row(table, "r", p.R, e.R, sr.FirstOrder.R, sr.SecondOrder.R, sr.Potential.R);
+        Row(table, "n_t", p.Nt, e.Nt, sr.FirstOrder.Nt, sr.SecondOrder.Nt, sr.Potential.Nt);
+        table.Caption("error = estimated absolute error of the exact value; diff = exact - slow roll (A_s: relative, exact/SR - 1)");
         console.Write(table);
 
         var info = new Table().Border(border).HideHeaders();
@@ -121,9 +123,9 @@ public static class SummaryPrinter
         console.MarkupLine(colour is null ? escaped : $"[{colour}]{escaped}[/]");
     }
 
-    private static void Row(Table t, string name, double exact, double first, double second, double potential, bool relative = false)
+    private static void Row(Table t, string name, double exact, double error, double first, double second, double potential, bool relative = false)
     {
-        t.AddRow(name, Num(exact), Num(first), Diff(exact, first, relative), Num(second), Diff(exact, second, relative),
+        t.AddRow(name, Num(exact), double.IsFinite(error) ? error.ToString("0.0e+00", Inv) : "n/a", Num(first), Diff(exact, first, relative), Num(second), Diff(exact, second, relative),
             Num(potential), Diff(exact, potential, relative));
     }
 

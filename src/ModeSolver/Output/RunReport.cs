@@ -157,6 +157,12 @@ public sealed record PivotResults(
 {
     /// <summary>H_* in GeV (H_* times the reduced Planck mass, physics.md section 0).</summary>
     public double HStarGeV => HStar * Physics.Constants.ReducedPlanckMassGeV;
+
+    /// <summary>Estimated absolute error of each exact pivot quantity (NaN when not estimated).</summary>
+    public Spectra.PivotErrors Errors { get; init; } = Spectra.PivotErrors.Unknown;
+
+    /// <summary>False when <see cref="MaxRelError"/> exceeds the requested tolerance (the run then warns).</summary>
+    public bool ToleranceMet { get; init; } = true;
 }
 
 /// <summary>One slow-roll estimate at the pivot. Quantities the approximation does not give are NaN.</summary>

@@ -60,6 +60,14 @@ public static class SummaryJsonWriter
         Num(w, "N_total", p.NTotal);
         Num(w, "N_reh", p.NReh);
         Num(w, "max_rel_error", p.MaxRelError);
+        w.WriteBoolean("tolerance_met", p.ToleranceMet);
+        w.WriteStartObject("errors");
+        Num(w, "A_s", p.Errors.As);
+        Num(w, "n_s", p.Errors.Ns);
+        Num(w, "alpha_s", p.Errors.AlphaS);
+        Num(w, "r", p.Errors.R);
+        Num(w, "n_t", p.Errors.Nt);
+        w.WriteEndObject();
         Num(w, "rhs_evaluations_per_mode", p.RhsEvaluationsPerMode);
         w.WriteString("amplitude_method", r.AmplitudeMethod);
         WriteDerived(w, r.Derived);

@@ -11,7 +11,9 @@ namespace ModeSolver.Perturbations;
 /// and second derivatives with respect to ln k (sensitivity equations), from local-index Hankel Bunch-Davies data to
 /// freeze-out. Equations (physics.md 3):
 ///   zeta'' + (3 - e1 + e2) zeta' + x^2 zeta = 0,  h'' + (3 - e1) h' + x^2 h = 0,  x = k/(aH);
-///   d/dln k: Z1'' + F Z1' + x^2 Z1 = -2 x^2 Z0;  Z2'' + F Z2' + x^2 Z2 = -4 x^2 (Z1 + Z0).
+/// The k-derivatives are carried in scale-subtracted form (<see cref="ScaleSubtractedBlocks"/>): W1 = D zeta with
+/// D = d/dln k + d/dN + 3/2, which vanishes in de Sitter, and Y2 = d W1/dln k; both of slow-roll size.
+/// Amplitudes are carried relative to exp(-3N0/2)/sqrt(H0) at the start N0, so no background length under- or overflows them.
 /// The zeta form needs no e3 and keeps zeta, zeta' continuous where V_phi jumps (e2 jumps but stays finite).
 /// A reusable, single-threaded workspace: keep one per thread. The right-hand side does not allocate.
 /// </summary>
@@ -30,6 +32,8 @@ public sealed class ModeIntegrator
     private int _dim, _tOff, _blockS, _blockT;
     private int _rhsCount, _steps;
     private double _scaleS = 1, _scaleT = 1;
+    // Scales of the derivative blocks (W1/s1, Y2/s2) and the log of the common amplitude reference of the data.
+    private double _s1S = 1, _s2S = 1, _s1T = 1, _s2T = 1, _lnRef, _x0;
     // Stop test state of the current mode.
     private double _nStopCandidate, _stopTol;
     private FrictionScan? _scan;
@@ -88,6 +92,7 @@ public sealed class ModeIntegrator
             double segEnd = seg < nonSmooth.Count && nonSmooth[seg] < nEnd ? nonSmooth[seg] : nEnd;
             n = Integrate(n, segEnd, options, k);
             if (_frozen || segEnd >= nEnd) break;
+            Kink(segEnd);
             seg++; // restart exactly at the non-smooth point (the state zeta, zeta' is continuous there)
         }
         if (_frozen) ApplyFreeze();
@@ -123,11 +128,33 @@ public sealed class ModeIntegrator
             if (ns[i] > n0 && ns[i] < n1) { n1 = ns[i]; break; }
         if (!(n1 > n0)) return n0;
         _deep ??= new OscillatoryRegime();
+        Carried(n0, toCarried: false); // the propagator advances zeta, zeta_k, zeta_kk
         var run = _deep.Advance(_bg, _lnK, n0, n1, _y.AsSpan(0, _dim), _scalar, _tensor, _derivs, _tOff, tolerance, maxSteps);
+        Carried(run.TFinal, toCarried: true);
         _rhsCount += _deep.BackgroundEvaluations;
         _steps += run.Accepted + run.Rejected;
         _deepError = run.SumErrorEstimate;
         return run.TFinal;
+    }
+
+    /// <summary>Converts the derivative blocks between the carried scale-subtracted form and (zeta_k, zeta_kk) at N, keeping the scales.</summary>
+    private void Carried(double n, bool toCarried)
+    {
+        if (!_derivs) return;
+        var p = _bg.At(n);
+        double x = Math.Exp(_lnK - n) / p.H, x2 = x * x;
+        if (_scalar)
+        {
+            var b = _y.AsSpan(0, 12);
+            if (toCarried) ScaleSubtractedBlocks.FromSensitivities(b, 3.0 - p.Epsilon1 + p.Epsilon2, x2, _s1S, _s2S);
+            else ScaleSubtractedBlocks.ToSensitivities(b, 3.0 - p.Epsilon1 + p.Epsilon2, x2, _s1S, _s2S);
+        }
+        if (_tensor)
+        {
+            var b = _y.AsSpan(_tOff, 12);
+            if (toCarried) ScaleSubtractedBlocks.FromSensitivities(b, 3.0 - p.Epsilon1, x2, _s1T, _s2T);
+            else ScaleSubtractedBlocks.ToSensitivities(b, 3.0 - p.Epsilon1, x2, _s1T, _s2T);
+        }
     }
 
     /// <summary>Global error of the integration relative to the step tolerance (measured about 0.01 on the benchmark modes; 10x margin).</summary>
@@ -239,17 +266,18 @@ public sealed class ModeIntegrator
             for (int i = 0; i < nonSmooth.Count; i++)
                 if (nonSmooth[i] > n && nonSmooth[i] < segEnd) { segEnd = nonSmooth[i]; break; }
             n = Integrate(n, segEnd, options, k);
+            if (n < nTarget) Kink(n);
         }
         Complex z = Complex.NaN, dz = Complex.NaN, t = Complex.NaN, dt = Complex.NaN;
         if (_scalar)
         {
-            z = new Complex(_y[0], _y[1]) / _scaleS;
-            dz = new Complex(_y[2], _y[3]) / _scaleS;
+            z = new Complex(_y[0], _y[1]) * (Math.Exp(_lnRef) / _scaleS);
+            dz = new Complex(_y[2], _y[3]) * (Math.Exp(_lnRef) / _scaleS);
         }
         if (_tensor)
         {
-            t = new Complex(_y[_tOff], _y[_tOff + 1]) / _scaleT;
-            dt = new Complex(_y[_tOff + 2], _y[_tOff + 3]) / _scaleT;
+            t = new Complex(_y[_tOff], _y[_tOff + 1]) * (Math.Exp(_lnRef) / _scaleT);
+            dt = new Complex(_y[_tOff + 2], _y[_tOff + 3]) * (Math.Exp(_lnRef) / _scaleT);
         }
         return new ModeSnapshot(k, n, z, dz, t, dt, _rhsCount);
     }
@@ -259,7 +287,9 @@ public sealed class ModeIntegrator
         ArgumentNullException.ThrowIfNull(background);
         ArgumentNullException.ThrowIfNull(settings);
         settings.Validate();
-        if (!(k > 0) || double.IsInfinity(k)) throw new ArgumentOutOfRangeException(nameof(k), k, "wavenumber must be positive and finite");
+        if (!(k > 0)) throw new ArgumentOutOfRangeException(nameof(k), k, "wavenumber must be positive");
+        if (double.IsInfinity(k))
+            throw new PhysicsException("a mode's wavenumber in background units (k/aH = k exp(-N)/H) overflows: the mode would leave the horizon more than about 700 e-folds after the background's start");
         _bg = background;
         _lnK = Math.Log(k);
         _scalar = (settings.Kinds & ModeKinds.Scalar) != 0;
@@ -409,6 +439,13 @@ public sealed class ModeIntegrator
 
     // Frozen local data at one N: [0..5] zeta, zeta', zeta_k, zeta_k', zeta_kk, zeta_kk'; [6..11] the same for h.
     private const int DataWidth = 12;
+
+    /// <summary>
+    /// N steps of the data stencils times k/aH. 5-point differences leave a truncation (dn x)^4/30 and a round-off
+    /// about 1e-16/(dn x)^j in the j-th derivative block: measured on power law with e1 = 5e-9, the narrow step leaves
+    /// n_t within 2e-4 relative (5e-3: 7e-2), the wide one alpha_s within 1e-8 (1e-3: 7e-7).
+    /// </summary>
+    private const double NarrowDataStep = 0.001, WideDataStep = 0.005;
     private readonly Complex[] _data = new Complex[9 * DataWidth];
     private readonly double[] _dataX2 = new double[9];
     private readonly double[] _dataF = new double[9];
@@ -426,23 +463,36 @@ public sealed class ModeIntegrator
     /// </summary>
     private void SetInitialData(double n0, InitialDataKind kind)
     {
+        var p0 = _bg.At(n0);
+        _lnRef = -1.5 * n0 - 0.5 * Math.Log(p0.H);
+        _x0 = Math.Exp(_lnK - n0) / p0.H;
         if (!_derivs)
         {
-            LocalData(n0, kind, _data.AsSpan(0, DataWidth), out _, out _, out _, out _);
+            LocalData(0.0, p0, 0.0, kind, _data.AsSpan(0, DataWidth), out _, out _, out _, out _);
             if (_scalar) { Put(0, _data[0], _data[1]); }
             if (_tensor) { Put(_tOff, _data[6], _data[7]); }
         }
         else
         {
-            double x0 = Math.Exp(_lnK - n0) / _bg.At(n0).H;
-            double dn = 0.005 / Math.Max(1.0, x0); // stencil +-4 dn; balances truncation (dn x)^4 against round-off
-            for (int j = 0; j < 9; j++)
-                LocalData(n0 + (j - 4) * dn, kind, _data.AsSpan(j * DataWidth, DataWidth), out _dataX2[j], out _dataF[j], out _dataFt[j], out _dataC[j]);
+            double e3Slope = Epsilon3Slope(n0);
+            // Two stencils: the second-derivative block divides round-off by dn^2 (wide stencil), while the first
+            // block's W1 = zeta_k + 3/2 zeta + zeta' is of slow-roll size and needs the small truncation of a narrow one.
+            double wide = WideDataStep / Math.Max(1.0, _x0), narrow = NarrowDataStep / Math.Max(1.0, _x0);
+            FillStencil(p0, e3Slope, wide, kind);
             double c = _dataC[4];
-            if (_scalar) DerivativeBlocks(0, 0, _dataF, dn, c);
-            if (_tensor) DerivativeBlocks(6, _tOff, _dataFt, dn, c);
+            if (_scalar) DerivativeBlocks(0, 0, _dataF, wide, c);
+            if (_tensor) DerivativeBlocks(6, _tOff, _dataFt, wide, c);
+            FillStencil(p0, e3Slope, narrow, kind);
+            if (_scalar) FirstDerivativeBlock(0, 0, _dataF, narrow);
+            if (_tensor) FirstDerivativeBlock(6, _tOff, _dataFt, narrow);
         }
-        double xs = Math.Exp(_lnK - n0) / _bg.At(n0).H;
+        double xs = Math.Exp(_lnK - n0) / p0.H;
+        if (_derivs)
+        {
+            double x2 = xs * xs;
+            if (_scalar) ToCarried(0, 3.0 - p0.Epsilon1 + p0.Epsilon2, x2, xs, out _s1S, out _s2S);
+            if (_tensor) ToCarried(_tOff, 3.0 - p0.Epsilon1, x2, xs, out _s1T, out _s2T);
+        }
         if (_scalar)
         {
             _scaleS = xs / Math.Sqrt(_y[0] * _y[0] + _y[1] * _y[1]); // |zeta| of order 1 after horizon exit
@@ -458,6 +508,56 @@ public sealed class ModeIntegrator
             if (!double.IsFinite(_y[i]))
                 throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6}: the initial data at N = {n0:G8} are not finite (k/aH = {xs:G4}; {StateAt(n0)}); the background is not usable there");
         }
+    }
+
+    /// <summary>Converts the block at <paramref name="off"/> from (zeta, zeta_k, zeta_kk) to the carried scale-subtracted form and chooses its scales.</summary>
+    private void ToCarried(int off, double f, double x2, double x, out double s1, out double s2)
+    {
+        var b = _y.AsSpan(off, 12);
+        ScaleSubtractedBlocks.FromSensitivities(b, f, x2, 1.0, 1.0);
+        s1 = ScaleSubtractedBlocks.Scale(b, 4, x);
+        s2 = ScaleSubtractedBlocks.Scale(b, 8, x * x);
+        for (int i = 4; i < 8; i++) b[i] /= s1;
+        for (int i = 8; i < 12; i++) b[i] /= s2;
+    }
+
+    /// <summary>Applies the jumps of the derivative blocks where the friction jumps at the non-smooth point <paramref name="t"/>.</summary>
+    private void Kink(double t)
+    {
+        if (!_derivs) return;
+        double eps = 1e-10 * Math.Max(1.0, Math.Abs(t));
+        var before = _bg.At(t - eps);
+        var after = _bg.At(Math.Min(t + eps, _bg.NStop));
+        double x = Math.Exp(_lnK - t) / before.H;
+        if (_scalar)
+        {
+            double fb = 3.0 - before.Epsilon1 + before.Epsilon2, fa = 3.0 - after.Epsilon1 + after.Epsilon2;
+            ScaleSubtractedBlocks.Kink(_y.AsSpan(0, 12), fa - fb, fb, x * x, _s1S, _s2S);
+        }
+        if (_tensor)
+        {
+            double fb = 3.0 - before.Epsilon1, fa = 3.0 - after.Epsilon1;
+            ScaleSubtractedBlocks.Kink(_y.AsSpan(_tOff, 12), fa - fb, fb, x * x, _s1T, _s2T);
+        }
+    }
+
+    /// <summary>The local data at N0 + (j - 4) <paramref name="dn"/>, j = 0..8, on the background's jet.</summary>
+    private void FillStencil(BackgroundPoint p0, double e3Slope, double dn, InitialDataKind kind)
+    {
+        for (int j = 0; j < 9; j++)
+        {
+            var pj = JetPoint(p0, e3Slope, (j - 4) * dn, out double lnHRatio);
+            LocalData((j - 4) * dn, pj, lnHRatio, kind, _data.AsSpan(j * DataWidth, DataWidth), out _dataX2[j], out _dataF[j], out _dataFt[j], out _dataC[j]);
+        }
+    }
+
+    /// <summary>Only the first total ln k derivative block (as in <see cref="DerivativeBlocks"/>) from the current stencil.</summary>
+    private void FirstDerivativeBlock(int d, int off, double[] fr, double dn)
+    {
+        int o = 4 * DataWidth + d;
+        Complex rho0 = D5(d, 4, dn) - _data[o + 1];
+        Complex rho1 = D5(d + 1, 4, dn) - (-fr[4] * _data[o + 1] - _dataX2[4] * _data[o]);
+        Put(off + 4, _data[o + 2] + _dataC[4] * rho0, _data[o + 3] + _dataC[4] * rho1);
     }
 
     /// <summary>Value, first and second total ln k derivative blocks for the quantity whose data start at <paramref name="d"/>.</summary>
@@ -492,20 +592,62 @@ public sealed class ModeIntegrator
         (_data[(j - 2) * DataWidth + comp] - 8.0 * _data[(j - 1) * DataWidth + comp]
          + 8.0 * _data[(j + 1) * DataWidth + comp] - _data[(j + 2) * DataWidth + comp]) / (12.0 * dn);
 
-    /// <summary>The frozen local-index solution at N and its k-derivatives at fixed N (unscaled).</summary>
-    private void LocalData(double n, InitialDataKind kind, Span<Complex> d, out double x2, out double f, out double ft, out double c)
+    /// <summary>
+    /// The background near N0 + <paramref name="dn"/> from its Taylor jet at N0 (e1' = e1 e2, e2' = e2 e3, (ln H)' = -e1
+    /// exactly; e3' from <paramref name="e3Slope"/>), not from the dense output: the data's N-differences then see a
+    /// smooth background. Pointwise values carry the background's round-off (about 1e-8 in e2 when e1 ~ 1e-9), which
+    /// the stencil of the derivative data divides by dn^2 (the cause of wrong alpha_s at large non-canonical factors).
+    /// </summary>
+    private static BackgroundPoint JetPoint(BackgroundPoint p, double e3Slope, double dn, out double lnHRatio)
     {
-        var p = _bg.At(n);
+        lnHRatio = 0;
+        if (dn == 0) return p;
+        double e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
+        double e2d = e2 * e3, e2dd = e2 * e3 * e3 + e2 * e3Slope;
+        double d2 = dn * dn, d3 = d2 * dn;
+        double e2n = e2 + e2d * dn + 0.5 * e2dd * d2;
+        double e3n = e3 + e3Slope * dn;
+        double lnE1 = e2 * dn + 0.5 * e2d * d2 + e2dd * d3 / 6.0;
+        double e1n = e1 * Math.Exp(lnE1);
+        lnHRatio = -e1 * (dn + 0.5 * e2 * d2 + (e2 * e2 + e2d) * d3 / 6.0);
+        return p with { N = p.N + dn, H = p.H * Math.Exp(lnHRatio), Epsilon1 = e1n, Epsilon2 = e2n, Epsilon3 = e3n };
+    }
+
+    /// <summary>d e3/dN at <paramref name="n0"/>: a central difference over +-0.02 e-folds, one-sided near an end or a non-smooth point.</summary>
+    private double Epsilon3Slope(double n0)
+    {
+        const double h = 0.02;
+        double lo = Math.Max(_bg.NStart, n0 - h), hi = Math.Min(Math.Min(_bg.NEnd, _bg.NStop), n0 + h);
+        var ns = _bg.NonSmoothTimes;
+        for (int i = 0; i < ns.Count; i++)
+        {
+            if (ns[i] > n0 && ns[i] < hi) hi = n0;
+            if (ns[i] <= n0 && ns[i] > lo) lo = n0;
+        }
+        if (!(hi > lo)) return 0.0;
+        double d = (_bg.At(hi).Epsilon3 - _bg.At(lo).Epsilon3) / (hi - lo);
+        return double.IsFinite(d) ? d : 0.0;
+    }
+
+    /// <summary>
+    /// The frozen local-index solution at N = N0 + <paramref name="dn"/> (background <paramref name="p"/> there,
+    /// ln(H/H0) = <paramref name="lnHRatio"/>) and its k-derivatives at fixed N, relative to exp(_lnRef). Everything is
+    /// computed from the offset dn, never from N itself, so the stencil's differences carry no rounding of N.
+    /// </summary>
+    private void LocalData(double dn, BackgroundPoint p, double lnHRatio, InitialDataKind kind, Span<Complex> d, out double x2, out double f, out double ft, out double c)
+    {
+        double n = p.N;
         double e1 = p.Epsilon1, e2 = p.Epsilon2, e3 = p.Epsilon3;
         if (!(e1 < 1)) throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} would start at N = {n:G8} where epsilon_1 = {e1:G4} >= 1 (not inflating); choose a larger kMin or start the background earlier");
         double oneMinus = 1.0 - e1;
-        double x = Math.Exp(_lnK - n) / p.H;
+        double x = _x0 * Math.Exp(-dn - lnHRatio);
         x2 = x * x;
         f = 3.0 - e1 + e2;
         ft = 3.0 - e1;
         c = 1.0 / oneMinus;
         double bigX = x / oneMinus; // -k tau
-        double lnMinusTau = -n - Math.Log(oneMinus * p.H); // ln(-tau) = -ln((1 - e1) a H)
+        // ln(-tau) = -ln((1 - e1) a H) and ln z, both relative to the start: ln of sqrt(-tau)/z - _lnRef = base - ln z_rest.
+        double lnBase = -1.5 * dn - 0.5 * lnHRatio - 0.5 * Math.Log(oneMinus);
         Span<Complex> g = stackalloc Complex[4];
         if (_scalar)
         {
@@ -514,7 +656,7 @@ public sealed class ModeIntegrator
                 : IndexFrom(2.0 - e1 + 1.5 * e2 - 0.5 * e1 * e2 + 0.25 * e2 * e2 + 0.5 * e2 * e3, oneMinus);
             HankelDerivatives(nu, bigX, g);
             // zeta = v / z, z = a sqrt(2 e1), z'/z = 1 + e2/2.
-            Complex cn = Normalisation(nu, lnMinusTau, n + 0.5 * Math.Log(2.0 * e1));
+            Complex cn = Normalisation(nu, lnBase - 0.5 * Math.Log(2.0 * e1));
             double zp = 1.0 + 0.5 * e2;
             for (int j = 0; j < 3; j++)
             {
@@ -529,7 +671,7 @@ public sealed class ModeIntegrator
             double nu = kind == InitialDataKind.QuasiDeSitter ? 1.5 : IndexFrom(2.0 - e1, oneMinus);
             HankelDerivatives(nu, bigX, g);
             // h = 2u/a, h' = 2(u' - u)/a.
-            Complex cn = Normalisation(nu, lnMinusTau, n - Math.Log(2.0));
+            Complex cn = Normalisation(nu, lnBase + Math.Log(2.0));
             for (int j = 0; j < 3; j++)
             {
                 Complex u = cn * g[j];
@@ -554,9 +696,9 @@ public sealed class ModeIntegrator
         return Math.Sqrt(Math.Max(nu2, 0.0));
     }
 
-    /// <summary>(sqrt(pi)/2) exp(i (nu + 1/2) pi/2) sqrt(-tau) / z, the factor of H_nu in zeta (or of h with z = a/2).</summary>
-    private static Complex Normalisation(double nu, double lnMinusTau, double lnZ) =>
-        Complex.FromPolarCoordinates(0.5 * Math.Sqrt(Math.PI) * Math.Exp(0.5 * lnMinusTau - lnZ), (nu + 0.5) * Math.PI / 2);
+    /// <summary>(sqrt(pi)/2) exp(i (nu + 1/2) pi/2) sqrt(-tau) / z with ln(sqrt(-tau)/z) = <paramref name="lnAmplitude"/>: the factor of H_nu in zeta (or of h with z = a/2).</summary>
+    private static Complex Normalisation(double nu, double lnAmplitude) =>
+        Complex.FromPolarCoordinates(0.5 * Math.Sqrt(Math.PI) * Math.Exp(lnAmplitude), (nu + 0.5) * Math.PI / 2);
 
     /// <summary>g[j] = (X d/dX)^j H^(1)_nu(X), j = 0..3, from the Bessel equation: D^2 H = (nu^2 - X^2) H.</summary>
     internal static void HankelDerivatives(double nu, double bigX, Span<Complex> g)
@@ -602,45 +744,11 @@ public sealed class ModeIntegrator
         var p = _bg.At(Math.Min(ne, _bg.NStop));
         double x = Math.Exp(_lnK - n) / p.H;
         double x2 = x * x;
+        double e1 = p.Epsilon1, e1e2 = e1 * p.Epsilon2;
         if (_scalar)
-        {
-            double f = 3.0 - p.Epsilon1 + p.Epsilon2;
-            dy[0] = y[2];
-            dy[1] = y[3];
-            dy[2] = -f * y[2] - x2 * y[0];
-            dy[3] = -f * y[3] - x2 * y[1];
-            if (_derivs)
-            {
-                dy[4] = y[6];
-                dy[5] = y[7];
-                dy[6] = -f * y[6] - x2 * (y[4] + 2.0 * y[0]);
-                dy[7] = -f * y[7] - x2 * (y[5] + 2.0 * y[1]);
-                dy[8] = y[10];
-                dy[9] = y[11];
-                dy[10] = -f * y[10] - x2 * (y[8] + 4.0 * (y[4] + y[0]));
-                dy[11] = -f * y[11] - x2 * (y[9] + 4.0 * (y[5] + y[1]));
-            }
-        }
+            ScaleSubtractedBlocks.Rhs(y.Slice(0, _blockS), dy.Slice(0, _blockS), 3.0 - e1 + p.Epsilon2, -e1e2 + p.Epsilon2 * p.Epsilon3, e1, x2, _s1S, _s2S, _derivs);
         if (_tensor)
-        {
-            int o = _tOff;
-            double f = 3.0 - p.Epsilon1;
-            dy[o] = y[o + 2];
-            dy[o + 1] = y[o + 3];
-            dy[o + 2] = -f * y[o + 2] - x2 * y[o];
-            dy[o + 3] = -f * y[o + 3] - x2 * y[o + 1];
-            if (_derivs)
-            {
-                dy[o + 4] = y[o + 6];
-                dy[o + 5] = y[o + 7];
-                dy[o + 6] = -f * y[o + 6] - x2 * (y[o + 4] + 2.0 * y[o]);
-                dy[o + 7] = -f * y[o + 7] - x2 * (y[o + 5] + 2.0 * y[o + 1]);
-                dy[o + 8] = y[o + 10];
-                dy[o + 9] = y[o + 11];
-                dy[o + 10] = -f * y[o + 10] - x2 * (y[o + 8] + 4.0 * (y[o + 4] + y[o]));
-                dy[o + 11] = -f * y[o + 11] - x2 * (y[o + 9] + 4.0 * (y[o + 5] + y[o + 1]));
-            }
-        }
+            ScaleSubtractedBlocks.Rhs(y.Slice(_tOff, _blockT), dy.Slice(_tOff, _blockT), 3.0 - e1, -e1e2, e1, x2, _s1T, _s2T, _derivs);
     }
 
     /// <summary>
@@ -699,34 +807,20 @@ public sealed class ModeIntegrator
     {
         double lnK3 = 3.0 * _lnK;
         double ps = double.NaN, pt = double.NaN, nsm1 = double.NaN, alpha = double.NaN, nt = double.NaN, alphaT = double.NaN;
+        var p = _bg.At(Math.Min(nf, _bg.NStop));
+        double x2 = xf * xf;
         if (_scalar)
         {
-            ps = Math.Exp(lnK3 + LogDerivatives(0, out nsm1, out alpha) - 2.0 * Math.Log(_scaleS)) / (2.0 * Math.PI * Math.PI);
+            double ln = ScaleSubtractedBlocks.LogDerivatives(_y.AsSpan(0, _blockS), frozen, _derivs, 3.0 - p.Epsilon1 + p.Epsilon2, x2, _s1S, _s2S, out nsm1, out alpha);
+            ps = Math.Exp(lnK3 + ln - 2.0 * Math.Log(_scaleS) + 2.0 * _lnRef) / (2.0 * Math.PI * Math.PI);
         }
         if (_tensor)
         {
             // P_t = 8 k^3 |u/a|^2/(2 pi^2) = k^3 |h|^2 / pi^2.
-            pt = Math.Exp(lnK3 + LogDerivatives(_tOff, out nt, out alphaT) - 2.0 * Math.Log(_scaleT)) / (Math.PI * Math.PI);
+            double ln = ScaleSubtractedBlocks.LogDerivatives(_y.AsSpan(_tOff, _blockT), frozen, _derivs, 3.0 - p.Epsilon1, x2, _s1T, _s2T, out nt, out alphaT);
+            pt = Math.Exp(lnK3 + ln - 2.0 * Math.Log(_scaleT) + 2.0 * _lnRef) / (Math.PI * Math.PI);
         }
         return new ModeResult(k, ps, pt, nsm1, alpha, nt, n0, nf, xs, xf, frozen, _rhsCount, _steps, err) { AlphaT = alphaT };
-    }
-
-    /// <summary>ln |f|^2 of the block at <paramref name="off"/>; d ln(k^3 |f|^2)/d ln k and its derivative from the sensitivities.</summary>
-    private double LogDerivatives(int off, out double slope, out double running)
-    {
-        var f0 = new Complex(_y[off], _y[off + 1]);
-        double s = f0.Real * f0.Real + f0.Imaginary * f0.Imaginary;
-        slope = running = double.NaN;
-        if (_derivs)
-        {
-            var f1 = new Complex(_y[off + 4], _y[off + 5]);
-            var f2 = new Complex(_y[off + 8], _y[off + 9]);
-            double sk = 2.0 * (f0.Real * f1.Real + f0.Imaginary * f1.Imaginary);
-            double skk = 2.0 * (f1.Real * f1.Real + f1.Imaginary * f1.Imaginary + f0.Real * f2.Real + f0.Imaginary * f2.Imaginary);
-            slope = 3.0 + sk / s;
-            running = skk / s - (sk / s) * (sk / s);
-        }
-        return Math.Log(s);
     }
 }
 

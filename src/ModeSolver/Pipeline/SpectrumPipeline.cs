@@ -183,7 +183,13 @@ public static class SpectrumPipeline
             NStar: pivot.NStar, PhiStar: pivot.PhiStar, HStar: pivot.HStar, EnergyScaleGeV: pivot.VStarQuarterGeV,
             VScale: pivot.VScale, NTotal: pivot.NTotal, NReh: pivot.NReh,
             MaxRelError: Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate),
-            RhsEvaluationsPerMode: spectrum.MeanRhsEvaluationsPerMode);
+            RhsEvaluationsPerMode: spectrum.MeanRhsEvaluationsPerMode)
+        {
+            Errors = exact.Errors,
+            ToleranceMet = Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) <= kr.Tolerance,
+        };
+
+        if (!pivotResults.ToleranceMet) warnings.Add(ToleranceWarning(spectrum, kMpc, exact.ErrorEstimate, kr.Tolerance));
         var srSet = run.SlowRoll;
         var pivotSlowRoll = new PivotSlowRoll(Estimate(srSet.FirstOrder), Estimate(srSet.SecondOrder), Estimate(srSet.Potential));
 
@@ -297,6 +303,21 @@ public static class SpectrumPipeline
         double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
         return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd, pivot.NPivot,
             windowStart, windowEnd, [.. bg.EndCrossings]);
+    }
+
+    /// <summary>The one warning line of a run whose estimated error exceeds the requested tolerance.</summary>
+    private static string ToleranceWarning(PrimordialSpectrum spectrum, double[] kMpc, double pivotError, double tolerance)
+    {
+        int worst = 0;
+        for (int i = 1; i < spectrum.Count; i++)
+            if (spectrum.ErrorEstimate[i] > spectrum.ErrorEstimate[worst]) worst = i;
+        string where = spectrum.Count > 0 && spectrum.ErrorEstimate[worst] >= pivotError
+            ? string.Format(CultureInfo.InvariantCulture, "at k = {0:G4} /Mpc", kMpc[worst])
+            : "at the pivot";
+        double max = Math.Max(pivotError, spectrum.Count > 0 ? spectrum.ErrorEstimate[worst] : 0.0);
+        return string.Format(CultureInfo.InvariantCulture,
+            "tolerance not met: the estimated relative error reaches {0:G2} {1}, above the requested tolerance {2:G2} (tolerance_met: false)",
+            max, where, tolerance);
     }
 
     private static PrimordialTable Table(PrimordialSpectrum spectrum, PivotSolution pivot, KRangeSpec kr, int perDecade)
