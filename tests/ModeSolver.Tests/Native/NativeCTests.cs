@@ -63,7 +63,9 @@ public class NativeCTests
         string exe = NativeBuild.CompileC("check_errors");
         string corpus = Path.Combine(BadInputTests.CorpusDirectory(), "decks");
         // output-dir-is-file fails on where the command line writes; the library writes no files.
-        var decks = Directory.EnumerateFiles(corpus, "*.toml").Where(d => Path.GetFileName(d) != "output-dir-is-file.toml")
+        // sweep-*.toml are sweep decks, read by `modesolver sweep`, not single runs.
+        var decks = Directory.EnumerateFiles(corpus, "*.toml").Where(d => Path.GetFileName(d) != "output-dir-is-file.toml"
+                                                                          && !Path.GetFileName(d).StartsWith("sweep-", StringComparison.Ordinal))
             .Order(StringComparer.Ordinal).ToList();
         var (code, o, e) = NativeBuild.Execute(exe, decks);
         Assert.True(code == 0, $"check_errors:\n{o}\n{e}");
