@@ -77,5 +77,5 @@ public static class PrimordialTableWriter
     /// <summary>Default table density: 50 points per decade in k.</summary>
     public const int DefaultPointsPerDecade = 50;
 
-    private static string OneLine(string s) => s.Replace('\r', ' ').Replace('\n', ' ');
+    private static string OneLine(string s) => TextSafety.Printable(s);
 }
