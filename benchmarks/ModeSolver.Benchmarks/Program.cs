@@ -5,6 +5,8 @@ using ModeSolver.Pipeline;
 
 // `--memory-sweep N`: a pivot-only sweep of N models in parallel, for peak memory (run under /usr/bin/time -v).
 // `--profile`: Stopwatch timings (medians) of the spectrum pipeline, its stages and the pivot sweep, with work counts.
+// `--warm-deck DECK [REPS]`: warm median of SpectrumPipeline.Run on a deck, one line (for benchmarks/baseline/compare.py).
+// `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
 if (args.Length >= 2 && args[0] == "--memory-sweep")
 {
@@ -15,6 +17,24 @@ if (args.Length >= 2 && args[0] == "--memory-sweep")
     int failed = BenchDecks.RunSweep(grid, ns);
     Console.WriteLine($"pivot sweep: {n} models, {failed} failed, {sw.Elapsed.TotalSeconds:F2} s, {n / sw.Elapsed.TotalSeconds:F0} models/s, "
         + $"GC heap {GC.GetTotalMemory(false) / 1e6:F1} MB, peak working set {Process.GetCurrentProcess().PeakWorkingSet64 / 1e6:F1} MB");
+    return;
+}
+if (args.Length >= 2 && args[0] == "--warm-deck")
+{
+    // Warm median of SpectrumPipeline.Run on a deck (used by benchmarks/baseline/compare.py): one line, milliseconds.
+    var s = ModeSolver.Decks.SettingsResolver.Resolve(ModeSolver.Decks.DeckReader.Parse(File.ReadAllText(args[1]), args[1]));
+    int reps = args.Length >= 3 ? int.Parse(args[2], System.Globalization.CultureInfo.InvariantCulture) : 21;
+    for (int i = 0; i < 40; i++) SpectrumPipeline.Run(s); // past tiered JIT
+    var t = new double[reps];
+    ModeSolver.Output.RunReport? last = null;
+    for (int i = 0; i < reps; i++) { last = SpectrumPipeline.Run(s); t[i] = last.Statistics.WallSeconds; }
+    Array.Sort(t);
+    Console.WriteLine(FormattableString.Invariant($"warm_ms {t[reps / 2] * 1e3:F3} modes {last!.Statistics.ModeCount} rhs_per_mode {last.Pivot.RhsEvaluationsPerMode:F1} spectrum_rhs {last.Statistics.RhsEvaluations}"));
+    return;
+}
+if (args.Length >= 1 && args[0] == "--frames")
+{
+    ModeSolver.Benchmarks.Formulas.FrameBenchmarks.Console(args.Length >= 2 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 41);
     return;
 }
 if (args.Length >= 3 && args[0] == "--loop")

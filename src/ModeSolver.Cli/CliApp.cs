@@ -13,7 +13,9 @@ public static class CliApp
     /// <summary>Builds the root command. Each sub-command lives in its own file under Commands/ and is added here.</summary>
     public static RootCommand BuildRoot()
     {
-        var root = new RootCommand("ModeSolver: exact primordial spectra of inflaton models. Add --debug to any command for stack traces.");
+        var root = new RootCommand("ModeSolver: exact primordial spectra of inflaton models.");
+        // Listed in every command's help; Run removes it from the arguments before parsing.
+        root.Options.Add(new Option<bool>("--debug") { Description = "Show stack traces on errors.", Recursive = true });
         // Sub-commands register here, one line each.
         root.Subcommands.Add(Commands.ModelsCommand.Create());
         root.Subcommands.Add(Commands.FrameCommand.Create());
@@ -53,6 +55,13 @@ public static class CliApp
                 Console.Error.WriteLine("modesolver: " + ModeSolver.Output.TextSafety.Printable(error.Message) + " (see --help)");
                 return Commands.CommandErrors.UserError;
             }
+            if (parse.Action is System.CommandLine.Help.HelpAction)
+            {
+                var help = new StringWriter();
+                int code = parse.Invoke(new InvocationConfiguration { Output = help, Error = Console.Error, EnableDefaultExceptionHandler = false });
+                Console.Out.Write(CleanHelp(help.ToString()));
+                return code;
+            }
             return parse.Invoke(new InvocationConfiguration { EnableDefaultExceptionHandler = false });
         }
         catch (StandardStreamException e)
@@ -71,5 +80,29 @@ public static class CliApp
             Console.SetError(oldErr);
             _debug = previous;
         }
+    }
+
+    /// <summary>
+    /// The parser's help text with the program named <c>modesolver</c> (not the assembly) and without the
+    /// pass-through-arguments boilerplate that commands accepting unmatched tokens get (we refuse such tokens ourselves).
+    /// </summary>
+    internal static string CleanHelp(string help)
+    {
+        ArgumentNullException.ThrowIfNull(help);
+        var lines = new List<string>();
+        bool skipping = false;
+        foreach (string raw in help.Replace("\r\n", "\n").Split('\n'))
+        {
+            string line = raw.Replace(" [[--] <additional arguments>...]]", "").Replace("ModeSolver.Cli", "modesolver");
+            if (line.StartsWith("Additional Arguments:", StringComparison.Ordinal)) { skipping = true; continue; }
+            if (skipping)
+            {
+                if (line.Length == 0 || line.StartsWith(' ')) continue;
+                skipping = false;
+            }
+            lines.Add(line);
+        }
+        string text = string.Join(Environment.NewLine, lines).TrimEnd();
+        return text + Environment.NewLine;
     }
 }

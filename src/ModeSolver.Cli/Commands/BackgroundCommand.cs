@@ -20,23 +20,47 @@ public static class BackgroundCommand
         {
             TreatUnmatchedTokensAsErrors = false,
         };
-        var options = RunOptions.Add(cmd);
-        cmd.SetAction(parse => CommandErrors.Guard(() => Execute(options.Resolve(parse), Console.Out, Console.Error)));
+        var options = RunOptions.Add(cmd, spectrum: false);
+        var quiet = new Option<bool>("--quiet") { Description = "No progress on stderr." };
+        var check = new Option<bool>("--check") { Description = "Only validate the deck and options, print the resolved settings, and stop." };
+        cmd.Options.Add(check);
+        cmd.Options.Add(quiet);
+        cmd.SetAction(parse => CommandErrors.Guard(() =>
+        {
+            RefuseSpectrumOptions(parse);
+            var settings = options.Resolve(parse);
+            if (parse.GetValue(check)) return SpectrumCommand.Check(settings, Console.Out, Console.Error);
+            bool progress = !parse.GetValue(quiet) && !Console.IsErrorRedirected;
+            return Execute(settings, Console.Out, Console.Error, progress);
+        }));
         return cmd;
     }
 
+    /// <summary>An option only `spectrum` uses (output directory, k range, formats) is an error here, not silently ignored.</summary>
+    private static void RefuseSpectrumOptions(ParseResult parse)
+    {
+        foreach (var token in parse.Tokens)
+        {
+            string name = token.Value.Split('=', 2)[0];
+            if (RunOptions.SpectrumOnlyOptions.Contains(name))
+                throw new DeckException($"background computes no spectrum and writes no files: {name} does not apply (use `modesolver spectrum`)", name);
+        }
+    }
+
     /// <summary>Runs the background and matching stages and prints the results; returns the exit code.</summary>
-    public static int Execute(RunSettings settings, TextWriter output, TextWriter error)
+    public static int Execute(RunSettings settings, TextWriter output, TextWriter error, bool progress = false)
     {
         ArgumentNullException.ThrowIfNull(settings);
         ArgumentNullException.ThrowIfNull(output);
         ArgumentNullException.ThrowIfNull(error);
-        return CommandErrors.WithWarnings(settings.Warnings, error, () => Print(settings, output));
+        return CommandErrors.WithWarnings(settings.Warnings, error, () => Print(settings, output, error, progress));
     }
 
-    private static int Print(RunSettings settings, TextWriter output)
+    private static int Print(RunSettings settings, TextWriter output, TextWriter error, bool progress)
     {
-        var run = SpectrumPipeline.RunPivot(settings);
+        var options = new PipelineOptions { Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null };
+        var run = SpectrumPipeline.RunPivot(settings, options);
+        settings = run.Settings;
         var p = run.Pivot;
         var bg = p.Background;
         var inv = CultureInfo.InvariantCulture;
@@ -52,7 +76,22 @@ public static class BackgroundCommand
         Line("phi_*", p.PhiStar.ToString("G10", inv));
         Line("H_* [M_pl] / [GeV]", string.Format(inv, "{0:G6} / {1:G6}", p.HStar, p.HStarGeV));
         Line("V_*^(1/4) [GeV]", p.VStarQuarterGeV.ToString("G6", inv));
-        Line("V scale", string.Format(inv, "{0:G8}  (amplitude from {1}, {2} iterations)", p.VScale, p.AmplitudeName, p.Iterations));
+        if (settings.Initial.StartEfolds is double ne)
+            Line("phi0", string.Format(inv, "{0:G10}  (solved: starts {1:G6} e-folds before the end)", settings.Initial.Phi0, ne));
+        if (settings.Amplitude.SolveFor is string solved)
+            Line(solved, string.Format(inv, "{0:G10}  (solved for A_s; V not rescaled)", settings.Model.Parameters[solved]));
+        else
+            Line("V scale", string.Format(inv, "{0:G8}  (amplitude from {1}, {2} iterations)", p.VScale, p.AmplitudeName, p.Iterations));
+        var normalised = NormalisedParameters.Apply(settings.Model, p.VScale);
+        if (!ReferenceEquals(normalised, settings.Model.Parameters))
+            Line("parameters (normalised)", string.Join(", ", normalised.OrderBy(kv => kv.Key, StringComparer.Ordinal).Select(kv => string.Format(inv, "{0} = {1:G8}", kv.Key, kv.Value))));
+        if (NormalisedParameters.LambdaOverXiSquared(settings.Model, normalised) is double lx)
+            Line("lambda/xi^2", lx.ToString("G8", inv));
+        var derived = SpectrumPipeline.Derive(settings, p, null, settings.KRange);
+        if (double.IsFinite(derived.TRehGeV))
+            Line("T_reh [GeV]", string.Format(inv, "{0:G6}  ({1})", derived.TRehGeV, derived.TRehDerived ? "derived" : "given"));
+        Line("rho_end^(1/4) [GeV]", derived.RhoEndQuarterGeV.ToString("G6", inv));
+        Line("r at 0.002/Mpc", double.IsFinite(derived.R002) ? string.Format(inv, "{0:G6}  (one exact mode)", derived.R002) : derived.R002Source);
         Line("k served [1/Mpc]", string.Format(inv, "[{0:G4}, {1:G4}]", p.KMinMpc, p.KMaxMpc));
         output.WriteLine();
         output.WriteLine(string.Format(inv, "  {0,-22} {1,14} {2,14} {3,14} {4,14} {5,14}", "", "A_s", "n_s", "r", "alpha_s", "n_t"));

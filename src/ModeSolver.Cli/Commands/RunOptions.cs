@@ -69,6 +69,65 @@ public sealed class RunOptions
     /// <summary>--out DIR.</summary>
     public Option<string?> Out { get; } = Opt("--out", "Output directory.");
 
+    /// <summary>--title TEXT.</summary>
+    public Option<string?> Title { get; } = Opt("--title", "Free-text title of the run (written to the outputs).");
+
+    /// <summary>--phi-end X.</summary>
+    public Option<string?> PhiEnd { get; } = Opt("--phi-end", "End inflation abruptly when the field reaches this value.");
+
+    /// <summary>--start-efolds N.</summary>
+    public Option<string?> StartEfolds { get; } = Opt("--start-efolds", "Start this many e-folds before the end of inflation (phi0 is solved for; instead of --phi0).");
+
+    /// <summary>--reheat-efolds N.</summary>
+    public Option<string?> ReheatEfolds { get; } = Opt("--reheat-efolds", "Duration of reheating in e-folds, N_reh (instead of --reheat-T).");
+
+    /// <summary>--dof G.</summary>
+    public Option<string?> Dof { get; } = Opt("--dof", "Relativistic degrees of freedom at reheating, g_reh (default 106.75).");
+
+    /// <summary>--ln-amplitude X.</summary>
+    public Option<string?> LnAmplitude { get; } = Opt("--ln-amplitude", "The amplitude as ln(10^10 A_s), the form papers quote (instead of --amplitude).");
+
+    /// <summary>--normalise-by NAME.</summary>
+    public Option<string?> NormaliseBy { get; } = Opt("--normalise-by", "Reach A_s by solving for this model parameter (e.g. xi) instead of rescaling V; prints the solved value.");
+
+    /// <summary>--formats LIST.</summary>
+    public Option<string?> Formats { get; } = Opt("--formats", "Output formats, comma-separated: hdf5, table, json, plots (default: all).");
+
+    /// <summary>--table-h H.</summary>
+    public Option<string?> TableH { get; } = Opt("--table-h", "Write the primordial table's k in h/Mpc with this h (e.g. 0.674).");
+
+    /// <summary>--flag-reference ORDER.</summary>
+    public Option<string?> FlagReference { get; } = Opt("--flag-reference", "Slow-roll estimate the flags compare against: first_order, second_order (default) or potential.");
+
+    /// <summary>--flag-KEY X for each numeric key of the deck's [flags] table, in <see cref="DeckReader.FlagKeys"/> order.</summary>
+    public IReadOnlyList<Option<string?>> FlagThresholds { get; } =
+        [.. DeckReader.FlagKeys.Select(k => Opt(FlagOption(k), $"Flag threshold {k} (deck [flags] {k}; see docs/outputs.md)."))];
+
+    /// <summary>The option of a [flags] key: "--flag-" and the key with '_' as '-'.</summary>
+    public static string FlagOption(string key) => "--flag-" + key.Replace('_', '-');
+
+    /// <summary>
+    /// Every deck key and the option that sets it: the one list that ties the two together (a test checks it against
+    /// <see cref="DeckReader.Schema"/> and the commands, so a new deck key cannot miss its option).
+    /// </summary>
+    public static IReadOnlyList<(string DeckKey, string Option)> DeckKeyOptions { get; } =
+    [
+        ("title", "--title"),
+        ("model.catalogue", "--model"), ("model.potential", "--potential"), ("model.kinetic", "--kinetic"),
+        ("model.coupling", "--coupling"), ("model.palatini", "--palatini"), ("model.phi_end", "--phi-end"), ("model.parameters", "--param"),
+        ("start.phi0", "--phi0"), ("start.dphi0", "--dphi0"), ("start.efolds", "--start-efolds"),
+        ("pivot.k", "--k-pivot"), ("pivot.efolds", "--efolds"),
+        ("reheating.w", "--reheat-w"), ("reheating.temperature_gev", "--reheat-T"), ("reheating.efolds", "--reheat-efolds"), ("reheating.dof", "--dof"),
+        ("normalisation.a_s", "--amplitude"), ("normalisation.ln_10_10_a_s", "--ln-amplitude"), ("normalisation.solve_for", "--normalise-by"),
+        ("modes.k_min", "--k-min"), ("modes.k_max", "--k-max"), ("modes.count", "--k-count"), ("modes.tolerance", "--tolerance"),
+        ("output.dir", "--out"), ("output.formats", "--formats"), ("output.table_h", "--table-h"),
+        .. DeckReader.FlagKeys.Select(k => ("flags." + k, FlagOption(k))),
+        ("flags.reference", "--flag-reference"),
+    ];
+
+    /// <summary>Options `background` refuses: it computes no spectrum and writes no files.</summary>
+    public static IReadOnlyList<string> SpectrumOnlyOptions { get; } = ["--out", "--k-min", "--k-max", "--k-count", "--formats", "--table-h"];
+
     /// <summary>
     /// A text-valued option whose value may be missing at parse time, so that a missing value becomes our own one-line
     /// error (exit 2) instead of the parser's error-and-help output.
@@ -93,15 +152,20 @@ public sealed class RunOptions
         return o;
     }
 
-    /// <summary>Adds the DECK argument and every run option to <paramref name="cmd"/>.</summary>
-    public static RunOptions Add(Command cmd)
+    /// <summary>
+    /// Adds the DECK argument and every run option to <paramref name="cmd"/>; with <paramref name="spectrum"/> false the
+    /// options of <see cref="SpectrumOnlyOptions"/> are left out (the command refuses them).
+    /// </summary>
+    public static RunOptions Add(Command cmd, bool spectrum = true)
     {
         ArgumentNullException.ThrowIfNull(cmd);
         var o = new RunOptions();
         cmd.Arguments.Add(o.Deck);
         foreach (var opt in o.ModelOptions()) cmd.Options.Add(opt);
-        foreach (Option opt in new Option[] { o.Phi0, o.DPhi0, o.Efolds, o.ReheatW, o.ReheatT, o.KPivot, o.Amplitude, o.KMin, o.KMax, o.KCount, o.Tolerance, o.Out })
-            cmd.Options.Add(opt);
+        foreach (Option opt in new Option[] { o.PhiEnd, o.Phi0, o.DPhi0, o.StartEfolds, o.Efolds, o.ReheatW, o.ReheatT, o.ReheatEfolds, o.Dof,
+                     o.KPivot, o.Amplitude, o.LnAmplitude, o.NormaliseBy, o.KMin, o.KMax, o.KCount, o.Tolerance, o.Out, o.Formats, o.TableH, o.Title, o.FlagReference })
+            if (spectrum || !SpectrumOnlyOptions.Contains(opt.Name)) cmd.Options.Add(opt);
+        foreach (var opt in o.FlagThresholds) cmd.Options.Add(opt);
         return o;
     }
 
@@ -164,6 +228,23 @@ public sealed class RunOptions
         }
         r.Tolerance = Number(parse, Tolerance);
         r.OutDir = Text(parse, Out);
+        r.Title = Text(parse, Title);
+        r.PhiEnd = Number(parse, PhiEnd);
+        r.StartEfolds = Number(parse, StartEfolds);
+        r.ReheatEfolds = Number(parse, ReheatEfolds);
+        r.ReheatDof = Number(parse, Dof);
+        if (Number(parse, LnAmplitude) is { } ln)
+        {
+            if (r.Amplitude is not null) throw new DeckException("--ln-amplitude cannot be combined with --amplitude; give A_s in one form", "--ln-amplitude");
+            r.Amplitude = new Located<double?>(DeckReader.AmplitudeFromLog(ln.Value), ln.Key);
+        }
+        r.SolveFor = Text(parse, NormaliseBy);
+        if (Value(parse, Formats) is string formats)
+            r.Formats = new Located<IReadOnlyList<string>>([.. formats.Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries)], "--formats");
+        r.TableH = Number(parse, TableH);
+        r.FlagReference = Text(parse, FlagReference);
+        for (int i = 0; i < FlagThresholds.Count; i++)
+            if (Number(parse, FlagThresholds[i]) is { } f) r.FlagValues[DeckReader.FlagKeys[i]] = f;
         return r;
     }
 

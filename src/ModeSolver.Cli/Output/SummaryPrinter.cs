@@ -78,6 +78,7 @@ public static class SummaryPrinter
         info.AddRow("V_*^(1/4)", Num(p.EnergyScaleGeV, "0.0000e+00"), "GeV");
         info.AddRow("N_total", Num(p.NTotal, "0.00"), "e-folds");
         info.AddRow("N_reh", Num(p.NReh, "0.00"), "e-folds");
+        AddDerived(info, report.Derived);
         info.AddRow("max rel. error", Num(p.MaxRelError, "0.0e+00"), "");
         info.AddRow("RHS evals / mode", Num(p.RhsEvaluationsPerMode, "0"), "");
         console.Write(info);
@@ -92,6 +93,21 @@ public static class SummaryPrinter
         }
         if (!report.Warnings.IsDefaultOrEmpty)
             foreach (var w in report.Warnings) Line(console, plain, $"warning: {w}", "red");
+    }
+
+    /// <summary>T_reh (when known), rho_end^(1/4) and r at 0.002 /Mpc with how it was obtained.</summary>
+    private static void AddDerived(Table info, DerivedQuantities? d)
+    {
+        if (d is null) return;
+        if (double.IsFinite(d.TRehGeV)) info.AddRow(d.TRehDerived ? "T_reh (derived)" : "T_reh (given)", Num(d.TRehGeV, "0.0000e+00"), "GeV");
+        info.AddRow("rho_end^(1/4)", Num(d.RhoEndQuarterGeV, "0.0000e+00"), "GeV");
+        string how = d.R002Source switch
+        {
+            "spectrum" => "exact spectrum",
+            "mode" => "one exact mode",
+            _ => Markup.Escape(d.R002Source),
+        };
+        info.AddRow("r at 0.002/Mpc", Num(d.R002, "0.00000e+00"), how);
     }
 
     private static void Line(IAnsiConsole console, bool plain, string text, string? colour)

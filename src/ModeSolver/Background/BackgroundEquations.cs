@@ -19,8 +19,7 @@ internal static class BackgroundEquations
     public static void Constrained(IInflatonTheory theory, double phiEval, ReadOnlySpan<double> y, Span<double> dydt)
     {
         double phi = phiEval, p = y[1];
-        Jet3 v = theory.Potential(phi);
-        Jet3 k = theory.Kinetic(phi);
+        var (v, k) = theory.Jets(phi);
         double e1 = 0.5 * k.Value * p * p;
         double threeMinus = 3.0 - e1;
         dydt[0] = p;
@@ -31,8 +30,7 @@ internal static class BackgroundEquations
     public static void Regular(IInflatonTheory theory, double phiEval, ReadOnlySpan<double> y, Span<double> dydt)
     {
         double phi = phiEval, p = y[1];
-        Jet3 v = theory.Potential(phi);
-        Jet3 k = theory.Kinetic(phi);
+        var (v, k) = theory.Jets(phi);
         double e1 = 0.5 * k.Value * p * p;
         double hsq = Math.Exp(2.0 * y[2]);
         dydt[0] = p;
@@ -52,7 +50,10 @@ internal static class BackgroundEquations
     /// (differentiating the equation of motion along the flow, with (H^2)' = -2 e1 H^2), never by differencing.
     /// </summary>
     public static BackgroundPoint Point(IInflatonTheory theory, double n, double phi, double p, double hsq, double vScale)
-        => Point(theory.Potential(phi), theory.Kinetic(phi), n, phi, p, hsq, vScale);
+    {
+        var (v, k) = theory.Jets(phi);
+        return Point(v, k, n, phi, p, hsq, vScale);
+    }
 
     /// <summary>As <see cref="Point(IInflatonTheory, double, double, double, double, double)"/> with V and K already evaluated at phi.</summary>
     public static BackgroundPoint Point(Jet3 v, Jet3 kj, double n, double phi, double p, double hsq, double vScale)

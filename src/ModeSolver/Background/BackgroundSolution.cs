@@ -180,8 +180,7 @@ public sealed class BackgroundSolution : IBackground
         }
         seg.Solution.Evaluate(t, y[..2]);
         // V and K once each (the same values ConstraintHubbleSquared and Point would compute separately).
-        Jet3 v = theory.Potential(y[0]);
-        Jet3 kj = theory.Kinetic(y[0]);
+        var (v, kj) = theory.Jets(y[0]);
         double hsq = v.Value / (3.0 - 0.5 * kj.Value * y[1] * y[1]);
         return BackgroundEquations.Point(v, kj, n, y[0], y[1], hsq, VScale);
     }

@@ -12,17 +12,25 @@ namespace ModeSolver.Decks;
 /// </summary>
 public static class DeckReader
 {
+    /// <summary>The numeric keys of the [flags] table (thresholds of the slow-roll disagreement flags).</summary>
+    public static IReadOnlyList<string> FlagKeys { get; } =
+        ["spectrum_threshold", "pivot_fraction", "sigma_n_s", "sigma_r", "sigma_alpha_s", "sigma_n_t", "epsilon_1_limit", "epsilon_2_limit"];
+
     /// <summary>Sections and their keys.</summary>
     public static IReadOnlyDictionary<string, string[]> Schema { get; } = new Dictionary<string, string[]>(StringComparer.Ordinal)
     {
         ["model"] = ["catalogue", "potential", "kinetic", "coupling", "palatini", "phi_end", "parameters"],
-        ["start"] = ["phi0", "dphi0"],
+        ["start"] = ["phi0", "dphi0", "efolds"],
         ["pivot"] = ["k", "efolds"],
         ["reheating"] = ["w", "temperature_gev", "efolds", "dof"],
-        ["normalisation"] = ["a_s"],
+        ["normalisation"] = ["a_s", "ln_10_10_a_s", "solve_for"],
         ["modes"] = ["k_min", "k_max", "count", "tolerance"],
-        ["output"] = ["dir", "formats"],
+        ["output"] = ["dir", "formats", "table_h"],
+        ["flags"] = [.. FlagKeys, "reference"],
     };
+
+    /// <summary>Converts ln(10^10 A_s), the form papers quote, to A_s.</summary>
+    public static double AmplitudeFromLog(double ln1010As) => Math.Exp(ln1010As) * 1e-10;
 
     private static readonly string[] TopLevelKeys = ["title"];
 
@@ -162,6 +170,7 @@ public static class DeckReader
                         break;
                     case "start.phi0": _input.Phi0 = Number(table, key, full, value); break;
                     case "start.dphi0": _input.DPhi0 = Number(table, key, full, value); break;
+                    case "start.efolds": _input.StartEfolds = Number(table, key, full, value); break;
                     case "pivot.k": _input.KPivot = Number(table, key, full, value); break;
                     case "pivot.efolds": _input.Efolds = Number(table, key, full, value); break;
                     case "reheating.w": _input.ReheatW = Number(table, key, full, value); break;
@@ -177,6 +186,13 @@ public static class DeckReader
                             _input.Amplitude = new(n.Value, full, file, line);
                         }
                         break;
+                    case "normalisation.ln_10_10_a_s":
+                        if (table.ContainsKey("a_s")) throw Error(table, key, full, "cannot be combined with normalisation.a_s; give A_s in one form");
+                        _input.Amplitude = new(AmplitudeFromLog(Number(table, key, full, value).Value), full, file, line);
+                        break;
+                    case "normalisation.solve_for": _input.SolveFor = new(String(table, key, full, value), full, file, line); break;
+                    case "output.table_h": _input.TableH = Number(table, key, full, value); break;
+                    case "flags.reference": _input.FlagReference = new(String(table, key, full, value), full, file, line); break;
                     case "modes.k_min": _input.KMin = Number(table, key, full, value); break;
                     case "modes.k_max": _input.KMax = Number(table, key, full, value); break;
                     case "modes.count":
@@ -194,6 +210,9 @@ public static class DeckReader
                             list.Add(f);
                         }
                         _input.Formats = new(list, full, file, line);
+                        break;
+                    default:
+                        if (section == "flags") _input.FlagValues[key] = Number(table, key, full, value);
                         break;
                 }
             }

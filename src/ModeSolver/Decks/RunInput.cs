@@ -62,6 +62,9 @@ public sealed class RunInput
     /// <summary>Initial d phi / dN.</summary>
     public Located<double>? DPhi0 { get; set; }
 
+    /// <summary>Start this many e-folds before the end of inflation (phi0 is solved for) instead of at a field value.</summary>
+    public Located<double>? StartEfolds { get; set; }
+
     /// <summary>Pivot wavenumber, 1/Mpc.</summary>
     public Located<double>? KPivot { get; set; }
 
@@ -83,6 +86,9 @@ public sealed class RunInput
     /// <summary>A_s, or a null value for "none".</summary>
     public Located<double?>? Amplitude { get; set; }
 
+    /// <summary>Normalise by solving for this model parameter instead of rescaling V.</summary>
+    public Located<string>? SolveFor { get; set; }
+
     /// <summary>Smallest k, 1/Mpc.</summary>
     public Located<double>? KMin { get; set; }
 
@@ -100,6 +106,15 @@ public sealed class RunInput
 
     /// <summary>Output formats.</summary>
     public Located<IReadOnlyList<string>>? Formats { get; set; }
+
+    /// <summary>The dimensionless Hubble parameter h: the primordial table then gives k in h/Mpc.</summary>
+    public Located<double>? TableH { get; set; }
+
+    /// <summary>Flag thresholds by deck key under [flags] (e.g. "spectrum_threshold").</summary>
+    public Dictionary<string, Located<double>> FlagValues { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>Slow-roll reference of the flags ("first_order", "second_order" or "potential").</summary>
+    public Located<string>? FlagReference { get; set; }
 
     /// <summary>
     /// The deck overridden by the command line (the command line wins). Choosing a model source on the command line
@@ -121,7 +136,10 @@ public sealed class RunInput
         foreach (var (k, v) in deck.Parameters) r.Parameters[k] = v;
         foreach (var (k, v) in overrides.Parameters) r.Parameters[k] = v;
         r.PhiEnd = overrides.PhiEnd ?? deck.PhiEnd;
-        r.Phi0 = overrides.Phi0 ?? deck.Phi0;
+        // A start given on the command line (field value or e-folds) replaces the deck's start of either kind.
+        bool cliStart = overrides.Phi0 is not null || overrides.StartEfolds is not null;
+        r.Phi0 = overrides.Phi0 ?? (cliStart ? null : deck.Phi0);
+        r.StartEfolds = overrides.StartEfolds ?? (cliStart ? null : deck.StartEfolds);
         r.DPhi0 = overrides.DPhi0 ?? deck.DPhi0;
         r.KPivot = overrides.KPivot ?? deck.KPivot;
 
@@ -135,12 +153,17 @@ public sealed class RunInput
         r.ReheatDof = overrides.ReheatDof ?? deck.ReheatDof;
 
         r.Amplitude = overrides.Amplitude ?? deck.Amplitude;
+        r.SolveFor = overrides.SolveFor ?? deck.SolveFor;
         r.KMin = overrides.KMin ?? deck.KMin;
         r.KMax = overrides.KMax ?? deck.KMax;
         r.KCount = overrides.KCount ?? deck.KCount;
         r.Tolerance = overrides.Tolerance ?? deck.Tolerance;
         r.OutDir = overrides.OutDir ?? deck.OutDir;
         r.Formats = overrides.Formats ?? deck.Formats;
+        r.TableH = overrides.TableH ?? deck.TableH;
+        foreach (var (k, v) in deck.FlagValues) r.FlagValues[k] = v;
+        foreach (var (k, v) in overrides.FlagValues) r.FlagValues[k] = v;
+        r.FlagReference = overrides.FlagReference ?? deck.FlagReference;
         return r;
     }
 }

@@ -24,19 +24,26 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>Non-fatal remarks found while resolving (unused parameters, ...), one line each.</summary>
     public IReadOnlyList<string> Warnings { get; init; } = [];
 
+    /// <summary>Thresholds of the slow-roll disagreement flags (deck table [flags]).</summary>
+    public Diagnostics.FlagSettings Flags { get; init; } = Diagnostics.FlagSettings.Default;
+
     /// <summary>A one-paragraph human summary of the resolved settings.</summary>
     public string Summary()
     {
         var c = CultureInfo.InvariantCulture;
         var parts = new List<string>();
         parts.Add($"Model: {Model.Describe()}.");
-        parts.Add(Initial.DPhi0 is double d
+        parts.Add(Initial.StartEfolds is double ne
+            ? string.Create(c, $"Start {ne:G6} e-folds before the end of inflation (slow-roll first guess phi0 = {Initial.Phi0:G6}, solved exactly in the run) on the slow-roll attractor.")
+            : Initial.DPhi0 is double d
             ? string.Create(c, $"Start at phi0 = {Initial.Phi0:G6} with dphi/dN = {d:G6}.")
             : string.Create(c, $"Start at phi0 = {Initial.Phi0:G6} on the slow-roll attractor."));
         if (Model.PhiEnd is double pe) parts.Add(string.Create(c, $"Inflation is ended abruptly at phi_end = {pe:G6}."));
         parts.Add(Pivot.Describe());
         parts.Add(Amplitude.ScalarAmplitude is double a
-            ? string.Create(c, $"Normalised to A_s = {a:G4} at the pivot.")
+            ? Amplitude.SolveFor is string sf
+                ? string.Create(c, $"Normalised to A_s = {a:G4} at the pivot by solving for the parameter {sf} (V not rescaled).")
+                : string.Create(c, $"Normalised to A_s = {a:G4} at the pivot.")
             : "Not normalised (V used as given).");
         parts.Add(string.Create(c, $"Modes: {KRange.Count} wavenumbers in [{KRange.KMin:G4}, {KRange.KMax:G4}]/Mpc, tolerance {KRange.Tolerance:G3}."));
         parts.Add($"Output: {Output.Directory} ({string.Join(", ", Output.Formats)}).");
@@ -70,7 +77,14 @@ public sealed record ModelSpec(string? CatalogueId, string Potential, string? Ki
 }
 
 /// <summary>Initial field value and, optionally, initial velocity d phi / dN (the slow-roll attractor when null).</summary>
-public sealed record InitialConditions(double Phi0, double? DPhi0);
+public sealed record InitialConditions(double Phi0, double? DPhi0)
+{
+    /// <summary>
+    /// When set, the run starts this many e-folds before the end of inflation: <see cref="Phi0"/> is then the slow-roll
+    /// first guess, and the pipeline solves for the field value whose exact background gives this N_total.
+    /// </summary>
+    public double? StartEfolds { get; init; }
+}
 
 /// <summary>How reheating is specified.</summary>
 public enum ReheatingKind
@@ -121,6 +135,9 @@ public sealed record PivotSpec(double KPivot, double? Efolds, ReheatingSpec Rehe
 /// <summary>Normalisation: the scalar amplitude A_s at the pivot, or null for none (V as given).</summary>
 public sealed record AmplitudeSpec(double? ScalarAmplitude)
 {
+    /// <summary>When set, A_s is reached by solving for this model parameter (V is not rescaled).</summary>
+    public string? SolveFor { get; init; }
+
     /// <summary>The default: A_s = 2.099e-9 (physics.md section 6).</summary>
     public static AmplitudeSpec Default { get; } = new(Constants.DefaultScalarAmplitude);
 }
@@ -128,13 +145,19 @@ public sealed record AmplitudeSpec(double? ScalarAmplitude)
 /// <summary>Wavenumbers (1/Mpc, log-spaced from KMin to KMax, Count of them) and the relative accuracy target.</summary>
 public sealed record KRangeSpec(double KMin, double KMax, int Count, double Tolerance)
 {
-    /// <summary>Defaults: 1e-5 to 10 /Mpc, 120 wavenumbers, tolerance 1e-6.</summary>
-    public static KRangeSpec Default { get; } = new(1e-5, 10.0, 120, 1e-6);
+    /// <summary>True when k_min was not given: the run then narrows it to what the background serves, with a warning.</summary>
+    public bool KMinIsDefault { get; init; }
+
+    /// <summary>Defaults: 1e-6 to 10 /Mpc (Boltzmann codes ask for the table from 1e-6 /Mpc), 120 wavenumbers, tolerance 1e-6.</summary>
+    public static KRangeSpec Default { get; } = new(1e-6, 10.0, 120, 1e-6);
 }
 
 /// <summary>Output directory and formats (a subset of <see cref="KnownFormats"/>).</summary>
 public sealed record OutputSpec(string Directory, IReadOnlyList<string> Formats)
 {
+    /// <summary>When set, the primordial table gives k in h/Mpc with this h (k[h/Mpc] = k[1/Mpc] / h).</summary>
+    public double? TableH { get; init; }
+
     /// <summary>Format names accepted in decks and on the command line.</summary>
     public static IReadOnlyList<string> KnownFormats { get; } = ["hdf5", "table", "json", "plots"];
 

@@ -1,3 +1,4 @@
+using ModeSolver.Diagnostics;
 using ModeSolver.Formulas;
 using ModeSolver.Models;
 using ModeSolver.Physics;
@@ -76,8 +77,13 @@ public static class SettingsResolver
             }
         }
         foreach (var (name, v) in input.Parameters)
-            if (!referenced.Contains(name))
-                warnings.Add($"{Where(v)}{v.Key} is not used by the model's formulas");
+        {
+            if (referenced.Contains(name)) continue;
+            // On the command line a name no formula uses is a mistake (a typo would silently run with the default).
+            if (v.File is null)
+                throw v.Error($"names a parameter no formula of the model uses (they use: {(referenced.Count == 0 ? "none" : string.Join(", ", referenced.Order(StringComparer.Ordinal)))})");
+            warnings.Add($"{Where(v)}{v.Key} is not used by the model's formulas");
+        }
 
         double? phiEnd = input.PhiEnd?.Value ?? entry?.PhiEnd;
         if (input.PhiEnd is { } pe && !double.IsFinite(pe.Value)) throw pe.Error($"must be finite (got {pe.Value})");
@@ -85,15 +91,29 @@ public static class SettingsResolver
 
         // ---- start ----
         double phi0;
-        if (input.Phi0 is { } ph)
+        double? startEfolds = null;
+        if (input.StartEfolds is { } se)
+        {
+            if (input.Phi0 is { } both) throw both.Error($"cannot be combined with {se.Key}: start at a field value or a number of e-folds before the end, not both");
+            if (input.DPhi0 is { } dv) throw dv.Error($"cannot be combined with {se.Key}: a start given in e-folds is on the slow-roll attractor");
+            if (!(se.Value > 0 && se.Value < 1000)) throw se.Error($"must be a number of e-folds between 0 and 1000 (got {se.Value})");
+            startEfolds = se.Value;
+            phi0 = StartGuess(model, se, entry);
+        }
+        else if (input.Phi0 is { } ph)
         {
             if (!double.IsFinite(ph.Value)) throw ph.Error($"must be finite (got {ph.Value})");
             phi0 = ph.Value;
         }
+        else if (entry?.DefaultStartEfolds is double catalogueStart && input.DPhi0 is null)
+        {
+            startEfolds = catalogueStart;
+            phi0 = StartGuess(model, new Located<double>(catalogueStart, $"start.efolds (catalogue default for {entry.Id})"), entry);
+        }
         else if (entry is not null) phi0 = entry.DefaultPhi0;
-        else throw new DeckException($"{where}: start.phi0 (or --phi0) is required when the model is given by formulas", "start.phi0");
+        else throw new DeckException($"{where}: start.phi0 or start.efolds (or --phi0 or --start-efolds) is required when the model is given by formulas", "start.phi0");
         if (input.DPhi0 is { } dp && !double.IsFinite(dp.Value)) throw dp.Error($"must be finite (got {dp.Value})");
-        var initial = new InitialConditions(phi0, input.DPhi0?.Value);
+        var initial = new InitialConditions(phi0, input.DPhi0?.Value) { StartEfolds = startEfolds };
 
         // ---- pivot and reheating ----
         double kPivot = Positive(input.KPivot) ?? Constants.DefaultPivotK;
@@ -141,6 +161,15 @@ public static class SettingsResolver
             if (a.Value is double av && !(av > 0 && av < 1)) throw a.Error($"must be a positive number below 1, or \"none\" (got {av})");
             amplitude = new AmplitudeSpec(a.Value);
         }
+        if (input.SolveFor is { } sf)
+        {
+            string name = sf.Value.Trim();
+            if (amplitude.ScalarAmplitude is null) throw sf.Error("needs a target A_s (normalisation.a_s is \"none\")");
+            if (!referenced.Contains(name) || !pars.ContainsKey(name))
+                throw sf.Error($"names '{name}', which is not a parameter of the model's formulas (they use: {(referenced.Count == 0 ? "none" : string.Join(", ", referenced.Order(StringComparer.Ordinal)))})");
+            if (!(pars[name] > 0)) throw sf.Error($"needs {name} > 0 as its starting value (got {pars[name]}); the solve keeps the parameter's sign");
+            amplitude = amplitude with { SolveFor = name };
+        }
 
         // ---- k range ----
         var kd = KRangeSpec.Default;
@@ -167,7 +196,7 @@ public static class SettingsResolver
             if (!(tt.Value > 0 && tt.Value < 0.1)) throw tt.Error($"must lie in (0, 0.1), e.g. 1e-5 (got {tt.Value})");
             tol = tt.Value;
         }
-        var kRange = new KRangeSpec(kMin, kMax, (int)count, tol);
+        var kRange = new KRangeSpec(kMin, kMax, (int)count, tol) { KMinIsDefault = input.KMin is null };
 
         // ---- output ----
         string dir = OutputSpec.Default.Directory;
@@ -191,13 +220,20 @@ public static class SettingsResolver
             if (list.Count == 0) throw fm.Error($"is empty (valid: {string.Join(", ", OutputSpec.KnownFormats)})");
             formats = list;
         }
-        var output = new OutputSpec(dir, formats);
+        double? tableH = null;
+        if (input.TableH is { } th)
+        {
+            if (!(th.Value >= 0.2 && th.Value <= 2)) throw th.Error($"is the dimensionless Hubble parameter h and must lie in [0.2, 2] (got {th.Value})");
+            tableH = th.Value;
+        }
+        var output = new OutputSpec(dir, formats) { TableH = tableH };
 
         var settings = new RunSettings(model, initial, pivot, amplitude, kRange, output)
         {
             Title = input.Title?.Value ?? "",
             DeckPath = input.DeckPath,
             Warnings = warnings,
+            Flags = FlagSettingsFor(input),
         };
         CheckTheory(settings, input, entry);
         return settings;
@@ -227,6 +263,65 @@ public static class SettingsResolver
             if (dir == 0 && settings.Initial.DPhi0 is double d0) dir = Math.Sign(d0);
             if (dir != 0 && (end - settings.Initial.Phi0) * dir <= 0)
                 throw endKey.Error($"= {end:G6} is not ahead of phi0 = {settings.Initial.Phi0:G6} in the roll direction (the field {(dir > 0 ? "increases" : "decreases")})");
+        }
+    }
+
+    /// <summary>The [flags] table over the defaults; every threshold must be a finite positive number.</summary>
+    private static FlagSettings FlagSettingsFor(RunInput input)
+    {
+        var f = FlagSettings.Default;
+        foreach (var (key, v) in input.FlagValues)
+        {
+            if (!(v.Value > 0) || !double.IsFinite(v.Value)) throw v.Error($"must be a finite positive number (got {v.Value})");
+            f = key switch
+            {
+                "spectrum_threshold" => f with { SpectrumThreshold = v.Value },
+                "pivot_fraction" => f with { PivotFraction = v.Value },
+                "sigma_n_s" => f with { SigmaNs = v.Value },
+                "sigma_r" => f with { SigmaR = v.Value },
+                "sigma_alpha_s" => f with { SigmaAlphaS = v.Value },
+                "sigma_n_t" => f with { SigmaNt = v.Value },
+                "epsilon_1_limit" => f with { Epsilon1Limit = v.Value },
+                "epsilon_2_limit" => f with { Epsilon2Limit = v.Value },
+                _ => throw v.Error($"is not a flag threshold (valid: {string.Join(", ", DeckReader.FlagKeys)})"),
+            };
+        }
+        if (input.FlagReference is { } r)
+        {
+            f = f with
+            {
+                Reference = r.Value.Trim().ToLowerInvariant() switch
+                {
+                    "first_order" => SlowRollReference.FirstOrder,
+                    "second_order" => SlowRollReference.SecondOrder,
+                    "potential" => SlowRollReference.Potential,
+                    _ => throw r.Error($"must be first_order, second_order or potential (got '{r.Value}')"),
+                },
+            };
+        }
+        return f;
+    }
+
+    /// <summary>The slow-roll first guess of phi0 for a start <paramref name="efolds"/> before the end (a one-line error when there is none).</summary>
+    private static double StartGuess(ModelSpec model, Located<double> efolds, ModelEntry? entry)
+    {
+        IValidatedTheory theory;
+        try
+        {
+            theory = TheoryFactory.Build(model);
+        }
+        catch (FormulaException e)
+        {
+            throw new DeckException(DeckErrors.OneLine($"model: {e.Message}"), "model");
+        }
+        double reference = entry?.DefaultPhi0 ?? double.NaN;
+        try
+        {
+            return SlowRollStart.FieldBeforeEnd(theory, efolds.Value, model.PhiEnd, reference);
+        }
+        catch (PhysicsException e)
+        {
+            throw efolds.Error($"= {efolds.Value:G6}: {e.Message}");
         }
     }
 

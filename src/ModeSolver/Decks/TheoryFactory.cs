@@ -21,7 +21,7 @@ public static class TheoryFactory
         if (spec.Coupling is null)
             return new EinsteinFrameTheory(potential, kinetic, description);
         var coupling = Formula.Parse(spec.Coupling, pars);
-        return new JordanFrameTheory(Wrap(coupling), kinetic is null ? null : Wrap(kinetic), Wrap(potential), spec.Palatini, description);
+        return JordanFrameTheory.FromFormulas(coupling, kinetic, potential, spec.Palatini, description);
     }
 
     /// <summary>

@@ -79,7 +79,7 @@ public static class Flags
         }
 
         var flags = new List<Flag>();
-        foreach (var run in Runs(lnK, measure, threshold))
+        foreach (var run in MergeAdjacent(Runs(lnK, measure, threshold), measure))
         {
             int w = run.WorstIndex;
             double lo = Math.Exp(run.Lower), hi = Math.Exp(run.Upper);
@@ -87,9 +87,9 @@ public static class Flags
             string where = string.Create(Inv, $"k = {lo:0.000e+00} .. {hi:0.000e+00} /Mpc");
             string msg = slowRoll[w] > 0
                 ? string.Create(Inv,
-                    $"{quantity}: exact and slow roll differ by up to {diff * 100:+0.00;-0.00}% (limit {threshold * 100:0.###}%) for {where}, worst at k = {k[w]:0.000e+00} /Mpc")
+                    $"{quantity}: exact and slow roll differ by up to {diff * 100:+0.00;-0.00}% (limit {threshold * 100:0.###}%) for {where}, worst at k = {k[w]:0.000e+00} /Mpc{MergedNote(run)}")
                 : string.Create(Inv,
-                    $"{quantity}: slow roll fails for {where}: it gives {slowRoll[w]:0.000e+00} (not positive) at k = {k[w]:0.000e+00} /Mpc, where the exact value is {exact[w]:0.000e+00}");
+                    $"{quantity}: slow roll fails for {where}: it gives {slowRoll[w]:0.000e+00} (not positive) at k = {k[w]:0.000e+00} /Mpc, where the exact value is {exact[w]:0.000e+00}{MergedNote(run)}");
             flags.Add(new Flag(FlagKinds.SpectrumDeviation, quantity, msg, where, lo, hi, exact[w], slowRoll[w], diff));
         }
         return flags;
@@ -156,7 +156,7 @@ public static class Flags
                 throw new ArgumentException($"background flags for {quantity}: N must be strictly increasing (at index {i})");
 
         var flags = new List<Flag>();
-        foreach (var run in Runs(n, values, limit))
+        foreach (var run in MergeAdjacent(Runs(n, values, limit), values))
         {
             double lo = Math.Max(run.Lower, windowStart), hi = Math.Min(run.Upper, windowEnd);
             if (lo > hi) continue;
@@ -167,14 +167,59 @@ public static class Flags
             if (peak < 0) peak = run.WorstIndex;
             string where = string.Create(Inv, $"N = {lo:0.00} .. {hi:0.00}");
             string msg = string.Create(Inv,
-                $"{quantity} exceeds {limit:0.###} inside the observable window for {where} (peak {values[peak]:0.000} at N = {n[peak]:0.00}): slow roll is unreliable there");
+                $"{quantity} exceeds {limit:0.###} inside the observable window for {where} (peak {values[peak]:0.000} at N = {n[peak]:0.00}): slow roll is unreliable there{MergedNote(run)}");
             flags.Add(new Flag(FlagKinds.BackgroundPhase, quantity, msg, where, lo, hi, values[peak], double.NaN, double.NaN));
         }
         return flags;
     }
 
-    /// <summary>A contiguous run of samples whose measure exceeds the limit.</summary>
-    internal readonly record struct Run(int FirstIndex, int LastIndex, int WorstIndex, double Lower, double Upper);
+    /// <summary>
+    /// A warning when the exact P_s exceeds 1 somewhere (the perturbations are then not small and linear perturbation
+    /// theory breaks down there), naming the k range; null otherwise.
+    /// </summary>
+    public static string? PerturbativityWarning(SpectrumSamples spectrum)
+    {
+        ArgumentNullException.ThrowIfNull(spectrum);
+        double lo = double.NaN, hi = double.NaN, peak = 0;
+        for (int i = 0; i < spectrum.K.Length; i++)
+        {
+            if (!(spectrum.Ps[i] > 1)) continue;
+            if (double.IsNaN(lo)) lo = spectrum.K[i];
+            hi = spectrum.K[i];
+            peak = Math.Max(peak, spectrum.Ps[i]);
+        }
+        return double.IsNaN(lo) ? null : string.Create(Inv,
+            $"P_s exceeds 1 (up to {peak:0.000e+00}) for k = {lo:0.000e+00} .. {hi:0.000e+00} /Mpc: the perturbations are not small there and linear perturbation theory breaks down");
+    }
+
+    /// <summary>A contiguous run of samples whose measure exceeds the limit (<paramref name="Parts"/> adjacent runs merged into it).</summary>
+    internal readonly record struct Run(int FirstIndex, int LastIndex, int WorstIndex, double Lower, double Upper, int Parts = 1);
+
+    /// <summary>
+    /// Runs separated by at most this many samples within the limit are adjacent and merged into one flag: an
+    /// oscillating disagreement crosses the limit at every zero of the difference, which would otherwise give one
+    /// flag per half-period.
+    /// </summary>
+    public const int MergeGapSamples = 3;
+
+    /// <summary>Merges runs whose gap holds at most <see cref="MergeGapSamples"/> samples; the worst sample is kept.</summary>
+    internal static List<Run> MergeAdjacent(List<Run> runs, ReadOnlySpan<double> measure)
+    {
+        var merged = new List<Run>(runs.Count);
+        foreach (var r in runs)
+        {
+            if (merged.Count > 0 && r.FirstIndex - merged[^1].LastIndex - 1 <= MergeGapSamples)
+            {
+                var p = merged[^1];
+                int worst = measure[r.WorstIndex] > measure[p.WorstIndex] ? r.WorstIndex : p.WorstIndex;
+                merged[^1] = new Run(p.FirstIndex, r.LastIndex, worst, p.Lower, r.Upper, p.Parts + r.Parts);
+            }
+            else merged.Add(r);
+        }
+        return merged;
+    }
+
+    private static string MergedNote(Run run) => run.Parts > 1 ? string.Create(Inv, $" ({run.Parts} adjacent ranges merged)") : "";
 
     /// <summary>
     /// Contiguous runs where measure &gt; limit (NaN never exceeds). Ends are interpolated linearly in x to the

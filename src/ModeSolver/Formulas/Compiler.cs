@@ -6,6 +6,8 @@ internal sealed class Compiler
     private readonly string _text;
     private readonly List<Instr> _code = new();
     private int _registers = 1; // register 0 is the variable
+    // Set by CompileShared: a node object met again (a sub-tree shared by several roots) reuses its register.
+    private Dictionary<Node, Operand>? _shared;
 
     private Compiler(string text) => _text = text;
 
@@ -21,6 +23,18 @@ internal sealed class Compiler
         var result = c.CompileNode(root);
         int reg = c.Materialize(result);
         return new CompiledProgram(c._code.ToArray(), c._registers, reg);
+    }
+
+    /// <summary>
+    /// One program computing several results from trees that share node objects (each shared node is computed once).
+    /// Only for trees without piecewise (a register computed in one branch must not be reused outside it).
+    /// </summary>
+    public static (CompiledProgram Program, int[] Results) CompileShared(Node[] roots, string text)
+    {
+        var c = new Compiler(text) { _shared = new Dictionary<Node, Operand>(ReferenceEqualityComparer.Instance) };
+        var results = new int[roots.Length];
+        for (int i = 0; i < roots.Length; i++) results[i] = c.Materialize(c.CompileNode(roots[i]));
+        return (new CompiledProgram(c._code.ToArray(), c._registers, results[0]), results);
     }
 
     private int NewRegister(int count = 1)
@@ -63,6 +77,15 @@ internal sealed class Compiler
     private static bool IsSmallInteger(double x) => x == Math.Floor(x) && Math.Abs(x) <= int.MaxValue;
 
     private Operand CompileNode(Node node)
+    {
+        if (_shared is null) return CompileFresh(node);
+        if (_shared.TryGetValue(node, out var known)) return known;
+        var x = CompileFresh(node);
+        _shared[node] = x;
+        return x;
+    }
+
+    private Operand CompileFresh(Node node)
     {
         switch (node.Kind)
         {

@@ -83,6 +83,9 @@ public sealed class Formula : IFieldFunction
     /// <remarks>Computed on first use (a scan costs a few milliseconds per non-linear switch), then cached.</remarks>
     public IReadOnlyList<double> NonSmoothPoints => _nonSmooth.Value;
 
+    /// <summary>The resolved syntax tree (parameters carry their values), for composing formulas.</summary>
+    internal Node Root => _root;
+
     /// <summary>Number of instructions of the compiled program (after constant folding).</summary>
     public int InstructionCount => _program.Code.Length;
 

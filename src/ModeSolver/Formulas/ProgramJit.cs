@@ -24,6 +24,13 @@ internal sealed class ProgramJit
         Jet = jet;
     }
 
+    private ProgramJit(Func<double[], double, JetPair> pair)
+    {
+        Value = static (_, _) => double.NaN; // a fused entry serves Pair only
+        Jet = static (_, _) => new Jet3(double.NaN, double.NaN, double.NaN, double.NaN);
+        Pair = pair;
+    }
+
     /// <summary>f(phi) given the constants array.</summary>
     public Func<double[], double, double> Value { get; }
 
@@ -51,6 +58,23 @@ internal sealed class ProgramJit
         if (Cache.Count >= CacheLimit) Cache.Clear();
         return Cache.GetOrAdd(key, built);
     }
+
+    /// <summary>
+    /// Compiled fused code returning the jets of registers <paramref name="first"/> and <paramref name="second"/> of
+    /// <paramref name="program"/> (cached by shape in the same bounded cache), or null if unsupported.
+    /// </summary>
+    public static Func<double[], double, JetPair>? PairFor(CompiledProgram program, int first, int second)
+    {
+        if (!Supported) return null;
+        string key = "pair:" + first + ":" + second + ":" + Key(program);
+        if (Cache.TryGetValue(key, out var hit)) return hit.Pair;
+        var built = new ProgramJit(new Builder(program, jet: true).BuildJetPair(first, second));
+        if (Cache.Count >= CacheLimit) Cache.Clear();
+        return Cache.GetOrAdd(key, built).Pair;
+    }
+
+    /// <summary>The fused two-result code (only for entries made by <see cref="PairFor"/>).</summary>
+    private Func<double[], double, JetPair>? Pair { get; }
 
     /// <summary>The program's shape: everything but the constants.</summary>
     internal static string Key(CompiledProgram p)
@@ -227,6 +251,30 @@ internal sealed class ProgramJit
 
         public Func<double[], double, Jet3> BuildJet()
         {
+            EmitJetBody();
+            _body.Add(JetOf(_p.Result));
+            var block = Expression.Block(typeof(Jet3), _locals, _body);
+            return Expression.Lambda<Func<double[], double, Jet3>>(block, _c, _phi).Compile();
+        }
+
+        /// <summary>The jets of two result registers from one run of the program (fused evaluation).</summary>
+        public Func<double[], double, JetPair> BuildJetPair(int first, int second)
+        {
+            EmitJetBody();
+            var ctor = typeof(JetPair).GetConstructor([typeof(Jet3), typeof(Jet3)])!;
+            _body.Add(Expression.New(ctor, JetOf(first), JetOf(second)));
+            var block = Expression.Block(typeof(JetPair), _locals, _body);
+            return Expression.Lambda<Func<double[], double, JetPair>>(block, _c, _phi).Compile();
+        }
+
+        private NewExpression JetOf(int res)
+        {
+            var ctor = typeof(Jet3).GetConstructor([typeof(double), typeof(double), typeof(double), typeof(double)])!;
+            return Expression.New(ctor, R(res, 0).E, R(res, 1).E, (2 * R(res, 2)).E, (6 * R(res, 3)).E);
+        }
+
+        private void EmitJetBody()
+        {
             var code = _p.Code;
             Set(0, 0, new X(_phi)); Set(0, 1, 1.0); Set(0, 2, 0.0); Set(0, 3, 0.0);
             for (int pc = 0; pc < code.Length; pc++)
@@ -393,11 +441,6 @@ internal sealed class ProgramJit
                 }
             }
             PlaceLabel(code.Length);
-            int res = _p.Result;
-            var ctor = typeof(Jet3).GetConstructor([typeof(double), typeof(double), typeof(double), typeof(double)])!;
-            _body.Add(Expression.New(ctor, R(res, 0).E, R(res, 1).E, (2 * R(res, 2)).E, (6 * R(res, 3)).E));
-            var block = Expression.Block(typeof(Jet3), _locals, _body);
-            return Expression.Lambda<Func<double[], double, Jet3>>(block, _c, _phi).Compile();
         }
     }
 

@@ -42,6 +42,9 @@ public sealed class EinsteinFrameTheory : IValidatedTheory
     public Jet3 Kinetic(double phi) => _kinetic is null ? new Jet3(1, 0, 0, 0) : _kinetic.Evaluate(phi);
 
     /// <inheritdoc/>
+    public JetPair Jets(double phi) => new(_potential.Evaluate(phi), _kinetic is null ? new Jet3(1, 0, 0, 0) : _kinetic.Evaluate(phi));
+
+    /// <inheritdoc/>
     public bool IsCanonical => _kinetic is null;
 
     /// <inheritdoc/>

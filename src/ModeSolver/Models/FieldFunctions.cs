@@ -35,6 +35,9 @@ public interface IInflatonTheory
     /// <summary>K(phi) and its derivatives; (1, 0, 0, 0) for a canonical field.</summary>
     Jet3 Kinetic(double phi);
 
+    /// <summary>V and K at <paramref name="phi"/> in one call; a theory may fuse the two evaluations (the Jordan frame on generated code does).</summary>
+    JetPair Jets(double phi) => new(Potential(phi), Kinetic(phi));
+
     /// <summary>True when K is identically 1.</summary>
     bool IsCanonical { get; }
 
@@ -44,3 +47,6 @@ public interface IInflatonTheory
     /// <summary>The range of phi on which the theory is valid (e.g. inside the pole of K, or where Omega^2 &gt; 0); infinite when unrestricted.</summary>
     (double Min, double Max) ValidRange { get; }
 }
+
+/// <summary>Two jets from one fused evaluation: the Einstein-frame V and K of a theory at one field value.</summary>
+public readonly record struct JetPair(Jet3 Potential, Jet3 Kinetic);

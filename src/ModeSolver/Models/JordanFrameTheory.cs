@@ -12,6 +12,8 @@ public sealed class JordanFrameTheory : IValidatedTheory
     private readonly IDerivativeFunction? _kineticJ;
     private readonly IDerivativeFunction _potentialJ;
     private readonly double[] _nonSmooth;
+    // V and K composed into one generated program (smooth formula input); null: Taylor arithmetic on the inputs.
+    private readonly Formulas.FrameMapProgram? _fused;
 
     /// <summary>Creates the theory.</summary>
     /// <param name="omegaSquared">Omega^2(phi); needs four derivatives in the metric formulation.</param>
@@ -22,7 +24,28 @@ public sealed class JordanFrameTheory : IValidatedTheory
     /// <param name="validRange">Declared valid range; infinite when null (see <see cref="FindValidInterval"/>).</param>
     public JordanFrameTheory(IDerivativeFunction omegaSquared, IDerivativeFunction? kineticJ, IDerivativeFunction potentialJ,
         bool palatini = false, string description = "", (double, double)? validRange = null)
+        : this(omegaSquared, kineticJ, potentialJ, palatini, description, validRange, null)
     {
+    }
+
+    /// <summary>
+    /// The theory of formula inputs: V and K with their derivatives come from one fused program (generated code)
+    /// when every formula is smooth by construction, else from Taylor arithmetic on the formulas' derivatives.
+    /// </summary>
+    public static JordanFrameTheory FromFormulas(Formulas.Formula omegaSquared, Formulas.Formula? kineticJ, Formulas.Formula potentialJ,
+        bool palatini = false, string description = "")
+    {
+        ArgumentNullException.ThrowIfNull(omegaSquared);
+        ArgumentNullException.ThrowIfNull(potentialJ);
+        var fused = Formulas.FrameMapProgram.TryCreate(omegaSquared, kineticJ, potentialJ, palatini);
+        return new JordanFrameTheory(Decks.TheoryFactory.Wrap(omegaSquared), kineticJ is null ? null : Decks.TheoryFactory.Wrap(kineticJ),
+            Decks.TheoryFactory.Wrap(potentialJ), palatini, description, null, fused);
+    }
+
+    private JordanFrameTheory(IDerivativeFunction omegaSquared, IDerivativeFunction? kineticJ, IDerivativeFunction potentialJ,
+        bool palatini, string description, (double, double)? validRange, Formulas.FrameMapProgram? fused)
+    {
+        _fused = fused;
         ArgumentNullException.ThrowIfNull(omegaSquared);
         ArgumentNullException.ThrowIfNull(potentialJ);
         if (!palatini && omegaSquared.MaxOrder < 4)
@@ -54,7 +77,13 @@ public sealed class JordanFrameTheory : IValidatedTheory
 
     /// <summary>The same theory with another declared valid range.</summary>
     public JordanFrameTheory WithValidRange((double, double) range) =>
-        new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, range);
+        new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, range, _fused);
+
+    /// <summary>True when V and K come from one fused generated program (see <see cref="FromFormulas"/>).</summary>
+    public bool IsFused => _fused is not null;
+
+    /// <inheritdoc/>
+    public JetPair Jets(double phi) => _fused is { } f ? f.Evaluate(phi) : new JetPair(ComposedPotential(phi), ComposedKinetic(phi));
 
     /// <summary>Omega^2 at phi.</summary>
     public double OmegaSquared(double phi)
@@ -65,7 +94,13 @@ public sealed class JordanFrameTheory : IValidatedTheory
     }
 
     /// <inheritdoc/>
-    public Jet3 Potential(double phi)
+    public Jet3 Potential(double phi) => _fused is { } f ? f.Evaluate(phi).Potential : ComposedPotential(phi);
+
+    /// <inheritdoc/>
+    public Jet3 Kinetic(double phi) => _fused is { } f ? f.Evaluate(phi).Kinetic : ComposedKinetic(phi);
+
+    /// <summary>V by Taylor arithmetic on the inputs' derivatives (the reference for the fused program).</summary>
+    internal Jet3 ComposedPotential(double phi)
     {
         Span<double> d = stackalloc double[4];
         _omega2.EvaluateDerivatives(phi, d);
@@ -76,8 +111,8 @@ public sealed class JordanFrameTheory : IValidatedTheory
         return (vj / w2).ToJet3();
     }
 
-    /// <inheritdoc/>
-    public Jet3 Kinetic(double phi)
+    /// <summary>K by Taylor arithmetic on the inputs' derivatives (the reference for the fused program).</summary>
+    internal Jet3 ComposedKinetic(double phi)
     {
         Span<double> d = stackalloc double[5];
         TaylorJet kj;

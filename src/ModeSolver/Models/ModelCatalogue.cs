@@ -42,6 +42,13 @@ public sealed record ModelEntry(
     /// </summary>
     public double? PhiEnd { get; init; }
 
+    /// <summary>
+    /// The default start in e-folds before the end of inflation (<see cref="ModelCatalogue.DefaultStartEfolds"/>): used
+    /// when neither a field value nor a number of e-folds is given. <see cref="DefaultPhi0"/> then only tells on which side
+    /// of the potential inflation happens.
+    /// </summary>
+    public double? DefaultStartEfolds { get; init; } = ModelCatalogue.DefaultStartEfolds;
+
     /// <summary>A short note (what is special, how defaults were chosen).</summary>
     public string Note { get; init; } = "";
 
@@ -64,6 +71,12 @@ public sealed record ModelEntry(
 /// </summary>
 public static class ModelCatalogue
 {
+    /// <summary>
+    /// Catalogue models start this many e-folds before the end of inflation by default: enough for the pivot
+    /// (N_* of 50 to 60) and for the default k_min = 1e-6 /Mpc, about 11 e-folds earlier, to start well inside the horizon.
+    /// </summary>
+    public const double DefaultStartEfolds = 75;
+
     private static readonly ModelEntry[] Entries =
     [
         new("monomial", "Monomial (chaotic) inflation", "V0 * phi^p",

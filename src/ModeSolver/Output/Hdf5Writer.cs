@@ -15,7 +15,7 @@ namespace ModeSolver.Output;
 /// energy_scale_GeV, V_scale, N_total, N_reh, max_rel_error, rhs_evaluations_per_mode;
 /// /pivot/slow_roll/{first_order,second_order,potential}: attributes A_s, n_s, r, alpha_s, n_t.</item>
 /// <item>/background: N, phi, dphi_dN, H, epsilon_1, epsilon_2, epsilon_3, epsilon_1_crossings; attributes N_end,
-/// N_pivot, window_N_start, window_N_end.</item>
+/// N_star (= N_end - N_at_pivot_exit), N_at_pivot_exit, window_N_start, window_N_end.</item>
 /// <item>/spectrum: k, P_s, P_t, r, n_s, n_t, alpha_s, rel_error.</item>
 /// <item>/slow_roll_spectrum: k, P_s_first_order, P_t_first_order, P_s_second_order, P_t_second_order,
 /// n_s_first_order, n_s_second_order.</item>
@@ -53,7 +53,13 @@ public static class Hdf5Writer
         file["model"] = model;
 
         var settings = new H5Group();
-        foreach (var s in report.Settings.Entries) settings.Attributes[s.Key] = s.Value;
+        foreach (var s in report.Settings.Entries)
+        {
+            if (s.IsNumber && double.TryParse(s.Value, System.Globalization.NumberStyles.Float, System.Globalization.CultureInfo.InvariantCulture, out double x))
+                settings.Attributes[s.Key] = x;
+            else
+                settings.Attributes[s.Key] = s.Value;
+        }
         var fs = report.Settings.FlagSettings;
         var flagSettings = new H5Group();
         flagSettings.Attributes["spectrum_threshold"] = fs.SpectrumThreshold;
@@ -90,6 +96,13 @@ public static class Hdf5Writer
         pivot.Attributes["N_reh"] = pv.NReh;
         pivot.Attributes["max_rel_error"] = pv.MaxRelError;
         pivot.Attributes["rhs_evaluations_per_mode"] = pv.RhsEvaluationsPerMode;
+        if (report.Derived is { } d)
+        {
+            pivot.Attributes["T_reh_GeV"] = d.TRehGeV;
+            pivot.Attributes["rho_end_quarter_GeV"] = d.RhoEndQuarterGeV;
+            pivot.Attributes["r_002"] = d.R002;
+            pivot.Attributes["r_002_source"] = d.R002Source;
+        }
         var sr = new H5Group
         {
             ["first_order"] = Estimate(report.SlowRoll.FirstOrder),
@@ -112,7 +125,8 @@ public static class Hdf5Writer
             ["epsilon_1_crossings"] = Arr(b.Epsilon1Crossings),
         };
         background.Attributes["N_end"] = b.NEnd;
-        background.Attributes["N_pivot"] = b.NPivot;
+        background.Attributes["N_star"] = b.NEnd - b.NPivot;
+        background.Attributes["N_at_pivot_exit"] = b.NPivot;
         background.Attributes["window_N_start"] = b.WindowStart;
         background.Attributes["window_N_end"] = b.WindowEnd;
         file["background"] = background;

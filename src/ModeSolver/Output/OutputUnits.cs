@@ -27,6 +27,9 @@ public static class OutputUnits
         new("H_star_GeV", "GeV"),
         new("energy_scale_GeV", "GeV"),
         new("V_scale", "1 (factor applied to the potential)"),
+        new("T_reh_GeV", "GeV"),
+        new("rho_end_quarter_GeV", "GeV"),
+        new("r_002", "1 (r at k = 0.002 /Mpc)"),
         new("epsilon_n", "1"),
         new("time_seconds", "s"),
     ];

@@ -40,11 +40,18 @@ public static class PrimordialTableWriter
         writer.WriteLine(string.Create(Inv, $"# pivot: k_* = {p.KPivot:R} 1/Mpc, N_* = {p.NStar:0.####}"));
         writer.WriteLine(string.Create(Inv, $"# at the pivot: A_s = {p.As:0.000000e+00}, n_s = {p.Ns:0.000000}, r = {p.R:0.000000e+00}, alpha_s = {p.AlphaS:0.000e+00}, n_t = {p.Nt:0.000e+00}"));
         writer.WriteLine($"# amplitude method: {report.AmplitudeMethod}");
-        writer.WriteLine("# units: k in 1/Mpc (comoving, a = 1 today); P_s and P_t dimensionless (P_t sums both polarisations)");
+        double kUnit = 1.0;
+        if (t.H is double h)
+        {
+            kUnit = 1.0 / h;
+            writer.WriteLine(string.Create(Inv, $"# units: k in h/Mpc with h = {h:R} (k[h/Mpc] = k[1/Mpc] / h; comoving, a = 1 today); P_s and P_t dimensionless (P_t sums both polarisations)"));
+        }
+        else
+            writer.WriteLine("# units: k in 1/Mpc (comoving, a = 1 today); P_s and P_t dimensionless (P_t sums both polarisations)");
         writer.WriteLine(string.Create(Inv, $"# rows: {t.K.Length}, log-spaced in k"));
         writer.WriteLine("# columns: k P_s P_t");
         for (int i = 0; i < t.K.Length; i++)
-            writer.WriteLine(string.Create(Inv, $"{t.K[i]:0.0000000000e+00} {t.Ps[i]:0.0000000000e+00} {t.Pt[i]:0.0000000000e+00}"));
+            writer.WriteLine(string.Create(Inv, $"{t.K[i] * kUnit:0.0000000000e+00} {t.Ps[i]:0.0000000000e+00} {t.Pt[i]:0.0000000000e+00}"));
     }
 
     /// <summary>Writes the table to a file (overwriting).</summary>

@@ -35,6 +35,9 @@ public sealed record RunReport(
     RunStatistics Statistics,
     ImmutableArray<string> Warnings)
 {
+    /// <summary>T_reh, rho_end^(1/4) and r at 0.002 /Mpc; null when the producer did not derive them.</summary>
+    public DerivedQuantities? Derived { get; init; }
+
     /// <summary>Generator name and version written into every file; defaults to this assembly's informational version.</summary>
     public string Generator { get; init; } = DefaultGenerator;
 
@@ -100,7 +103,10 @@ public sealed record ModelInfo(
     TheoryFrame Frame);
 
 /// <summary>One setting as used by the run: key and value rendered as a string (invariant culture).</summary>
-public sealed record Setting(string Key, string Value);
+/// <param name="Key">Deck-style key, e.g. "pivot.k".</param>
+/// <param name="Value">The value as text (numbers in round-trip form).</param>
+/// <param name="IsNumber">True when the value is a number: JSON writes it as a number, HDF5 as a float64 attribute.</param>
+public sealed record Setting(string Key, string Value, bool IsNumber = false);
 
 /// <summary>Every setting used by the run.</summary>
 /// <param name="Entries">Flat, ordered (key, value) list: this is what the files record.</param>
@@ -173,7 +179,7 @@ public sealed record PivotSlowRoll(SlowRollEstimate FirstOrder, SlowRollEstimate
 /// <param name="Epsilon2">epsilon_2.</param>
 /// <param name="Epsilon3">epsilon_3.</param>
 /// <param name="NEnd">N at the end of inflation (the epsilon_1 = 1 crossing used).</param>
-/// <param name="NPivot">N at which the pivot exits (k_* = aH).</param>
+/// <param name="NPivot">N coordinate (since the start) at which the pivot exits (k_* = aH); N_star = NEnd - NPivot.</param>
 /// <param name="WindowStart">N at which k_min exits the horizon.</param>
 /// <param name="WindowEnd">N at which k_max exits the horizon.</param>
 /// <param name="Epsilon1Crossings">Every N where epsilon_1 crosses 1, in order.</param>
@@ -221,7 +227,11 @@ public sealed record SlowRollSpectra(
     ImmutableArray<double> NsSecondOrder);
 
 /// <summary>Dense log-spaced primordial table for Boltzmann codes: k in 1/Mpc, P_s, P_t.</summary>
-public sealed record PrimordialTable(ImmutableArray<double> K, ImmutableArray<double> Ps, ImmutableArray<double> Pt);
+public sealed record PrimordialTable(ImmutableArray<double> K, ImmutableArray<double> Ps, ImmutableArray<double> Pt)
+{
+    /// <summary>When set, the table file gives k in h/Mpc with this dimensionless Hubble parameter h (K stays in 1/Mpc).</summary>
+    public double? H { get; init; }
+}
 
 /// <summary>Wall time of one pipeline stage.</summary>
 public sealed record StageTiming(string Stage, double Seconds);

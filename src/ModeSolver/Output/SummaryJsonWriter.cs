@@ -62,6 +62,7 @@ public static class SummaryJsonWriter
         Num(w, "max_rel_error", p.MaxRelError);
         Num(w, "rhs_evaluations_per_mode", p.RhsEvaluationsPerMode);
         w.WriteString("amplitude_method", r.AmplitudeMethod);
+        WriteDerived(w, r.Derived);
 
         w.WriteStartObject("slow_roll");
         Estimate(w, "first_order", r.SlowRoll.FirstOrder);
@@ -75,7 +76,8 @@ public static class SummaryJsonWriter
 
         w.WriteStartObject("background");
         Num(w, "N_end", r.Background.NEnd);
-        Num(w, "N_pivot", r.Background.NPivot);
+        Num(w, "N_star", r.Background.NEnd - r.Background.NPivot);
+        Num(w, "N_at_pivot_exit", r.Background.NPivot);
         w.WriteStartArray("observable_window_N");
         Num(w, r.Background.WindowStart);
         Num(w, r.Background.WindowEnd);
@@ -100,7 +102,7 @@ public static class SummaryJsonWriter
         w.WriteEndObject();
 
         w.WriteStartObject("settings");
-        foreach (var s in r.Settings.Entries) w.WriteString(s.Key, s.Value);
+        foreach (var s in r.Settings.Entries) WriteSetting(w, s);
         w.WriteEndObject();
 
         var fs = r.Settings.FlagSettings;
@@ -135,6 +137,28 @@ public static class SummaryJsonWriter
         foreach (var s in r.Warnings) w.WriteStringValue(s);
         w.WriteEndArray();
         w.WriteEndObject();
+    }
+
+    /// <summary>T_reh, rho_end^(1/4) and r at 0.002 /Mpc at top level (nothing when the report has none).</summary>
+    private static void WriteDerived(Utf8JsonWriter w, DerivedQuantities? d)
+    {
+        if (d is null) return;
+        Num(w, "T_reh_GeV", d.TRehGeV);
+        w.WriteBoolean("T_reh_derived", d.TRehDerived);
+        Num(w, "rho_end_quarter_GeV", d.RhoEndQuarterGeV);
+        Num(w, "r_002", d.R002);
+        w.WriteString("r_002_source", d.R002Source);
+    }
+
+    /// <summary>A setting as a JSON number when it is one (round-trip text), else as a string.</summary>
+    private static void WriteSetting(Utf8JsonWriter w, Setting s)
+    {
+        if (s.IsNumber && double.TryParse(s.Value, System.Globalization.NumberStyles.Float, System.Globalization.CultureInfo.InvariantCulture, out double x) && double.IsFinite(x))
+            w.WriteNumber(s.Key, x);
+        else if (s.Value is "true" or "false" && s.Key.EndsWith("palatini", StringComparison.Ordinal))
+            w.WriteBoolean(s.Key, s.Value == "true");
+        else
+            w.WriteString(s.Key, s.Value);
     }
 
     /// <summary>Code of a slow-roll reference as written to files.</summary>

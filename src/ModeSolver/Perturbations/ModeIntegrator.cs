@@ -79,10 +79,10 @@ public sealed class ModeIntegrator
             MaxSteps = settings.MaxSteps,
             Observer = _observer,
         };
-        double n = n0;
+        double n = DeepRegime(n0, options.RelativeTolerance, settings.MaxSteps);
         var nonSmooth = background.NonSmoothTimes;
         int seg = 0;
-        while (seg < nonSmooth.Count && nonSmooth[seg] <= n0) seg++;
+        while (seg < nonSmooth.Count && nonSmooth[seg] <= n) seg++;
         while (true)
         {
             double segEnd = seg < nonSmooth.Count && nonSmooth[seg] < nEnd ? nonSmooth[seg] : nEnd;
@@ -92,8 +92,42 @@ public sealed class ModeIntegrator
         }
         if (_frozen) ApplyFreeze();
         double xf = Math.Exp(_lnK - n) / background.At(n).H;
-        double err = IntegratorErrorFactor * options.RelativeTolerance + 0.1 * _stopCorrection + InitialDataError(n0, xs, settings.InitialData);
+        double err = IntegratorErrorFactor * options.RelativeTolerance + 0.1 * _stopCorrection + InitialDataError(n0, xs, settings.InitialData) + _deepError;
         return Results(k, n0, n, xs, xf, _frozen, err);
+    }
+
+    /// <summary>
+    /// Use the oscillatory-regime propagator for modes that start deep inside the horizon. Off by default until the
+    /// demo decks and catalogue runs have been compared with it on (feature-deepened starts would use it).
+    /// </summary>
+    internal bool UseOscillatoryRegime { get; init; }
+
+    /// <summary>k/aH below which a mode is handed to Runge-Kutta (the propagator needs -k tau &gt;= OscillatoryRegime.MinArgument).</summary>
+    internal const double SwitchDepth = 1.05 * OscillatoryRegime.MinArgument;
+
+    private OscillatoryRegime? _deep;
+    private double _deepError;
+
+    /// <summary>
+    /// Carries the mode from <paramref name="n0"/> to k/aH = <see cref="SwitchDepth"/> (or the first non-smooth point,
+    /// or <paramref name="nLimit"/>) with the oscillatory-regime propagator when it starts deeper than 1.5 times that;
+    /// returns where Runge-Kutta takes over. Each propagator counts as one right-hand side (one background evaluation).
+    /// </summary>
+    private double DeepRegime(double n0, double tolerance, int maxSteps, double nLimit = double.PositiveInfinity)
+    {
+        _deepError = 0;
+        if (!UseOscillatoryRegime || LnDepth(n0) < Math.Log(1.5 * SwitchDepth)) return n0;
+        double n1 = Math.Min(nLimit, DepthTime(SwitchDepth, n0));
+        var ns = _bg.NonSmoothTimes;
+        for (int i = 0; i < ns.Count; i++)
+            if (ns[i] > n0 && ns[i] < n1) { n1 = ns[i]; break; }
+        if (!(n1 > n0)) return n0;
+        _deep ??= new OscillatoryRegime();
+        var run = _deep.Advance(_bg, _lnK, n0, n1, _y.AsSpan(0, _dim), _scalar, _tensor, _derivs, _tOff, tolerance, maxSteps);
+        _rhsCount += _deep.BackgroundEvaluations;
+        _steps += run.Accepted + run.Rejected;
+        _deepError = run.SumErrorEstimate;
+        return run.TFinal;
     }
 
     /// <summary>Global error of the integration relative to the step tolerance (measured about 0.01 on the benchmark modes; 10x margin).</summary>
@@ -197,7 +231,7 @@ public sealed class ModeIntegrator
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
         };
-        double n = n0;
+        double n = DeepRegime(n0, options.RelativeTolerance, settings.MaxSteps, nTarget);
         var nonSmooth = background.NonSmoothTimes;
         while (n < nTarget)
         {

@@ -18,8 +18,8 @@ public sealed record PipelineOptions
     /// <summary>Worker threads for the modes (0: all cores).</summary>
     public int Threads { get; init; }
 
-    /// <summary>Thresholds of the slow-roll disagreement flags.</summary>
-    public FlagSettings Flags { get; init; } = new();
+    /// <summary>Thresholds of the slow-roll disagreement flags; null takes them from the settings (deck table [flags]).</summary>
+    public FlagSettings? Flags { get; init; }
 
     /// <summary>Number of background samples written to the report.</summary>
     public int BackgroundSamples { get; init; } = 1500;
@@ -36,7 +36,14 @@ public sealed record PipelineOptions
 /// <param name="Exact">Exact observables at the pivot.</param>
 /// <param name="SlowRoll">Slow-roll estimates at the pivot.</param>
 /// <param name="Theory">The theory that was run.</param>
-public sealed record PivotRun(PivotSolution Pivot, PivotValues Exact, SlowRollSet SlowRoll, IValidatedTheory Theory);
+public sealed record PivotRun(PivotSolution Pivot, PivotValues Exact, SlowRollSet SlowRoll, IValidatedTheory Theory)
+{
+    /// <summary>
+    /// The settings as run: phi0 of the background actually used (solved when the start was given in e-folds) and the
+    /// solved parameter value when normalised by a parameter; the input settings otherwise.
+    /// </summary>
+    public required RunSettings Settings { get; init; }
+}
 
 /// <summary>
 /// The whole spectrum pipeline: settings -> theory -> exact background -> pivot matching and normalisation with the
@@ -55,16 +62,46 @@ public static class SpectrumPipeline
         ArgumentNullException.ThrowIfNull(settings);
         options ??= new PipelineOptions();
         options.Stage?.Invoke("background");
-        var theory = TheoryFactory.Build(settings);
-        var background = BackgroundSolver.Solve(theory, BackgroundSettingsFor(settings));
-        options.Stage?.Invoke("pivot matching");
         double tolerance = settings.KRange.Tolerance;
-        var pivot = PivotMatcher.Match(background, PivotSettingsFor(settings), new ExactAmplitude(Math.Min(tolerance, 1e-6)));
+        IValidatedTheory theory;
+        PivotSolution pivot;
+        var used = settings;
+        if (settings.Amplitude.SolveFor is not null)
+        {
+            options.Stage?.Invoke("normalisation by " + settings.Amplitude.SolveFor);
+            var solved = ParameterNormalisation.Solve(settings, SolveBackground, tolerance);
+            (theory, pivot, used) = (solved.Theory, solved.Pivot, solved.Settings);
+        }
+        else
+        {
+            theory = TheoryFactory.Build(settings);
+            var background = SolveBackground(theory, settings);
+            used = WithStart(settings, background);
+            options.Stage?.Invoke("pivot matching");
+            pivot = PivotMatcher.Match(background, PivotSettingsFor(settings), new ExactAmplitude(Math.Min(tolerance, 1e-6)));
+        }
         var bg = pivot.Background;
         double kPivotBg = pivot.ToBackgroundUnits(pivot.KPivot);
         var exact = PivotValues.Compute(bg, kPivotBg, Math.Min(tolerance, 1e-6));
-        return new PivotRun(pivot, exact, pivot.PivotSlowRoll, theory);
+        return new PivotRun(pivot, exact, pivot.PivotSlowRoll, theory) { Settings = used };
     }
+
+    /// <summary>
+    /// The exact background of the settings: from phi0, or, for a start given in e-folds before the end, from the field
+    /// value whose exact background inflates that many e-folds (<see cref="ExactStart"/>).
+    /// </summary>
+    public static BackgroundSolution SolveBackground(IValidatedTheory theory, RunSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        var bgSettings = BackgroundSettingsFor(settings);
+        return settings.Initial.StartEfolds is double ne
+            ? ExactStart.Solve(theory, bgSettings, ne)
+            : BackgroundSolver.Solve(theory, bgSettings);
+    }
+
+    private static RunSettings WithStart(RunSettings settings, BackgroundSolution background) =>
+        settings.Initial.StartEfolds is null ? settings
+            : settings with { Initial = settings.Initial with { Phi0 = background.At(background.NStart).Phi } };
 
     /// <summary>Runs the whole pipeline and returns the report (no files are written here).</summary>
     /// <exception cref="PhysicsException">physics that cannot be computed (one-line message).</exception>
@@ -84,6 +121,8 @@ public static class SpectrumPipeline
         }
 
         var run = RunPivot(settings, options);
+        var flagSettings = options.Flags ?? settings.Flags;
+        settings = run.Settings;
         Mark("background and matching");
         var pivot = run.Pivot;
         var bg = pivot.Background;
@@ -102,6 +141,23 @@ public static class SpectrumPipeline
             DegreeOfParallelism = options.Threads,
             ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [kPivotBg] : [],
         };
+        var warnings = new List<string>(settings.Warnings);
+        if (kr.KMinIsDefault)
+        {
+            // The default k_min reaches 1e-6 /Mpc when the background serves it; otherwise the run starts where it can.
+            double servedLo = pivot.ToInverseMpc(SpectrumSolver.ServedRange(bg, spectrumSettings).KMin) * 1.0001;
+            if (servedLo > kr.KMin && servedLo < kr.KMax)
+            {
+                warnings.Add(string.Create(CultureInfo.InvariantCulture,
+                    $"the default k_min = {kr.KMin:G3} /Mpc is not served by this background: the spectrum starts at k = {servedLo:G4} /Mpc (start earlier, e.g. start.efolds, to reach it)"));
+                kr = kr with { KMin = servedLo };
+                spectrumSettings = spectrumSettings with
+                {
+                    KMin = pivot.ToBackgroundUnits(servedLo),
+                    ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [kPivotBg] : [],
+                };
+            }
+        }
         CheckServedRange(bg, pivot, spectrumSettings, kr);
         var spectrum = SpectrumSolver.Compute(bg, spectrumSettings);
         Mark("modes");
@@ -135,8 +191,10 @@ public static class SpectrumPipeline
         var spectrumSamples = new SpectrumSamples(Imm(kMpc), Imm(spectrum.Ps), Imm(spectrum.Pt), Imm(spectrum.R),
             Imm(spectrum.Ns), Imm(spectrum.Nt), Imm(spectrum.AlphaS), Imm(spectrum.ErrorEstimate));
         var srSpectra = new SlowRollSpectra(Imm(kMpc), Imm(ps1), Imm(pt1), Imm(ps2), Imm(pt2), Imm(ns1), Imm(ns2));
-        var table = Table(spectrum, pivot, kr, options.TablePointsPerDecade);
-        var flags = Flags.Evaluate(pivotResults, pivotSlowRoll, spectrumSamples, srSpectra, background, options.Flags);
+        var table = Table(spectrum, pivot, kr, options.TablePointsPerDecade) with { H = settings.Output.TableH };
+        if (Flags.PerturbativityWarning(spectrumSamples) is string nonPerturbative) warnings.Add(nonPerturbative);
+        var derived = Derive(settings, pivot, spectrum, kr);
+        var flags = Flags.Evaluate(pivotResults, pivotSlowRoll, spectrumSamples, srSpectra, background, flagSettings);
         Mark("slow-roll comparison");
 
         long rhs = 0;
@@ -144,9 +202,38 @@ public static class SpectrumPipeline
         var statistics = new RunStatistics(clock.Elapsed.TotalSeconds, stages.ToImmutable(), m, rhs,
             options.Threads > 0 ? options.Threads : Environment.ProcessorCount);
 
-        return new RunReport(ModelInfoFor(settings, run.Theory), ReportSettingsFor(settings, options.Flags), pivotResults,
+        return new RunReport(ModelInfoFor(settings, run.Theory, pivot.VScale), ReportSettingsFor(settings, flagSettings), pivotResults,
             pivotSlowRoll, background, spectrumSamples, srSpectra, table, flags, pivot.AmplitudeName, statistics,
-            [.. settings.Warnings]);
+            [.. warnings]) { Derived = derived };
+    }
+
+    /// <summary>
+    /// T_reh, rho_end^(1/4) and r at 0.002 /Mpc: r from the exact spectrum when 0.002 /Mpc lies in its k range, else from
+    /// one exact mode there when the background serves it, else NaN with the reason.
+    /// </summary>
+    public static DerivedQuantities Derive(RunSettings settings, PivotSolution pivot, PrimordialSpectrum? spectrum, KRangeSpec kr)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(pivot);
+        ArgumentNullException.ThrowIfNull(kr);
+        const double k2 = DerivedQuantities.SecondPivotK;
+        double kb = pivot.ToBackgroundUnits(k2);
+        double r002 = double.NaN;
+        string source;
+        if (spectrum is not null && kb >= spectrum.K[0] && kb <= spectrum.K[^1])
+        {
+            r002 = spectrum.InterpolatePt(kb) / spectrum.InterpolatePs(kb);
+            source = "spectrum";
+        }
+        else if (k2 >= pivot.KMinMpc && k2 <= pivot.KMaxMpc)
+        {
+            r002 = PivotValues.Compute(pivot.Background, kb, Math.Min(kr.Tolerance, 1e-6)).R;
+            source = "mode";
+        }
+        else source = string.Create(CultureInfo.InvariantCulture, $"unavailable: 0.002 /Mpc is outside the k range the background serves [{pivot.KMinMpc:G3}, {pivot.KMaxMpc:G3}] /Mpc");
+        bool given = settings.Pivot.Efolds is null && settings.Pivot.Reheating.Kind == ReheatingKind.Temperature;
+        return new DerivedQuantities(pivot.TRehGeV, !given && double.IsFinite(pivot.TRehGeV),
+            Math.Pow(pivot.RhoEnd, 0.25) * Constants.ReducedPlanckMassGeV, r002, source);
     }
 
     /// <summary>The background settings a run deck asks for.</summary>
@@ -227,14 +314,23 @@ public static class SpectrumPipeline
         return new PrimordialTable([.. grid], Imm(ps), Imm(pt));
     }
 
-    private static ModelInfo ModelInfoFor(RunSettings settings, IValidatedTheory theory)
+    /// <summary>
+    /// The model as run: with the amplitude parameter carrying the V scale (<see cref="NormalisedParameters"/>), so
+    /// that the printed parameters reproduce the run with V scale 1; the description says when V was rescaled instead.
+    /// </summary>
+    private static ModelInfo ModelInfoFor(RunSettings settings, IValidatedTheory theory, double vScale)
     {
-        var spec = settings.Model;
+        var spec = settings.Model with { Parameters = NormalisedParameters.Apply(settings.Model, vScale) };
+        string description = ReferenceEquals(spec.Parameters, settings.Model.Parameters) && vScale != 1
+            ? string.Create(CultureInfo.InvariantCulture, $"{theory.Description}; V multiplied by V_scale = {vScale:G8}")
+            : spec.Describe();
         var frame = spec.Coupling is null ? TheoryFrame.Einstein : spec.Palatini ? TheoryFrame.JordanPalatini : TheoryFrame.JordanMetric;
         var parameters = ImmutableArray.CreateBuilder<Output.ModelParameter>();
         foreach (var kv in spec.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
             parameters.Add(new Output.ModelParameter(kv.Key, kv.Value));
-        return new ModelInfo(spec.CatalogueId ?? "formula", theory.Description, spec.Potential, spec.Kinetic ?? "1",
+        if (NormalisedParameters.LambdaOverXiSquared(spec, spec.Parameters) is double lx)
+            description += string.Create(CultureInfo.InvariantCulture, $" (lambda/xi^2 = {lx:G6})");
+        return new ModelInfo(spec.CatalogueId ?? "formula", description, spec.Potential, spec.Kinetic ?? "1",
             spec.Coupling, parameters.ToImmutable(), frame);
     }
 
@@ -244,7 +340,7 @@ public static class SpectrumPipeline
         string F(double x) => x.ToString("R", inv);
         string? Opt(double? x) => x is { } v ? F(v) : null;
         var e = ImmutableArray.CreateBuilder<Setting>();
-        void Add(string key, string? value) { if (value is not null) e.Add(new Setting(key, value)); }
+        void Add(string key, string? value, bool number = false) { if (value is not null) e.Add(new Setting(key, value, number && IsNumeric(value))); }
         Add("title", s.Title.Length > 0 ? s.Title : null);
         Add("deck", s.DeckPath);
         Add("model.catalogue", s.Model.CatalogueId);
@@ -253,24 +349,31 @@ public static class SpectrumPipeline
         Add("model.coupling", s.Model.Coupling);
         Add("model.palatini", s.Model.Coupling is null ? null : s.Model.Palatini ? "true" : "false");
         foreach (var kv in s.Model.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
-            Add("model.parameters." + kv.Key, F(kv.Value));
-        Add("model.phi_end", Opt(s.Model.PhiEnd));
-        Add("start.phi0", F(s.Initial.Phi0));
-        Add("start.dphi0", Opt(s.Initial.DPhi0) ?? "attractor");
-        Add("pivot.k", F(s.Pivot.KPivot));
-        Add("pivot.efolds", Opt(s.Pivot.Efolds));
+            Add("model.parameters." + kv.Key, F(kv.Value), true);
+        Add("model.phi_end", Opt(s.Model.PhiEnd), true);
+        Add("start.phi0", F(s.Initial.Phi0), true);
+        Add("start.efolds", Opt(s.Initial.StartEfolds), true);
+        Add("start.dphi0", Opt(s.Initial.DPhi0) ?? "attractor", true);
+        Add("pivot.k", F(s.Pivot.KPivot), true);
+        Add("pivot.efolds", Opt(s.Pivot.Efolds), true);
         Add("reheating.kind", s.Pivot.Efolds is null ? s.Pivot.Reheating.Kind.ToString().ToLowerInvariant() : null);
-        Add("reheating.w", s.Pivot.Efolds is null && s.Pivot.Reheating.Kind != ReheatingKind.Instantaneous ? F(s.Pivot.Reheating.W) : null);
-        Add("reheating.temperature_gev", Opt(s.Pivot.Reheating.TemperatureGeV));
-        Add("reheating.efolds", Opt(s.Pivot.Reheating.Efolds));
-        Add("reheating.dof", F(s.Pivot.Reheating.Dof));
-        Add("normalisation.a_s", s.Amplitude.ScalarAmplitude is { } a ? F(a) : "none");
-        Add("modes.k_min", F(s.KRange.KMin));
-        Add("modes.k_max", F(s.KRange.KMax));
-        Add("modes.count", s.KRange.Count.ToString(inv));
-        Add("modes.tolerance", F(s.KRange.Tolerance));
+        Add("reheating.w", s.Pivot.Efolds is null && s.Pivot.Reheating.Kind != ReheatingKind.Instantaneous ? F(s.Pivot.Reheating.W) : null, true);
+        Add("reheating.temperature_gev", Opt(s.Pivot.Reheating.TemperatureGeV), true);
+        Add("reheating.efolds", Opt(s.Pivot.Reheating.Efolds), true);
+        Add("reheating.dof", F(s.Pivot.Reheating.Dof), true);
+        Add("normalisation.a_s", s.Amplitude.ScalarAmplitude is { } a ? F(a) : "none", true);
+        Add("normalisation.solve_for", s.Amplitude.SolveFor);
+        Add("modes.k_min", F(s.KRange.KMin), true);
+        Add("modes.k_max", F(s.KRange.KMax), true);
+        Add("modes.count", s.KRange.Count.ToString(inv), true);
+        Add("modes.tolerance", F(s.KRange.Tolerance), true);
         Add("output.dir", s.Output.Directory);
         Add("output.formats", string.Join(",", s.Output.Formats));
+        Add("output.table_h", Opt(s.Output.TableH), true);
         return new ReportSettings(e.ToImmutable(), flags);
     }
+
+    // Settings whose text is a number (round-trip form) are written as numbers; formulas, paths and words stay text.
+    private static bool IsNumeric(string value) =>
+        double.TryParse(value, NumberStyles.Float, CultureInfo.InvariantCulture, out double x) && double.IsFinite(x);
 }

@@ -40,7 +40,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         ArgumentNullException.ThrowIfNull(sweptKeys);
         _deck = deck;
         _source = source;
-        _options = new PipelineOptions { Threads = 1, Flags = flags ?? FlagSettings.Default };
+        _options = new PipelineOptions { Threads = 1, Flags = flags };
         ValidateKeys(sweptKeys, source);
         CheckParameters(sweptKeys);
     }
@@ -183,7 +183,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 pivot.HStar, pivot.VStarQuarterGeV, pivot.VScale, pivot.NTotal, pivot.NReh, exact.ErrorEstimate, double.NaN);
             var sr = run.SlowRoll.SecondOrder;
             var reference = new SlowRollEstimate(sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt);
-            var flags = Flags.PivotDeviations(results, reference, "second-order slow roll", _options.Flags);
+            var flags = Flags.PivotDeviations(results, reference, "second-order slow roll", _options.Flags ?? settings.Flags);
             return new SweepPointResult
             {
                 Ns = exact.Ns, R = exact.R, AlphaS = exact.AlphaS, Nt = exact.Nt, As = exact.Ps, NStar = pivot.NStar, VScale = pivot.VScale,

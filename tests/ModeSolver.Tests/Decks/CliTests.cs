@@ -109,7 +109,7 @@ public class CliTests
     [Theory]
     [InlineData(new[] { "spectrum", "--model", "t-model", "--phi0", "abc" }, "modesolver: --phi0 expects a number (got 'abc')")]
     [InlineData(new[] { "spectrum", "--model", "t-model", "--bogus", "1" }, "modesolver: unknown option '--bogus'")]
-    [InlineData(new[] { "spectrum", "--potential", "phi^2" }, "modesolver: command line: start.phi0 (or --phi0) is required")]
+    [InlineData(new[] { "spectrum", "--potential", "phi^2" }, "modesolver: command line: start.phi0 or start.efolds (or --phi0 or --start-efolds) is required")]
     [InlineData(new[] { "spectrum", "--model", "t-model", "--param", "alpha" }, "modesolver: --param expects NAME=VALUE")]
     [InlineData(new[] { "spectrum", "--model", "t-model", "--reheat-w", "0.3" }, "modesolver: --reheat-w needs the end of reheating too")]
     [InlineData(new[] { "spectrum", "--model", "t-model", "--amplitude", "-1" }, "modesolver: --amplitude must be a positive number below 1")]
@@ -135,13 +135,17 @@ public class CliTests
     }
 
     [Fact]
-    public void SpectrumOneLineJordanFormWarnsAboutUnusedParameter()
+    public void SpectrumOneLineJordanFormRejectsUnusedParameter()
     {
         var (code, output, err) = Run("spectrum", "--check", "--potential", "lambda*phi^4/4", "--coupling", "1 + xi*phi^2", "--param", "lambda=0.1",
             "--param", "xi=100", "--param", "zeta=3", "--phi0", "1", "--reheat-T", "1e9");
+        Assert.Equal(2, code);
+        Assert.Equal("", output);
+        Assert.Equal("modesolver: --param zeta names a parameter no formula of the model uses (they use: lambda, xi)", err.TrimEnd());
+        (code, output, err) = Run("spectrum", "--check", "--potential", "lambda*phi^4/4", "--coupling", "1 + xi*phi^2", "--param", "lambda=0.1",
+            "--param", "xi=100", "--phi0", "1", "--reheat-T", "1e9");
         Assert.True(code == 0, err);
         Assert.Contains("Jordan frame, metric", output);
         Assert.Contains("T_reh = 1E+09 GeV", output);
-        Assert.Equal("modesolver: warning: --param zeta is not used by the model's formulas", err.TrimEnd());
     }
 }

@@ -1,4 +1,5 @@
 using ModeSolver.Decks;
+using ModeSolver.Models;
 
 namespace ModeSolver.Tests.Decks;
 
@@ -131,7 +132,9 @@ public class DeckTests
         var s = FromText("[model]\ncatalogue = \"starobinsky\"\n");
         Assert.Equal(ReheatingKind.Instantaneous, s.Pivot.Reheating.Kind);
         Assert.Null(s.Pivot.Efolds);
-        Assert.Equal(5.8, s.Initial.Phi0);
+        // Catalogue models start a fixed number of e-folds before the end; phi0 is the slow-roll first guess.
+        Assert.Equal(ModelCatalogue.DefaultStartEfolds, s.Initial.StartEfolds);
+        Assert.InRange(s.Initial.Phi0, 5.6, 5.8);
         Assert.Equal(2.099e-9, s.Amplitude.ScalarAmplitude);
     }
 
@@ -147,7 +150,7 @@ public class DeckTests
     public void UnknownKeyIsRejectedWithValidKeysAndLine()
     {
         var e = Bad("[model]\ncatalogue = \"t-model\"\n\n[start]\nphi_0 = 3\n");
-        Assert.Equal("test.toml:5: start.phi_0 is not a key of [start] (valid: phi0, dphi0)", e.Message);
+        Assert.Equal("test.toml:5: start.phi_0 is not a key of [start] (valid: phi0, dphi0, efolds)", e.Message);
         Assert.Equal("start.phi_0", e.Key);
         Assert.Equal(5, e.Line);
     }
@@ -170,8 +173,8 @@ public class DeckTests
     [InlineData("[model]\ncatalogue = \"t-model\"\n[reheating]\ntemperature_gev = 1e-4\n", "test.toml:4: reheating.temperature_gev must be at least 0.004 GeV")]
     [InlineData("[model]\ncatalogue = \"t-model\"\n[modes]\nk_min = 2.0\nk_max = 1.0\n", "test.toml:4: modes.k_min gives k_min = 2 above k_max = 1")]
     [InlineData("[model]\ncatalogue = \"t-model\"\n[output]\nformats = [\"pdf\"]\n", "test.toml:4: output.formats has an unknown format 'pdf' (valid: hdf5, table, json, plots)")]
-    [InlineData("[model]\npotential = \"phi^2\"\n", "test.toml: start.phi0 (or --phi0) is required")]
-    [InlineData("[model]\ncatalogue = \"exponential\"\nphi_end = -3\n", "test.toml:3: model.phi_end = -3 is not ahead of phi0 = 0 in the roll direction")]
+    [InlineData("[model]\npotential = \"phi^2\"\n", "test.toml: start.phi0 or start.efolds (or --phi0 or --start-efolds) is required")]
+    [InlineData("[model]\ncatalogue = \"exponential\"\nphi_end = -3\n[start]\nphi0 = 0\n", "test.toml:3: model.phi_end = -3 is not ahead of phi0 = 0 in the roll direction")]
     [InlineData("[model]\npotential = \"1 - phi^2\"\n[start]\nphi0 = 2\n", "test.toml:4: start.phi0 = 2 gives V = -3; inflation needs V > 0")]
     [InlineData("[model]\ncatalogue = \"t-model\"\n[normalisation]\na_s = \"lots\"\n", "test.toml:4: normalisation.a_s must be a number or \"none\"")]
     public void BadDecksNameTheKeyAndLine(string toml, string expectedStart)

@@ -8,7 +8,7 @@ namespace ModeSolver.Tests.Perturbations;
 public class ModeTests
 {
     /// <summary>Lyth &amp; Stewart 1992 (Phys. Lett. B 274, 168), physics.md 4a: exact power-law spectra at k = aH.</summary>
-    private static (double Ps, double Pt) LythStewart(PowerLawBackground bg, double k)
+    internal static (double Ps, double Pt) LythStewart(PowerLawBackground bg, double k)
     {
         double e1 = bg.Epsilon1, nu = bg.Nu;
         double h = bg.At(bg.CrossingN(k)).H;
