@@ -153,3 +153,14 @@ public class FileSafetyTests
         Assert.Equal("plain", TextSafety.Printable("plain"));
     }
 }
+
+/// <summary>One wavenumber asked for gives a one-row table grid.</summary>
+public class SingleWavenumberGridTests
+{
+    [Fact]
+    public void Equal_k_min_and_k_max_give_one_row()
+    {
+        Assert.Equal([0.05], PrimordialTableWriter.LogGrid(0.05, 0.05));
+        Assert.Throws<ArgumentException>(() => PrimordialTableWriter.LogGrid(0.05, 0.01));
+    }
+}
