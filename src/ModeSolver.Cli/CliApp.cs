@@ -27,7 +27,11 @@ public static class CliApp
         return root;
     }
 
-    /// <summary>Parses and runs; returns the process exit code.</summary>
+    /// <summary>
+    /// Parses and runs; returns the process exit code. Response files (<c>@file</c>) are not read: an argument starting
+    /// with '@' is taken as it is. Standard output and error are guarded: a write that fails (full, closed) ends the
+    /// command with exit 2 and one line on standard error if that still works.
+    /// </summary>
     public static int Run(string[] args)
     {
         ArgumentNullException.ThrowIfNull(args);
@@ -35,28 +39,45 @@ public static class CliApp
         if (debug) args = Array.FindAll(args, a => a != "--debug");
         bool previous = _debug;
         _debug = debug;
+        var (oldOut, oldErr) = (Console.Out, Console.Error);
+        var stdout = new GuardedWriter(oldOut, "standard output");
+        var stderr = new GuardedWriter(oldErr, "standard error");
+        Console.SetOut(stdout);
+        Console.SetError(stderr);
         try
         {
             var root = BuildRoot();
-            var parse = root.Parse(args);
+            var parse = root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
             if (parse.Errors.Count > 0)
             {
                 // The most specific error first: an unknown command or argument explains a "command not provided".
                 var error = parse.Errors.FirstOrDefault(e => e.Message.StartsWith("Unrecognized", StringComparison.Ordinal)) ?? parse.Errors[0];
-                Console.Error.WriteLine("modesolver: " + Commands.CommandErrors.OneLine(error.Message) + " (see --help)");
+                Console.Error.WriteLine("modesolver: " + ModeSolver.Output.TextSafety.Printable(error.Message) + " (see --help)");
                 return Commands.CommandErrors.UserError;
             }
             if (parse.Action is System.CommandLine.Help.HelpAction)
             {
                 var help = new StringWriter();
-                int code = parse.Invoke(new InvocationConfiguration { Output = help, Error = Console.Error });
+                int code = parse.Invoke(new InvocationConfiguration { Output = help, Error = Console.Error, EnableDefaultExceptionHandler = false });
                 Console.Out.Write(CleanHelp(help.ToString()));
                 return code;
             }
-            return parse.Invoke();
+            return parse.Invoke(new InvocationConfiguration { EnableDefaultExceptionHandler = false });
+        }
+        catch (StandardStreamException e)
+        {
+            // Help or a parse error could not be printed; commands report this themselves (CommandErrors.Guard).
+            if (e.Stream != stderr.Stream)
+            {
+                try { Console.Error.WriteLine("modesolver: " + e.Message); }
+                catch (StandardStreamException) { }
+            }
+            return Commands.CommandErrors.UserError;
         }
         finally
         {
+            Console.SetOut(oldOut);
+            Console.SetError(oldErr);
             _debug = previous;
         }
     }

@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Globalization;
 using ModeSolver.Decks;
+using ModeSolver.Output;
 using ModeSolver.Pipeline;
 
 namespace ModeSolver.Cli.Commands;
@@ -52,7 +53,11 @@ public static class BackgroundCommand
         ArgumentNullException.ThrowIfNull(settings);
         ArgumentNullException.ThrowIfNull(output);
         ArgumentNullException.ThrowIfNull(error);
-        foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + w);
+        return CommandErrors.WithWarnings(settings.Warnings, error, () => Print(settings, output, error, progress));
+    }
+
+    private static int Print(RunSettings settings, TextWriter output, TextWriter error, bool progress)
+    {
         var options = new PipelineOptions { Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null };
         var run = SpectrumPipeline.RunPivot(settings, options);
         settings = run.Settings;
@@ -60,7 +65,7 @@ public static class BackgroundCommand
         var bg = p.Background;
         var inv = CultureInfo.InvariantCulture;
         void Line(string name, string value) => output.WriteLine(string.Format(inv, "  {0,-26} {1}", name, value));
-        output.WriteLine(settings.Model.Describe());
+        output.WriteLine(TextSafety.Printable(settings.Model.Describe()));
         Line("N_total", string.Format(inv, "{0:F4}", p.NTotal));
         Line("end of inflation", bg.EndedAtPhiEnd
             ? string.Format(inv, "phi_end = {0:G8} (set by hand)", settings.Model.PhiEnd)

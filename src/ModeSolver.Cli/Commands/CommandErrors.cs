@@ -9,7 +9,7 @@ namespace ModeSolver.Cli.Commands;
 
 /// <summary>
 /// Maps exceptions to exit codes with one line on stderr: 2 for bad user input (deck, formula, option, range,
-/// an output directory that cannot be written), 3 for physics that cannot be computed, 1 for anything else
+/// an output directory that cannot be written, standard output or error that cannot be written), 3 for physics that cannot be computed, 1 for anything else
 /// (a bug: please report it). Stack traces only with --debug.
 /// </summary>
 internal static class CommandErrors
@@ -26,36 +26,86 @@ internal static class CommandErrors
     /// <summary>Runs <paramref name="body"/> and turns its failures into exit codes and one-line messages.</summary>
     public static int Guard(Func<int> body)
     {
+        ArgumentNullException.ThrowIfNull(body);
         try
         {
             return body();
         }
-        catch (Exception e) when (e is DeckException or TheoryException or FormulaException or KeyNotFoundException or OutputException)
+        catch (Exception raw) when (!CliApp.Debug || Classify(Unwrap(raw).Error) != InternalError || Unwrap(raw).Error is OperationCanceledException)
         {
-            string msg = e is KeyNotFoundException k ? k.Message.Trim('\'', '"') : e.Message;
-            return Report(e, msg, UserError);
-        }
-        catch (Exception e) when (e is PhysicsException or IntegrationException)
-        {
-            string msg = e is IntegrationException ie
-                ? $"the integration could not go on at t = {ie.T:G8}: {ie.Message}"
-                : e.Message;
-            return Report(e, msg, PhysicsError);
-        }
-        catch (OperationCanceledException e)
-        {
-            return Report(e, "interrupted", InternalError);
-        }
-        catch (Exception e) when (!CliApp.Debug)
-        {
-            return Report(e, $"internal error ({e.GetType().Name}): {e.Message} (run again with --debug for details)", InternalError);
+            var (e, warnings) = Unwrap(raw);
+            int code = Classify(e);
+            string msg = e switch
+            {
+                KeyNotFoundException k => k.Message.Trim('\'', '"'),
+                IntegrationException ie => $"the integration could not go on at t = {ie.T:G8}: {ie.Message}",
+                OperationCanceledException => "interrupted",
+                _ when code == InternalError => $"internal error ({e.GetType().Name}): {e.Message} (run again with --debug for details)",
+                _ => e.Message,
+            };
+            // One line always: warnings found before the failure go onto the error's line.
+            foreach (string w in warnings) msg += "; warning: " + w;
+            return Report(e, msg, code);
         }
     }
 
+    /// <summary>
+    /// Runs a command body whose settings carry <paramref name="warnings"/>: on success the warnings are printed to
+    /// <paramref name="error"/> afterwards, one line each; on failure they join the error's single line.
+    /// </summary>
+    public static int WithWarnings(IReadOnlyList<string> warnings, TextWriter error, Func<int> body)
+    {
+        ArgumentNullException.ThrowIfNull(warnings);
+        ArgumentNullException.ThrowIfNull(error);
+        ArgumentNullException.ThrowIfNull(body);
+        int code;
+        try
+        {
+            code = body();
+        }
+        catch (Exception e) when (warnings.Count > 0 && e is not StandardStreamException)
+        {
+            throw new WarnedFailure(e, warnings);
+        }
+        foreach (string w in warnings) error.WriteLine("modesolver: warning: " + TextSafety.Printable(w));
+        return code;
+    }
+
+    /// <summary>A failure with the warnings that preceded it (folded into one line by <see cref="Guard"/>).</summary>
+    private sealed class WarnedFailure(Exception inner, IReadOnlyList<string> warnings) : Exception(inner.Message, inner)
+    {
+        public IReadOnlyList<string> Warnings { get; } = warnings;
+    }
+
+    private static (Exception Error, IReadOnlyList<string> Warnings) Unwrap(Exception e)
+    {
+        IReadOnlyList<string> warnings = [];
+        while (true)
+        {
+            e = OutputTransaction.Innermost(e);
+            if (e is WarnedFailure w) { warnings = w.Warnings; e = w.InnerException!; }
+            else return (e, warnings);
+        }
+    }
+
+    private static int Classify(Exception e) => e switch
+    {
+        DeckException or TheoryException or FormulaException or KeyNotFoundException or OutputException or StandardStreamException => UserError,
+        PhysicsException or IntegrationException => PhysicsError,
+        _ => InternalError,
+    };
+
     private static int Report(Exception e, string message, int code)
     {
-        Console.Error.WriteLine("modesolver: " + OneLine(message));
-        if (CliApp.Debug) Console.Error.WriteLine(e.ToString());
+        try
+        {
+            Console.Error.WriteLine("modesolver: " + TextSafety.Printable(message));
+            if (CliApp.Debug) Console.Error.WriteLine(e.ToString());
+        }
+        catch (StandardStreamException)
+        {
+            // Standard error itself cannot be written: the exit code is all that is left to tell.
+        }
         return code;
     }
 

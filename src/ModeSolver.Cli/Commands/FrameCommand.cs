@@ -39,24 +39,27 @@ public static class FrameCommand
             if (RunOptions.Value(parse, phiEndOpt) is string pe) input.PhiEnd = new(RunOptions.ParseNumber(pe, "--phi-end"), "--phi-end");
             if (input.ModelId is null && input.Potential is null)
                 throw new DeckException("frame needs a model: --model ID or --potential EXPR", "--model");
-            var spec = ResolveModel(input, out double? phi0);
-            double? lo = RunOptions.Value(parse, phiMin) is string a ? RunOptions.ParseNumber(a, "--phi-min") : null;
-            double? hi = RunOptions.Value(parse, phiMax) is string b ? RunOptions.ParseNumber(b, "--phi-max") : null;
-            int n = 400;
-            if (RunOptions.Value(parse, points) is string p)
+            var spec = ResolveModel(input, out double? phi0, out var warnings);
+            return CommandErrors.WithWarnings(warnings, Console.Error, () =>
             {
-                if (!int.TryParse(p.Trim(), NumberStyles.Integer, CultureInfo.InvariantCulture, out n) || n < 2 || n > 1_000_000)
-                    throw new DeckException($"--points expects a whole number from 2 to 1000000 (got '{p}')", "--points");
-            }
-            string dir = RunOptions.Value(parse, outDir) ?? "frame-out";
-            Write(spec, phi0, lo, hi, n, dir);
-            Console.Out.WriteLine($"wrote {string.Join(", ", OutputFiles)} to {dir}");
-            return 0;
+                double? lo = RunOptions.Value(parse, phiMin) is string a ? RunOptions.ParseNumber(a, "--phi-min") : null;
+                double? hi = RunOptions.Value(parse, phiMax) is string b ? RunOptions.ParseNumber(b, "--phi-max") : null;
+                int n = 400;
+                if (RunOptions.Value(parse, points) is string p)
+                {
+                    if (!int.TryParse(p.Trim(), NumberStyles.Integer, CultureInfo.InvariantCulture, out n) || n < 2 || n > 1_000_000)
+                        throw new DeckException($"--points expects a whole number from 2 to 1000000 (got '{p}')", "--points");
+                }
+                string dir = RunOptions.Value(parse, outDir) ?? "frame-out";
+                Write(spec, phi0, lo, hi, n, dir);
+                Console.Out.WriteLine(TextSafety.Printable($"wrote {string.Join(", ", OutputFiles)} to {dir}"));
+                return 0;
+            });
         }));
         return cmd;
     }
 
-    private static ModelSpec ResolveModel(RunInput input, out double? phi0)
+    private static ModelSpec ResolveModel(RunInput input, out double? phi0, out IReadOnlyList<string> warnings)
     {
         // Reuse the full resolver for model validation (parameters, formulas); a start value is needed by it, so a
         // formula model without --phi0 gets a neutral one here only when the range is given explicitly.
@@ -66,11 +69,12 @@ public static class FrameCommand
             probe.Phi0 = new(0.0, "--phi0");
             var spec = ResolveModelOnly(probe);
             phi0 = null;
+            warnings = [];
             return spec;
         }
         var settings = SettingsResolver.Resolve(input);
         phi0 = settings.Initial.Phi0;
-        foreach (string w in settings.Warnings) Console.Error.WriteLine("modesolver: warning: " + w);
+        warnings = settings.Warnings;
         return settings.Model;
     }
 

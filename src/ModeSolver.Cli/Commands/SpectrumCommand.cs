@@ -55,21 +55,26 @@ public static class SpectrumCommand
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(output);
         ArgumentNullException.ThrowIfNull(error);
+        return CommandErrors.WithWarnings(settings.Warnings, error, () => RunAndWrite(settings, run, output, error));
+    }
+
+    private static int RunAndWrite(RunSettings settings, SpectrumInvocation run, TextWriter output, TextWriter error)
+    {
         bool tableOnly = run.TablePath is not null;
         bool progress = !run.Quiet && !Console.IsErrorRedirected && ReferenceEquals(error, Console.Error);
-        foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + w);
 
         var pipelineOptions = new PipelineOptions
         {
             Threads = run.Threads,
             Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null,
         };
-        if (!tableOnly) OutputTransaction.Precheck(settings.Output.Directory);
+        var files = tableOnly ? [] : OutputFiles(settings.Output.Formats);
+        if (!tableOnly) OutputTransaction.Precheck(settings.Output.Directory, files.Select(f => f.FileName));
         else if (run.TablePath != "-")
         {
             if (string.IsNullOrWhiteSpace(run.TablePath) || Path.GetFileName(run.TablePath).Length == 0 || Directory.Exists(run.TablePath))
                 throw new DeckException($"--table expects a file path or '-' (got '{run.TablePath}', which names a directory)", "--table");
-            OutputTransaction.Precheck(Path.GetDirectoryName(Path.GetFullPath(run.TablePath))!);
+            RunOutputs.PrecheckTable(run.TablePath!);
         }
         var report = SpectrumPipeline.Run(settings, pipelineOptions);
 
@@ -80,16 +85,21 @@ public static class SpectrumCommand
                 PrimordialTableWriter.Write(report, output);
                 output.Flush();
             }
-            else
-            {
-                string full = Path.GetFullPath(run.TablePath!);
-                string dir = Path.GetDirectoryName(full)!;
-                RunOutputs.WriteAll(report, dir, [new OutputFile(Path.GetFileName(full), (r, p) => PrimordialTableWriter.Write(r, p))]);
-            }
+            else RunOutputs.WriteTable(report, run.TablePath!);
             return 0;
         }
 
-        var formats = settings.Output.Formats;
+        var written = RunOutputs.WriteAll(report, settings.Output.Directory, files);
+
+        bool plain = !ReferenceEquals(output, Console.Out) || Console.IsOutputRedirected;
+        SummaryPrinter.Print(report, output, plain);
+        output.WriteLine();
+        output.WriteLine(TextSafety.Printable($"Wrote {written.Count} files to {settings.Output.Directory}: {string.Join(", ", written.Select(Path.GetFileName))}"));
+        return 0;
+    }
+
+    private static List<OutputFile> OutputFiles(IReadOnlyList<string> formats)
+    {
         var files = new List<OutputFile>();
         if (formats.Contains("json")) files.Add(RunOutputs.Json);
         if (formats.Contains("hdf5")) files.Add(RunOutputs.Hdf5);
@@ -99,13 +109,7 @@ public static class SpectrumCommand
             files.Add(RunOutputs.SpectraPng); files.Add(RunOutputs.SpectraSvg);
             files.Add(RunOutputs.BackgroundPng); files.Add(RunOutputs.BackgroundSvg);
         }
-        var written = RunOutputs.WriteAll(report, settings.Output.Directory, files);
-
-        bool plain = !ReferenceEquals(output, Console.Out) || Console.IsOutputRedirected;
-        SummaryPrinter.Print(report, output, plain);
-        output.WriteLine();
-        output.WriteLine($"Wrote {written.Count} files to {settings.Output.Directory}: {string.Join(", ", written.Select(Path.GetFileName))}");
-        return 0;
+        return files;
     }
 
     /// <summary>
@@ -116,8 +120,8 @@ public static class SpectrumCommand
     {
         ArgumentNullException.ThrowIfNull(settings);
         var theory = TheoryFactory.Build(settings);
-        foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + w);
-        output.WriteLine(settings.Summary());
+        foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + TextSafety.Printable(w));
+        output.WriteLine(TextSafety.Printable(settings.Summary()));
         var (lo, hi) = theory.ValidRange;
         if (double.IsFinite(lo) || double.IsFinite(hi))
             output.WriteLine(FormattableString.Invariant($"The theory is valid for {Bound(lo)} < phi < {Bound(hi)}."));

@@ -47,7 +47,7 @@ public static class SummaryPrinter
         var border = plain ? TableBorder.Ascii : TableBorder.Rounded;
 
         var m = report.Model;
-        console.MarkupLine($"[bold]{Markup.Escape(m.Id)}[/] ({Markup.Escape(m.Frame.Code())}): {Markup.Escape(m.Description)}");
+        console.MarkupLine($"[bold]{Markup.Escape(TextSafety.Printable(m.Id))}[/] ({Markup.Escape(m.Frame.Code())}): {Markup.Escape(TextSafety.Printable(m.Description))}");
         console.MarkupLine(Markup.Escape(string.Create(Inv, $"pivot k_* = {p.KPivot:G6} /Mpc, amplitude: {report.AmplitudeMethod}")));
 
         var table = new Table().Border(border);

@@ -1,4 +1,5 @@
 using System.Globalization;
+using System.Text;
 using Tomlyn;
 using Tomlyn.Model;
 using Tomlyn.Serialization;
@@ -33,22 +34,51 @@ public static class DeckReader
 
     private static readonly string[] TopLevelKeys = ["title"];
 
+    /// <summary>The largest deck accepted, 1 MiB: decks are short text files; anything larger is refused before it is read whole.</summary>
+    public const int MaxDeckBytes = 1 << 20;
+
     /// <summary>Reads the deck at <paramref name="path"/>.</summary>
-    /// <exception cref="DeckException">unreadable file, TOML syntax error, unknown key, wrong type.</exception>
+    /// <exception cref="DeckException">unreadable file, too large, not UTF-8, TOML syntax error, unknown key, wrong type.</exception>
     public static RunInput Read(string path)
     {
-        string text;
+        var input = Parse(ReadText(path), path);
+        input.DeckPath = path;
+        return input;
+    }
+
+    /// <summary>
+    /// The text of a deck file, at most <see cref="MaxDeckBytes"/> bytes of UTF-8 (a byte-order mark is skipped). Reads
+    /// no more than one byte past the limit, so an endless source (a device, a pipe) is refused in one line.
+    /// </summary>
+    /// <exception cref="DeckException">unreadable, too large, or not UTF-8.</exception>
+    public static string ReadText(string path)
+    {
+        ArgumentNullException.ThrowIfNull(path);
+        byte[] buffer = new byte[MaxDeckBytes + 1];
+        int length = 0;
         try
         {
-            text = File.ReadAllText(path);
+            if (Directory.Exists(path)) throw new IOException("it is a directory");
+            using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.ReadWrite, 1, FileOptions.SequentialScan);
+            int n;
+            while (length < buffer.Length && (n = stream.Read(buffer, length, buffer.Length - length)) > 0) length += n;
         }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException or ArgumentException or NotSupportedException)
         {
             throw new DeckException(DeckErrors.OneLine($"{path}: cannot read the deck: {e.Message}"), null, path);
         }
-        var input = Parse(text, path);
-        input.DeckPath = path;
-        return input;
+        if (length > MaxDeckBytes)
+            throw new DeckException($"{path}: the deck is larger than {MaxDeckBytes / (1 << 20)} MiB ({MaxDeckBytes} bytes); a deck is a short text file", null, path);
+        int start = length >= 3 && buffer[0] == 0xEF && buffer[1] == 0xBB && buffer[2] == 0xBF ? 3 : 0;
+        try
+        {
+            return new UTF8Encoding(false, throwOnInvalidBytes: true).GetString(buffer, start, length - start);
+        }
+        catch (DecoderFallbackException e)
+        {
+            string at = e.Index >= 0 ? $" at byte {e.Index + start}" : "";
+            throw new DeckException($"{path}: the deck is not UTF-8 text{at}; decks are TOML, which is UTF-8", null, path);
+        }
     }
 
     /// <summary>Parses deck text; <paramref name="sourceName"/> is used in messages.</summary>
@@ -59,9 +89,11 @@ public static class DeckReader
         TomlTable root;
         try
         {
-            // Strict syntax pass with semantic validation first: it rejects what the deserializer lets through
-            // (a key defined twice, a table defined twice).
-            _ = Tomlyn.Parsing.SyntaxParser.ParseStrict(text, sourceName, validate: true);
+            // Strict syntax pass first, then the define-once rules the deserializer lets through (a key defined
+            // twice, a table defined twice). Those are checked by DeckKeys, comparing the keys themselves: Tomlyn's
+            // own validation compares them by hash and reports false duplicates in large decks.
+            var syntax = Tomlyn.Parsing.SyntaxParser.ParseStrict(text, sourceName, validate: false);
+            DeckKeys.Check(syntax, sourceName);
             root = DeckToml.Parse(text, options);
         }
         catch (TomlException e)

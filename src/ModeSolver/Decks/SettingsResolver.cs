@@ -8,8 +8,11 @@ namespace ModeSolver.Decks;
 /// <summary>Turns <see cref="RunInput"/> (deck merged with command line) into validated <see cref="RunSettings"/>.</summary>
 public static class SettingsResolver
 {
-    /// <summary>Smallest accepted reheating temperature, GeV (a few MeV for nucleosynthesis, common practice).</summary>
-    public const double MinReheatingTemperatureGeV = 4e-3;
+    /// <summary>Smallest accepted reheating temperature, GeV: the one limit the matching stage also applies (a few MeV for nucleosynthesis, common practice).</summary>
+    public const double MinReheatingTemperatureGeV = Matching.ReheatingHistory.MinimumTemperatureGeV;
+
+    /// <summary>Smallest accepted modes tolerance: below it the mode integration reaches double-precision round-off.</summary>
+    public const double MinTolerance = 1e-12;
 
     /// <summary>Reads, merges and resolves: the deck at <paramref name="deckPath"/> (if any) overridden by <paramref name="overrides"/>.</summary>
     public static RunSettings Load(string? deckPath, RunInput? overrides = null)
@@ -193,7 +196,9 @@ public static class SettingsResolver
         double tol = kd.Tolerance;
         if (input.Tolerance is { } tt)
         {
-            if (!(tt.Value > 0 && tt.Value < 0.1)) throw tt.Error($"must lie in (0, 0.1), e.g. 1e-5 (got {tt.Value})");
+            // Below MinTolerance the mode integrator's step tolerance (tolerance/6) nears the 1e-15 round-off floor
+            // and the run fails after minutes instead of at once.
+            if (!(tt.Value >= MinTolerance && tt.Value < 0.1)) throw tt.Error($"must lie in (0, 0.1), at least {MinTolerance:G3} (the double-precision limit of the modes), e.g. 1e-5 (got {tt.Value})");
             tol = tt.Value;
         }
         var kRange = new KRangeSpec(kMin, kMax, (int)count, tol) { KMinIsDefault = input.KMin is null };

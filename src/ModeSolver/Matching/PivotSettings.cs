@@ -29,8 +29,8 @@ public sealed record ReheatingHistory
     /// <summary>Reheating with equation of state w lasting N_reh e-folds.</summary>
     public static ReheatingHistory WithEFolds(double w, double nReh) => new() { W = w, NReh = nReh };
 
-    /// <summary>Lowest reheating temperature accepted, 1e-2 GeV (nucleosynthesis needs a few MeV; common practice).</summary>
-    public const double MinimumTemperatureGeV = 1e-2;
+    /// <summary>Lowest reheating temperature accepted, 4e-3 GeV (nucleosynthesis needs a few MeV; common practice). The deck check uses this same value.</summary>
+    public const double MinimumTemperatureGeV = 4e-3;
 }
 
 /// <summary>How to place the pivot and normalise the potential.</summary>

@@ -67,6 +67,7 @@ public static class PrimordialTableWriter
     /// </summary>
     public static double[] LogGrid(double kMin, double kMax, int pointsPerDecade = DefaultPointsPerDecade)
     {
+        if (kMin > 0 && kMin == kMax && double.IsFinite(kMax)) return [kMin]; // one wavenumber asked for: one row
         if (!(kMin > 0) || !(kMax > kMin) || !double.IsFinite(kMax))
             throw new ArgumentException($"table k range must satisfy 0 < k_min < k_max, got [{kMin.ToString("R", Inv)}, {kMax.ToString("R", Inv)}]");
         if (pointsPerDecade < 1)
@@ -84,5 +85,5 @@ public static class PrimordialTableWriter
     /// <summary>Default table density: 50 points per decade in k.</summary>
     public const int DefaultPointsPerDecade = 50;
 
-    private static string OneLine(string s) => s.Replace('\r', ' ').Replace('\n', ' ');
+    private static string OneLine(string s) => TextSafety.Printable(s);
 }

@@ -53,4 +53,53 @@ public static class RunOutputs
             tx.Stage(f.FileName, path => f.Write(report, path));
         return tx.Commit();
     }
+
+    /// <summary>
+    /// Where <c>--table PATH</c> goes, checked before a long run (touches nothing): a character device or named pipe is
+    /// written to directly (true); a missing path or a regular file (or a link to one) is written all-or-nothing
+    /// (false); anything else (a directory, socket, block device, dangling link) is refused with an
+    /// <see cref="OutputException"/>.
+    /// </summary>
+    public static bool PrecheckTable(string path)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(path);
+        string full = Path.GetFullPath(path);
+        var kind = FileKinds.Of(full);
+        if (FileKinds.IsStreamed(kind)) return true;
+        if (kind == FileKind.Directory)
+            throw new OutputException($"--table {path} is a directory; give a file path, or '-' for standard output");
+        OutputTransaction.Precheck(Path.GetDirectoryName(full)!, [Path.GetFileName(full)]);
+        return false;
+    }
+
+    /// <summary>
+    /// Writes only the primordial table to <paramref name="path"/>: streamed into a character device or named pipe
+    /// (nothing is created, renamed or deleted there), else all-or-nothing through <see cref="OutputTransaction"/>.
+    /// Throws <see cref="OutputException"/> with a one-line message on failure.
+    /// </summary>
+    /// <returns>The path written.</returns>
+    public static string WriteTable(RunReport report, string path)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        RunReportChecks.Validate(report);
+        string full = Path.GetFullPath(path);
+        if (!PrecheckTable(full))
+        {
+            using var tx = new OutputTransaction(Path.GetDirectoryName(full)!);
+            tx.Stage(Path.GetFileName(full), p => PrimordialTableWriter.Write(report, p));
+            return tx.Commit()[0];
+        }
+        try
+        {
+            using var stream = new FileStream(full, FileMode.Open, FileAccess.Write, FileShare.ReadWrite, 1 << 16);
+            using var writer = new StreamWriter(stream, new System.Text.UTF8Encoding(false)) { NewLine = "\n" };
+            PrimordialTableWriter.Write(report, writer);
+            writer.Flush();
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new OutputException($"cannot write the table to {full} ({FileKinds.Describe(FileKinds.Of(full))}): {OutputTransaction.Reason(e)}", e);
+        }
+        return full;
+    }
 }

@@ -103,8 +103,8 @@ public class PivotMatcherTests
         Assert.Contains("Fewer e-folds than N_* needs", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(shortBg, new PivotSettings(), amp)).Message);
         Assert.Contains("outside the range the background serves", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal - 1 }, amp)).Message);
         Assert.Contains("w = -0.5 is outside", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(-0.5, 1e9) })).Message);
-        Assert.Contains("below 0.01 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e-3) })).Message);
+        Assert.Contains("below 0.004 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e-3) })).Message);
         Assert.Contains("above the temperature at the end of inflation", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e18) })).Message);
-        Assert.Contains("below 0.01 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithEFolds(0, 200) })).Message);
+        Assert.Contains("below 0.004 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithEFolds(0, 200) })).Message);
     }
 }
