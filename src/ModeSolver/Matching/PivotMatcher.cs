@@ -8,7 +8,8 @@ namespace ModeSolver.Matching;
 /// Places the pivot k_* on the background and normalises the potential (physics.md section 5):
 /// N_* = ln(H_*/k_*) - N_reh + ln a_reh with H_* in 1/Mpc, N_reh = ln(rho_end/rho_reh)/(3(1+w)),
 /// a_reh = (g_s0/g_s,reh)^(1/3) T_0/T_reh, rho_reh = (pi^2/30) g_reh T_reh^4, rho_end = 3 H_end^2.
-/// N_* and the V scale are iterated together to a fixed point (P_s is exactly proportional to the V scale at fixed N_*).
+/// P_s is exactly proportional to the V scale at fixed N_*, so with N_* given the normalisation is one rescaling; with
+/// N_* from reheating (which depends on H_* and rho_end, hence on the scale) N_* is the bracketed root of one equation.
 /// </summary>
 public static class PivotMatcher
 {
@@ -31,70 +32,97 @@ public static class PivotMatcher
         double nTotal = background.NTotal;
         double nEnd = background.NEnd;
         double s = background.VScale;
-        double nStar = settings.EFolds ?? Math.Min(settings.InitialEFolds, 0.9 * nTotal);
         if (settings.EFolds is double given && (!(given > 0) || given > nTotal))
-            throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {given:G6}; start the field further up the potential (phi0) or lower N_*.");
+            throw new PhysicsException(given > 0
+                ? $"Only {nTotal:G6} e-folds of inflation before the end, N_* = {given:G6} needs more; start the field further up the potential (phi0) or lower N_*."
+                : $"N_* = {given:G6} is not positive; give the e-folds between the pivot's horizon exit and the end of inflation (> 0).");
 
         double lnKStar = Math.Log(settings.KPivot);
-        double nReh = double.NaN, tReh = double.NaN, rhoEnd = double.NaN, psPivot = double.NaN;
+        double phi0 = background.At(background.NStart).Phi;
         int iterations = 0;
-        bool converged = false;
-        int clamped = 0;
-        while (iterations < settings.MaxIterations)
+        double sAt = s, psPivot = double.NaN;
+
+        // The V scale that normalises the pivot placed N_* = x before the end: P_s is exactly proportional to the V scale
+        // at fixed N (the shape of the background does not depend on it), so this is one amplitude evaluation and one
+        // rescaling. Sets sAt and psPivot.
+        double normalisedAt = double.NaN;
+        void Normalise(double x)
         {
-            iterations++;
-            double nPiv = nEnd - nStar;
-            if (nPiv < background.NStart)
-            {
-                if (++clamped >= 3)
-                    throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but the reheating history asks for N_* = {nStar:G6} (phi0 = {background.At(background.NStart).Phi:G6}); start the field further up the potential.");
-                nPiv = background.NStart;
-            }
+            double nPiv = nEnd - x;
+            if (settings.ScalarAmplitude is not double target) { sAt = s; return; }
+            if (x == normalisedAt) return;
+            if (++iterations > settings.MaxIterations)
+                throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} amplitude evaluations (last N_* = {x:G8}, V scale = {sAt:G6}); give N_* directly or check the amplitude provider.");
             var bgs = background.WithVScale(s);
             var pt = bgs.At(nPiv);
-            double ratio = 1.0;
-            if (settings.ScalarAmplitude is double target)
+            double kbg = Math.Exp(nPiv) * pt.H;
+            double ps;
+            try
             {
-                double kbg = Math.Exp(nPiv) * pt.H;
-                try
-                {
-                    psPivot = amplitude.ScalarPower(bgs, kbg);
-                }
-                catch (PhysicsException e) when (nPiv > 600)
-                {
-                    throw new PhysicsException($"The pivot lies {nPiv:G6} e-folds after the start of the background (phi0 = {background.At(background.NStart).Phi:G6}): more than about 600 e-folds before the pivot exceed the floating-point range of a = exp(N); start the field closer to the end of inflation (phi0).", e);
-                }
-                catch (PhysicsException e)
-                {
-                    throw new PhysicsException($"The pivot mode (N_* = {nStar:G6}, at N = {nPiv:G8}, phi = {pt.Phi:G6}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
-                }
-                if (!(psPivot > 0) || !double.IsFinite(psPivot))
-                    throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {psPivot} at the pivot (N = {nPiv:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
-                ratio = target / psPivot;
-                s *= ratio;
-                bgs = background.WithVScale(s);
-                pt = bgs.At(nPiv);
-                psPivot = target;
+                ps = amplitude.ScalarPower(bgs, kbg);
             }
-            if (!fromReheating)
+            catch (PhysicsException e)
             {
-                if (Math.Abs(ratio - 1) < 1e-10) { converged = true; break; }
-                continue;
+                throw new PhysicsException($"The pivot mode (N_* = {x:G6}, {nPiv - background.NStart:G8} e-folds after the start, phi = {pt.Phi:G6}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
             }
-            double hEnd = bgs.At(nEnd).H;
-            rhoEnd = 3 * hEnd * hEnd;
-            (nReh, tReh) = Reheat(reh, rhoEnd, settings);
-            double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
-            double lnHMpc = Math.Log(pt.H) + LnMplInMpc;
-            double next = lnHMpc - lnKStar - nReh + lnAReh;
-            double delta = next - nStar;
-            nStar = next;
-            if (Math.Abs(delta) < settings.Tolerance && Math.Abs(ratio - 1) < 1e-8) { converged = true; break; }
+            if (!(ps > 0) || !double.IsFinite(ps))
+                throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {ps} at the pivot (N_* = {x:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
+            sAt = s * (target / ps);
+            psPivot = target;
+            normalisedAt = x;
         }
-        if (!converged)
-            throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} iterations (last N_* = {nStar:G8}, V scale = {s:G6}); give N_* directly or check the amplitude provider.");
+
+        double nStar;
+        if (!fromReheating)
+        {
+            nStar = settings.EFolds!.Value;
+            Normalise(nStar);
+            s = sAt;
+        }
+        else
+        {
+            // N_* from the reheating history depends on H_* and rho_end, hence on the V scale that normalises the pivot:
+            // the root of g(x) = N_*(reheating; x, V scale(x)) - x, bracketed and then solved by Roots.Bracketed.
+            double G(double x)
+            {
+                Normalise(x);
+                var bgs = background.WithVScale(sAt);
+                double hEnd = bgs.At(nEnd).H;
+                var (nReh, tReh) = Reheat(reh, 3 * hEnd * hEnd, settings);
+                double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
+                double lnHMpc = Math.Log(bgs.At(nEnd - x).H) + LnMplInMpc;
+                return lnHMpc - lnKStar - nReh + lnAReh - x;
+            }
+            string Fewer(double asked) => $"Only {nTotal:G6} e-folds of inflation before the end (phi0 = {phi0:G6}), the reheating history needs N_* = {asked:G4}; start the field further up the potential.";
+            double lowest = Math.Min(1e-3, 0.5 * nTotal);
+            double a = Math.Min(settings.InitialEFolds, 0.9 * nTotal), fa = G(a);
+            double root = a;
+            if (Math.Abs(fa) > 0.1 * settings.Tolerance)
+            {
+                // The map's slope is small (|dN_*/dx| << 1), so the root lies close to a + g(a); widen until the sign changes.
+                double b = a, fb = fa;
+                for (double widen = 1.5; fb * fa > 0; widen *= 2)
+                {
+                    if (widen > 100) throw new PhysicsException(Fewer(a + fa));
+                    double trial = Math.Clamp(a + widen * fa, lowest, nTotal);
+                    if (trial == b)
+                    {
+                        if (fa > 0) throw new PhysicsException(Fewer(a + fa));
+                        throw new PhysicsException($"The reheating history asks for N_* = {a + fa:G6} <= 0: the pivot would leave the horizon after the end of inflation; lower the pivot k or shorten reheating.");
+                    }
+                    b = trial;
+                    try { fb = G(b); }
+                    catch (PhysicsException) when (fa > 0) { throw new PhysicsException(Fewer(a + fa)); }
+                }
+                root = Roots.Bracketed(G, a, b, fa, fb, settings.Tolerance);
+            }
+            nStar = root;
+            Normalise(nStar);
+            s = sAt;
+        }
         if (nStar > nTotal || nStar <= 0)
-            throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {nStar:G6}; start the field further up the potential (phi0).");
+            throw new PhysicsException($"Only {nTotal:G6} e-folds of inflation before the end, N_* needs {nStar:G6}; start the field further up the potential (phi0).");
+        double nReh = double.NaN, tReh = double.NaN, rhoEnd;
 
         var final = background.WithVScale(s);
         double nPivot = nEnd - nStar;
@@ -103,7 +131,7 @@ public static class PivotMatcher
         // The pivot must leave the horizon for the last time at nPivot and have room to start inside it.
         var (kMinServe, _) = final.KRange(settings.PivotStartDepth, 1.0);
         if (!final.TryNAtHorizonExit(kbgStar, out double nExit) || Math.Abs(nExit - nPivot) > 1e-6 || kbgStar < kMinServe)
-            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, at N = {nPivot:G8}, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
+            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, {nPivot - background.NStart:G8} e-folds after the start, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
 
         if (fromReheating)
         {
@@ -119,7 +147,7 @@ public static class PivotMatcher
         }
 
         double lnKUnit = Math.Log(kbgStar) - lnKStar;
-        var (kMin, kMax) = final.KRange(settings.RangeStartDepth, settings.RangeEndDepth);
+        var (lnKMin, lnKMax) = final.LnKRange(settings.RangeStartDepth, settings.RangeEndDepth);
         double vStar = s * final.Theory.Potential(p.Phi).Value;
         return new PivotSolution(
             KPivot: settings.KPivot, NStar: nStar, NPivot: nPivot, VScale: s, LnKUnit: lnKUnit,
@@ -127,7 +155,7 @@ public static class PivotMatcher
             VStarQuarterGeV: Math.Pow(vStar, 0.25) * Constants.ReducedPlanckMassGeV,
             NTotal: nTotal, NReh: fromReheating ? nReh : double.NaN, TRehGeV: fromReheating ? tReh : double.NaN,
             W: fromReheating ? reh.W : double.NaN, RhoEnd: rhoEnd,
-            KMinMpc: kMin * Math.Exp(-lnKUnit), KMaxMpc: kMax * Math.Exp(-lnKUnit),
+            KMinMpc: Math.Exp(lnKMin - lnKUnit), KMaxMpc: Math.Exp(lnKMax - lnKUnit),
             Iterations: iterations, AmplitudeName: settings.ScalarAmplitude is null ? "none" : amplitude.Name,
             PsPivot: settings.ScalarAmplitude is null ? double.NaN : psPivot,
             Background: final, PivotSlowRoll: SlowRoll.AtN(final, nPivot));

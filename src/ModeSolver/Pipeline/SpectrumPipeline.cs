@@ -297,12 +297,13 @@ public static class SpectrumPipeline
         {
             double x = a + (b - a) * i / (count - 1);
             var p = bg.At(x);
-            n[i] = x; phi[i] = p.Phi; dphi[i] = p.DPhi; h[i] = p.H; e1[i] = p.Epsilon1; e2[i] = p.Epsilon2; e3[i] = p.Epsilon3;
+            n[i] = x - a; phi[i] = p.Phi; dphi[i] = p.DPhi; h[i] = p.H; e1[i] = p.Epsilon1; e2[i] = p.Epsilon2; e3[i] = p.Epsilon3;
         }
         double windowStart = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMin), out double w0) ? w0 : bg.NStart;
         double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
-        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd, pivot.NPivot,
-            windowStart, windowEnd, [.. bg.EndCrossings]);
+        // Recorded in e-folds since the start whatever the background's internal origin (long backgrounds count from the end).
+        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd - a, pivot.NPivot - a,
+            windowStart - a, windowEnd - a, [.. bg.EndCrossings.Select(c => c - a)]);
     }
 
     /// <summary>The one warning line of a run whose estimated error exceeds the requested tolerance.</summary>
