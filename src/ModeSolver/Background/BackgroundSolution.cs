@@ -29,6 +29,7 @@ public sealed class BackgroundSolution : IBackground
         public required double[] SegmentStarts { get; init; }
         public required double NEnd { get; init; }
         public required double Origin { get; init; }
+        public required string? ContinuationNote { get; init; }
         public required double[] EndCrossings { get; init; }
         public required double[] RisingCrossings { get; init; }
         public required double[] NonSmoothTimes { get; init; }
@@ -86,6 +87,12 @@ public sealed class BackgroundSolution : IBackground
     /// <inheritdoc/>
     public IReadOnlyList<double> NonSmoothTimes => _shared.NonSmoothTimes;
 
+    /// <summary>
+    /// Null when the continuation after the end of inflation ran as planned; otherwise the one warning line saying where
+    /// and why it stopped (the background then ends there, <see cref="NStop"/>).
+    /// </summary>
+    public string? ContinuationNote => _shared.ContinuationNote;
+
     /// <summary>True when inflation was ended by <see cref="BackgroundSettings.PhiEnd"/> rather than by epsilon_1 = 1.</summary>
     public bool EndedAtPhiEnd => _shared.EndedAtPhiEnd;
 
@@ -118,7 +125,7 @@ public sealed class BackgroundSolution : IBackground
     public double Origin => _shared.Origin;
 
     internal static BackgroundSolution Create(IInflatonTheory theory, List<BackgroundSegment> segments, double nEnd,
-        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd)
+        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd, string? continuationNote)
     {
         double origin = nEnd > LongBackgroundEFolds ? nEnd : 0.0;
         if (origin != 0)
@@ -154,7 +161,7 @@ public sealed class BackgroundSolution : IBackground
 
         var shared0 = new Shared
         {
-            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd, Origin = origin,
+            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd, Origin = origin, ContinuationNote = continuationNote,
             EndCrossings = crossings.ToArray(), RisingCrossings = rising.ToArray(), NonSmoothTimes = nonSmooth.ToArray(),
             EndedAtPhiEnd = endedAtPhiEnd, GridN = gridN.ToArray(), GridPhi = new double[gridN.Count],
             GridEndIndex = endIndex, SuffixMinLnAH = new double[endIndex + 1],

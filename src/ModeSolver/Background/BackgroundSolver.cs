@@ -1,3 +1,4 @@
+using System.Globalization;
 using ModeSolver.Integrators;
 using ModeSolver.Models;
 using ModeSolver.Physics;
@@ -123,6 +124,13 @@ public static class BackgroundSolver
             }
         }
 
+        /// <summary>
+        /// Step budget of each continuation segment after an end of inflation: the planned few e-folds of oscillations
+        /// need thousands of steps; a segment that needs far more is stuck at a singular or non-smooth minimum and only
+        /// ends the continuation (with its warning), so it should not spend the full budget first.
+        /// </summary>
+        private const int ContinuationMaxSteps = 50_000;
+
         private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events)
         {
             var options = new OdeOptions
@@ -131,7 +139,7 @@ public static class BackgroundSolver
                 AbsoluteTolerance = 1e-2 * _s.Tolerance,
                 Events = events,
                 DenseOutput = true,
-                MaxSteps = _s.MaxSteps,
+                MaxSteps = ReferenceEquals(rhs, _regular) ? Math.Min(_s.MaxSteps, ContinuationMaxSteps) : _s.MaxSteps,
                 MaxStep = _s.MaxStep,
             };
             try
@@ -242,7 +250,7 @@ public static class BackgroundSolver
                     case Kind.RangeHigh:
                         throw new PhysicsException($"The field left the theory's valid range at N = {n:G8}, phi = {value:G6}; start elsewhere or set an end field value inside the range.");
                     case Kind.PhiEnd:
-                        return BackgroundSolution.Create(_theory, _segments, n, _crossings, _rising, _nonSmooth, endedAtPhiEnd: true);
+                        return BackgroundSolution.Create(_theory, _segments, n, _crossings, _rising, _nonSmooth, endedAtPhiEnd: true, null);
                     case Kind.Rise:
                         _crossings.Add(n);
                         _rising.Add(n);
@@ -261,7 +269,42 @@ public static class BackgroundSolver
             int idx = _s.EndCrossing >= 0 ? _s.EndCrossing : count + _s.EndCrossing;
             if (idx < 0 || idx >= count)
                 throw new PhysicsException($"The end-crossing choice {_s.EndCrossing} does not exist: epsilon_1 rose through 1 only {count} time(s) (at N = {string.Join(", ", _rising.Select(r => r.ToString("G8")))}); choose an index in range.");
-            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false);
+            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false, _continuationNote);
+        }
+
+        private string? _continuationNote;
+
+        /// <summary>
+        /// Records the continuation up to the last good state of a failed segment (re-integrated to there) and the one
+        /// warning line that says where and why it stopped.
+        /// </summary>
+        private void StopContinuation(double nUp, double n, double[] y, double tEnd, List<EventSpec> specs, IntegrationException failure, bool pending)
+        {
+            double reached = n;
+            if (failure.T > n && failure.T <= tEnd)
+            {
+                try
+                {
+                    var partial = Integrate(_reheating, _regular, n, y, failure.T, specs);
+                    if (partial.Status != OdeStatus.TerminalEvent)
+                    {
+                        AddSegment(n, partial, regular: true);
+                        reached = partial.TFinal;
+                    }
+                }
+                catch (PhysicsException)
+                {
+                    // The background keeps the segments before this one.
+                }
+            }
+            double phi = failure.State.Length > 0 ? failure.State[0] : double.NaN;
+            double dphi = failure.State.Length > 1 ? failure.State[1] : double.NaN;
+            string why = NonFiniteModel(phi, dphi) is { } bad ? $"the model is not finite there ({bad})"
+                : double.IsFinite(phi) && _theory.Potential(phi).Value < 0 ? $"V < 0 there (V = {_theory.Potential(phi).Value:G4}) and the field runs away"
+                : failure.Failure == IntegrationFailure.StepBudgetExhausted ? $"the integration needed more than {ContinuationMaxSteps} steps there (a singular or non-smooth minimum)"
+                : $"the integration broke down ({failure.Failure}; the potential is singular or not smooth there)";
+            _continuationNote = string.Create(CultureInfo.InvariantCulture,
+                $"the continuation after the end of inflation stopped {failure.T - nUp:G3} e-folds after the end (N = {failure.T:G8}, phi = {phi:G6}): {why}; the background is recorded up to N = {reached:G8}{(pending ? " and the last fall of epsilon_1 below 1 is not counted as inflation resuming" : "")}");
         }
 
         /// <summary>Runs past an end; returns whether inflation resumed, with the state (phi, phi') and N to resume from.</summary>
@@ -290,7 +333,18 @@ public static class BackgroundSolver
                 AddKinkEvents(specs, kinds, y[0]);
                 // A pending fall is followed for the whole re-entry window, even past the planned stop.
                 double tEnd = pending ? pendingFall + _s.ReentryEFolds : stop;
-                var sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
+                OdeSolution sol;
+                try
+                {
+                    sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
+                }
+                catch (PhysicsException e) when (e.InnerException is IntegrationException failure)
+                {
+                    // After an end of inflation a breakdown (singular or non-smooth minimum, V < 0, a NaN domain) ends only
+                    // the continuation: keep what was integrated up to the last good state and say so once.
+                    StopContinuation(nUp, n, y, tEnd, specs, failure, pending);
+                    return (false, y, n);
+                }
                 AddSegment(n, sol, regular: true);
                 if (sol.Status != OdeStatus.TerminalEvent)
                 {
@@ -318,6 +372,8 @@ public static class BackgroundSolver
                     case Kind.RangeLow:
                     case Kind.RangeHigh:
                         // Inflation has ended already: the model being undefined further on only cuts the continuation short.
+                        _continuationNote = string.Create(CultureInfo.InvariantCulture,
+                            $"the continuation after the end of inflation stopped {n - nUp:G3} e-folds after the end (N = {n:G8}) where the field left the theory's valid range at phi = {value:G6}; the background is recorded up to there");
                         return (false, y, n);
                     case Kind.Fall:
                         pendingFall = n;

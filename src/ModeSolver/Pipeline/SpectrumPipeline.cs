@@ -142,6 +142,7 @@ public static class SpectrumPipeline
             ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [kPivotBg] : [],
         };
         var warnings = new List<string>(settings.Warnings);
+        if (bg.ContinuationNote is string stopped) warnings.Add(stopped);
         if (kr.KMinIsDefault)
         {
             // The default k_min reaches 1e-6 /Mpc when the background serves it; otherwise the run starts where it can.
