@@ -222,16 +222,14 @@ public static class BackgroundSolver
                 }
                 AddRangeEvents(specs, kinds);
                 AddKinkEvents(specs, kinds, y[0]);
-                if (!(_s.MaxEFolds > n))
-                    throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (reached N = {n:G8}, phi = {y[0]:G6}); raise the e-fold limit, start nearer the end, or set an end field value.");
+                if (!(_s.MaxEFolds > n)) throw NeverEnds(n, y);
                 var sol = Integrate(_inflation, _constrained, n, y, _s.MaxEFolds, specs);
                 AddSegment(n, sol, regular: false);
                 foreach (var ev in sol.Events)
                     if (kinds[ev.EventIndex].Kind == Kind.Fall && ev.T > n) _crossings.Add(ev.T);
                 if (sol.Status != OdeStatus.TerminalEvent)
                 {
-                    var yf = sol.FinalState;
-                    throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (at N = {sol.TFinal:G8}, phi = {yf[0]:G6}, epsilon_1 = {E1(yf):G4}); raise the e-fold limit, start nearer the end, or set an end field value.");
+                    throw NeverEnds(sol.TFinal, sol.FinalState);
                 }
                 var last = TerminalEvent(sol, specs);
                 var (kind, value) = kinds[last.EventIndex];
@@ -270,6 +268,21 @@ public static class BackgroundSolver
             if (idx < 0 || idx >= count)
                 throw new PhysicsException($"The end-crossing choice {_s.EndCrossing} does not exist: epsilon_1 rose through 1 only {count} time(s) (at N = {string.Join(", ", _rising.Select(r => r.ToString("G8")))}); choose an index in range.");
             return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false, _continuationNote);
+        }
+
+        /// <summary>
+        /// The error of a background that is still inflating at the e-fold limit: a field that has come to rest where V > 0
+        /// and V_phi = 0 is trapped in a false minimum (eternal de Sitter); otherwise it is still rolling.
+        /// </summary>
+        private PhysicsException NeverEnds(double n, double[] y)
+        {
+            var v = _theory.Potential(y[0]);
+            double slope = Math.Abs(v.D1 / (_theory.Kinetic(y[0]).Value * v.Value)); // the attractor speed |V_phi/(K V)|
+            if (v.Value > 0 && Math.Abs(y[1]) < 1e-6 && slope < 1e-6)
+                return new PhysicsException(string.Create(CultureInfo.InvariantCulture,
+                    $"The field is trapped in a false minimum at phi = {y[0]:G6} (V = {v.Value:G4} > 0, V_phi = {v.D1:G3}) (at rest there at N = {n:G6}): inflation never ends; start on the other side of the barrier, change the potential, or end inflation by hand before it (phi_end)."));
+            return new PhysicsException(string.Create(CultureInfo.InvariantCulture,
+                $"Inflation does not end within {_s.MaxEFolds:G6} e-folds, the largest background computed (still inflating at phi = {y[0]:G6}, epsilon_1 = {E1(y):G4}); start nearer the end (phi0 or start.efolds) or end inflation by hand (phi_end)."));
         }
 
         private string? _continuationNote;

@@ -1,3 +1,4 @@
+using System.Globalization;
 using ModeSolver.Background;
 using ModeSolver.Diagnostics;
 using ModeSolver.Physics;
@@ -56,6 +57,10 @@ public static class PivotMatcher
             var bgs = background.WithVScale(s);
             var pt = bgs.At(nPiv);
             double kbg = Math.Exp(nPiv) * pt.H;
+            var (kMinServed, _) = bgs.KRange(settings.PivotStartDepth, 1.0);
+            if (kbg < kMinServed)
+                throw new PhysicsException(string.Create(CultureInfo.InvariantCulture,
+                    $"Only {nPiv - background.NStart:G4} e-folds of inflation before the pivot leaves the horizon (N_* = {x:G6} of N_total = {nTotal:G6}, phi0 = {phi0:G6}): the pivot mode must start at least {settings.PivotStartDepth:G3} times inside the horizon, about {Math.Log(settings.PivotStartDepth):G2} e-folds earlier; start the field further up the potential (phi0) or lower N_*."));
             double ps;
             try
             {
@@ -93,9 +98,11 @@ public static class PivotMatcher
                 double lnHMpc = Math.Log(bgs.At(nEnd - x).H) + LnMplInMpc;
                 return lnHMpc - lnKStar - nReh + lnAReh - x;
             }
-            string Fewer(double asked) => $"Only {nTotal:G6} e-folds of inflation before the end (phi0 = {phi0:G6}), the reheating history needs N_* = {asked:G4}; start the field further up the potential.";
+            string Fewer(double asked) => string.Create(CultureInfo.InvariantCulture,
+                $"Only {nTotal:G6} e-folds of inflation before the end (phi0 = {phi0:G6}), the reheating history needs N_* = {asked:G4} and the pivot mode about {Math.Log(settings.PivotStartDepth):G2} more to start inside the horizon; start the field further up the potential.");
             double lowest = Math.Min(1e-3, 0.5 * nTotal);
-            double a = Math.Min(settings.InitialEFolds, 0.9 * nTotal), fa = G(a);
+            // First guess: the usual N_*, or as early as leaves the pivot mode room to start inside the horizon.
+            double a = Math.Min(settings.InitialEFolds, Math.Max(0.5 * nTotal, nTotal - 2 * Math.Log(settings.PivotStartDepth))), fa = G(a);
             double root = a;
             if (Math.Abs(fa) > 0.1 * settings.Tolerance)
             {

@@ -279,9 +279,10 @@ public static class SpectrumPipeline
         double loMpc = pivot.ToInverseMpc(lo), hiMpc = pivot.ToInverseMpc(hi);
         if (s.KMin < lo * (1 + 1e-12) || s.KMax > hi)
             throw new PhysicsException(string.Format(CultureInfo.InvariantCulture,
-                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves, [{2:G4}, {3:G4}] /Mpc; " +
-                "narrow k_min/k_max, or start the field further up the potential (phi0) for smaller k",
-                kr.KMin, kr.KMax, loMpc * 1.0001, hiMpc * 0.9999));
+                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves at tolerance {4:G3}, [{2:G4}, {3:G4}] /Mpc " +
+                "(each mode starts at k/aH = {5:G3} after the background's start and must reach k/aH = {6:G3} by the end of inflation; " +
+                "both depths follow the tolerance); narrow k_min/k_max, or start the field further up the potential (phi0) for smaller k",
+                kr.KMin, kr.KMax, loMpc * 1.0001, hiMpc * 0.9999, s.Tolerance, s.ModeSettings().EffectiveStartDepth, s.ModeSettings().EffectiveStopDepth));
     }
 
     private static SlowRollEstimate Estimate(SlowRollPrediction p) => new(p.Ps, p.Ns, p.R, p.AlphaS, p.Nt);
