@@ -78,7 +78,11 @@ public static class BackgroundSolver
             _inflation = inflation;
             _reheating = reheating;
             _constrained = (t, y, d) => BackgroundEquations.Constrained(theory, Side(y[0]), y, d);
-            _regular = (t, y, d) => BackgroundEquations.Regular(theory, Side(y[0]), y, d);
+            // After the end the field is back where double arithmetic resolves the slope: the continuation evaluates a
+            // double-double Jordan-frame map in plain double (its many fast oscillations would otherwise dominate the run).
+            _after = theory is JordanFrameTheory { IsExtendedPrecision: true } j ? j.WithPlainPrecision() : theory;
+            var after = _after;
+            _regular = (t, y, d) => BackgroundEquations.Regular(after, Side(y[0]), y, d);
         }
 
         // When a segment starts exactly on a kink, V and K are evaluated one ulp to the side the field moves to,
@@ -95,7 +99,11 @@ public static class BackgroundSolver
             _kinkDirection = dphi;
         }
 
+        private readonly IInflatonTheory _after;
+
         private double E1(ReadOnlySpan<double> y) => 0.5 * _theory.Kinetic(y[0]).Value * y[1] * y[1];
+
+        private double E1After(ReadOnlySpan<double> y) => 0.5 * _after.Kinetic(y[0]).Value * y[1] * y[1];
 
         private void AddKinkEvents(List<EventSpec> specs, List<(Kind, double)> kinds, double phiNow)
         {
@@ -125,29 +133,37 @@ public static class BackgroundSolver
         }
 
         /// <summary>
-        /// Step budget of each continuation segment after an end of inflation: the planned few e-folds of oscillations
-        /// need thousands of steps; a segment that needs far more is stuck at a singular or non-smooth minimum and only
-        /// ends the continuation (with its warning), so it should not spend the full budget first.
+        /// Step budget of the whole continuation after an end of inflation (all its segments together): the planned few
+        /// e-folds of oscillations need a few thousand steps; a continuation that needs far more follows very fast
+        /// oscillations (the Palatini map at large xi: omega/H ~ sqrt(xi)) or is stuck at a singular or non-smooth minimum,
+        /// and only ends early (with its warning) instead of spending the run's time there.
         /// </summary>
-        private const int ContinuationMaxSteps = 50_000;
+        public const int ContinuationStepBudget = 10_000;
 
-        private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events)
+        private int _continuationSteps;
+
+        private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events, int? maxSteps = null)
         {
+            bool continuation = ReferenceEquals(rhs, _regular);
+            int budget = maxSteps ?? (continuation ? Math.Max(1, Math.Min(_s.MaxSteps, ContinuationStepBudget - _continuationSteps)) : _s.MaxSteps);
             var options = new OdeOptions
             {
                 RelativeTolerance = _s.Tolerance,
                 AbsoluteTolerance = 1e-2 * _s.Tolerance,
                 Events = events,
                 DenseOutput = true,
-                MaxSteps = ReferenceEquals(rhs, _regular) ? Math.Min(_s.MaxSteps, ContinuationMaxSteps) : _s.MaxSteps,
+                MaxSteps = budget,
                 MaxStep = _s.MaxStep,
             };
             try
             {
-                return method.Solve(new OdeProblem(rhs, t0, y0, tEnd), options);
+                var sol = method.Solve(new OdeProblem(rhs, t0, y0, tEnd), options);
+                if (continuation) _continuationSteps += sol.Statistics.AcceptedSteps + sol.Statistics.RejectedSteps;
+                return sol;
             }
             catch (IntegrationException ex)
             {
+                if (continuation) _continuationSteps += budget;
                 string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
                 if (ex.State.Length >= 2 && NonFiniteModel(ex.State[0], ex.State[1]) is { } bad)
                     throw new PhysicsException($"The background integration broke down at N = {ex.T:G8}, {state}: the model is not finite there ({bad}); the potential or kinetic function is undefined there (e.g. sqrt or log of a negative number): restrict the model or end inflation before it (phi_end).", ex);
@@ -298,7 +314,7 @@ public static class BackgroundSolver
             {
                 try
                 {
-                    var partial = Integrate(_reheating, _regular, n, y, failure.T, specs);
+                    var partial = Integrate(_reheating, _regular, n, y, failure.T, specs, maxSteps: _s.MaxSteps);
                     if (partial.Status != OdeStatus.TerminalEvent)
                     {
                         AddSegment(n, partial, regular: true);
@@ -314,7 +330,7 @@ public static class BackgroundSolver
             double dphi = failure.State.Length > 1 ? failure.State[1] : double.NaN;
             string why = NonFiniteModel(phi, dphi) is { } bad ? $"the model is not finite there ({bad})"
                 : double.IsFinite(phi) && _theory.Potential(phi).Value < 0 ? $"V < 0 there (V = {_theory.Potential(phi).Value:G4}) and the field runs away"
-                : failure.Failure == IntegrationFailure.StepBudgetExhausted ? $"the integration needed more than {ContinuationMaxSteps} steps there (a singular or non-smooth minimum)"
+                : failure.Failure == IntegrationFailure.StepBudgetExhausted ? $"its budget of {ContinuationStepBudget} steps ran out (very fast oscillations, or a singular or non-smooth minimum)"
                 : $"the integration broke down ({failure.Failure}; the potential is singular or not smooth there)";
             _continuationNote = string.Create(CultureInfo.InvariantCulture,
                 $"the continuation after the end of inflation stopped {failure.T - nUp:G3} e-folds after the end (N = {failure.T:G8}, phi = {phi:G6}): {why}; the background is recorded up to N = {reached:G8}{(pending ? " and the last fall of epsilon_1 below 1 is not counted as inflation resuming" : "")}");
@@ -336,11 +352,11 @@ public static class BackgroundSolver
                 bool pending = !double.IsNaN(pendingFall);
                 if (pending)
                 {
-                    specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Rising, Terminal: true, Name: "epsilon1-up")); kinds.Add((Kind.Rise, 1));
+                    specs.Add(new EventSpec((t, s) => E1After(s) - 1.0, EventDirection.Rising, Terminal: true, Name: "epsilon1-up")); kinds.Add((Kind.Rise, 1));
                 }
                 else
                 {
-                    specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Falling, Terminal: true, Name: "epsilon1-down")); kinds.Add((Kind.Fall, 1));
+                    specs.Add(new EventSpec((t, s) => E1After(s) - 1.0, EventDirection.Falling, Terminal: true, Name: "epsilon1-down")); kinds.Add((Kind.Fall, 1));
                 }
                 AddRangeEvents(specs, kinds);
                 AddKinkEvents(specs, kinds, y[0]);
