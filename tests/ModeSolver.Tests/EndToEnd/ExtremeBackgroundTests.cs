@@ -87,6 +87,27 @@ public class ExtremeBackgroundTests
         Assert.InRange(evaluations, 2, 8);
     }
 
+    [Fact]
+    public void PalatiniAtRealisticCouplingsScalesAsSlowRollSays()
+    {
+        // Palatini Higgs-like inflation is V = lambda/(4 xi^2) tanh^4(sqrt(xi) chi) in the canonical field; at fixed
+        // N_* slow roll (physics.md 4c) gives n_s independent of xi and r = 2/(xi N_*^2) up to O(1/(xi phi^2)) (worked out
+        // here from epsilon_V = 32 xi / sinh^2(2 sqrt(xi) chi) and N = sinh^2(sqrt(xi) chi)/(8 xi)). Before, xi >= 1e7
+        // exhausted the step budget: the plateau's slope is below double precision's resolution of V.
+        var (reference, _, _, _) = Background("--model", "higgs-like-palatini", "--param", "xi=1e6", "--efolds", "55", "--phi0", "25");
+        foreach (string xi in new[] { "1e9", "1e12" })
+        {
+            var (exact, _, _, err) = Background("--model", "higgs-like-palatini", "--param", "xi=" + xi, "--efolds", "55", "--phi0", "25");
+            double ratio = double.Parse(xi, CultureInfo.InvariantCulture) / 1e6;
+            Assert.Equal(reference[1], exact[1], 2e-6);                       // n_s
+            Assert.Equal(1.0, exact[2] * ratio / reference[2], 1e-4);         // r xi
+            Assert.Contains("the continuation after the end of inflation stopped", err); // oscillations at omega/H ~ sqrt(xi)
+        }
+        // The catalogue's default start (75 e-folds before the end, found by slow roll) works there too.
+        var (byDefault, _, _, _) = Background("--model", "higgs-like-palatini", "--param", "xi=1e12");
+        Assert.Equal(1.0, byDefault[0] / 2.099e-9, 1e-5);
+    }
+
     [Theory]
     [InlineData("V < 0 there", "--model", "monomial", "--param", "p=1", "--phi0", "16")]
     [InlineData("the model is not finite there", "--model", "monomial", "--param", "p=0.6666667")]
