@@ -107,19 +107,28 @@ public static class PivotMatcher
             if (Math.Abs(fa) > 0.1 * settings.Tolerance)
             {
                 // The map's slope is small (|dN_*/dx| << 1), so the root lies close to a + g(a); widen until the sign changes.
-                double b = a, fb = fa;
-                for (double widen = 1.5; fb * fa > 0; widen *= 2)
+                double b = a, fb = fa, widen = 1.5;
+                for (int attempt = 0; fb * fa > 0; attempt++)
                 {
-                    if (widen > 100) throw new PhysicsException(Fewer(a + fa));
+                    if (widen > 100 || attempt > 20) throw new PhysicsException(Fewer(a + fa));
                     double trial = Math.Clamp(a + widen * fa, lowest, nTotal);
                     if (trial == b)
                     {
                         if (fa > 0) throw new PhysicsException(Fewer(a + fa));
                         throw new PhysicsException($"The reheating history asks for N_* = {a + fa:G6} <= 0: the pivot would leave the horizon after the end of inflation; lower the pivot k or shorten reheating.");
                     }
-                    b = trial;
-                    try { fb = G(b); }
-                    catch (PhysicsException) when (fa > 0) { throw new PhysicsException(Fewer(a + fa)); }
+                    try
+                    {
+                        fb = G(trial);
+                        b = trial;
+                        widen *= 2;
+                    }
+                    catch (PhysicsException) when (fa > 0)
+                    {
+                        // Too early for the pivot mode to start inside the horizon: back off towards the estimate a + g(a).
+                        if (widen <= 1.001) throw new PhysicsException(Fewer(a + fa));
+                        widen = 1 + 0.25 * (widen - 1);
+                    }
                 }
                 root = Roots.Bracketed(G, a, b, fa, fb, settings.Tolerance);
             }
