@@ -9,11 +9,13 @@ namespace ModeSolver.Tests.Reliability;
 [Collection("ConsoleCapture")]
 public class CliSafetyTests
 {
-    private static string NewDir()
+    /// <summary>Runs <paramref name="body"/> in a new scratch directory, removed afterwards.</summary>
+    private static void InScratch(Action<string> body)
     {
-        string d = CliRunner.TempDir("cli-safety");
-        Directory.CreateDirectory(d);
-        return d;
+        string dir = CliRunner.TempDir("cli-safety");
+        Directory.CreateDirectory(dir);
+        try { body(dir); }
+        finally { Directory.Delete(dir, true); }
     }
 
     private static string Deck(string dir, string text)
@@ -32,23 +34,20 @@ public class CliSafetyTests
     [InlineData("[model]\npotential = \"phi^2\\u009b\"\n[start]\nphi0 = 17\n", "U+009B")]
     public void Control_characters_of_a_deck_key_or_value_are_escaped_in_the_error(string deck, string expected)
     {
-        string dir = NewDir();
-        try
+        InScratch(dir =>
         {
             var (code, o, e) = CliRunner.Run("spectrum", Deck(dir, deck), "--check");
             Assert.Equal(2, code);
             Assert.Contains(expected, e);
             Assert.Single(e.TrimEnd('\n').Split('\n'));
             NoControlCharacters(o + e);
-        }
-        finally { Directory.Delete(dir, true); }
+        });
     }
 
     [Fact]
     public void A_title_with_control_characters_reaches_the_files_but_never_the_terminal()
     {
-        string dir = NewDir();
-        try
+        InScratch(dir =>
         {
             string deck = Deck(dir, "title = \"t\\u001b[31mred\\u0007\"\n[model]\ncatalogue = \"starobinsky\"\n[model.parameters]\nunused = 1\n");
             var check = CliRunner.Run("spectrum", deck, "--check");
@@ -61,30 +60,26 @@ public class CliSafetyTests
             NoControlCharacters(run.Out + run.Err);
             using var json = JsonDocument.Parse(File.ReadAllText(Path.Combine(outDir, "summary.json")));
             Assert.Equal("t\u001b[31mred\u0007", json.RootElement.GetProperty("settings").GetProperty("title").GetString()); // the file keeps the title as given
-        }
-        finally { Directory.Delete(dir, true); }
+        });
     }
 
     [Fact]
     public void Control_characters_of_a_sweep_deck_are_escaped_in_the_error()
     {
-        string dir = NewDir();
-        try
+        InScratch(dir =>
         {
             string deck = Deck(dir, "[model]\ncatalogue = \"t-model\"\n[pivot]\nefolds = 55\n[sweep]\n[[sweep.axis]]\nkey = \"ef\\u001b[2Jolds\"\nlinear = [46, 64, 3]\n");
             var (code, o, e) = CliRunner.Run("sweep", deck, "--out", Path.Combine(dir, "out"), "--quiet");
             Assert.Equal(2, code);
             Assert.Contains("sweep axis 'efU+001B[2Jolds' is not a key", e);
             NoControlCharacters(o + e);
-        }
-        finally { Directory.Delete(dir, true); }
+        });
     }
 
     [Fact]
     public void A_warning_and_an_error_give_one_line()
     {
-        string dir = NewDir();
-        try
+        InScratch(dir =>
         {
             string deck = Deck(dir, "[model]\ncatalogue = \"starobinsky\"\n[model.parameters]\nunused = 1\n");
             var (code, o, e) = CliRunner.Run("spectrum", deck, "--reheat-T", "1e100", "--quiet", "--out", Path.Combine(dir, "out"));
@@ -94,15 +89,13 @@ public class CliSafetyTests
             Assert.StartsWith("modesolver: The reheating temperature T_reh = 1E+100 GeV is above the temperature at the end of inflation (", line);
             Assert.EndsWith("; lower T_reh; warning: " + deck + ":4: model.parameters.unused is not used by the model's formulas", line);
             Assert.Equal(["deck.toml"], Directory.GetFileSystemEntries(dir).Select(Path.GetFileName));
-        }
-        finally { Directory.Delete(dir, true); }
+        });
     }
 
     [Fact]
     public void A_legal_250_character_table_name_is_written()
     {
-        string dir = NewDir();
-        try
+        InScratch(dir =>
         {
             string name = new string('k', 246) + ".dat";
             Assert.Equal(250, name.Length);
@@ -110,16 +103,14 @@ public class CliSafetyTests
             Assert.True(code == 0, e);
             Assert.Equal([name], Directory.GetFileSystemEntries(dir).Select(Path.GetFileName));
             Assert.StartsWith("# primordial power spectra", File.ReadAllText(Path.Combine(dir, name)));
-        }
-        finally { Directory.Delete(dir, true); }
+        });
     }
 
     /// <summary>The one-wavenumber grid the k-range message recommends is a full run: every file, the plots included.</summary>
     [Fact]
     public void One_wavenumber_is_a_full_run_with_every_file()
     {
-        string dir = NewDir();
-        try
+        InScratch(dir =>
         {
             string outDir = Path.Combine(dir, "out");
             var (code, o, e) = CliRunner.Run("spectrum", "--model", "starobinsky", "--k-count", "1", "--k-min", "0.05", "--k-max", "0.05", "--out", outDir, "--quiet");
@@ -128,8 +119,7 @@ public class CliSafetyTests
             Assert.Equal(["background.png", "background.svg", "primordial.dat", "run.h5", "spectra.png", "spectra.svg", "summary.json"],
                 Directory.GetFiles(outDir).Select(Path.GetFileName).Order(StringComparer.Ordinal));
             Assert.Contains("<svg", File.ReadAllText(Path.Combine(outDir, "spectra.svg")));
-        }
-        finally { Directory.Delete(dir, true); }
+        });
     }
 
     /// <summary>The A_s and k_pivot bounds come from reheating: with N_* given, the same values are a result.</summary>
