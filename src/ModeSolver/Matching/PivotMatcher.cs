@@ -183,7 +183,7 @@ public static class PivotMatcher
 
     private static PhysicsException TooCold(ReheatingHistory reh, double tReh) => reh.NReh is double nr
         ? new PhysicsException($"The reheating history gives T_reh = {tReh:G6} GeV, below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); shorten reheating (N_reh = {nr:G6}).")
-        : new PhysicsException($"Inflation ends at T = {tReh:G6} GeV (instantaneous reheating), below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); raise the energy scale of inflation (A_s or the potential's scale) or give N_* directly.");
+        : new PhysicsException($"Inflation ends at T = {tReh:G6} GeV{(reh.IsInstantaneous ? " (instantaneous reheating)" : "")}, below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); raise the energy scale of inflation (A_s or the potential's scale) or give N_* directly.");
 
     /// <summary>The reheating history puts the pivot's horizon exit after the end of inflation (N_* &lt;= 0).</summary>
     private static PhysicsException NoHorizonExit(ReheatingHistory reh, double nStar, double tReh, double rhoEnd, PivotSettings s, double kEndMpc)
