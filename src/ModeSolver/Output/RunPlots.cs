@@ -196,7 +196,7 @@ public static class RunPlots
         return plot;
     }
 
-    private static Plot NewPlot()
+    internal static Plot NewPlot()
     {
         var p = new Plot();
         p.FigureBackground.Color = C(PlotPalette.Paper);
@@ -209,7 +209,7 @@ public static class RunPlots
         return p;
     }
 
-    private static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,
+    internal static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,
         string color, LinePattern pattern, string label, bool logX = true)
     {
         var xs = new List<double>(x.Length);
@@ -248,7 +248,7 @@ public static class RunPlots
         sink.Add(ys.ToArray());
     }
 
-    private static (double Min, double Max) Range(IEnumerable<double[]> series)
+    internal static (double Min, double Max) Range(IEnumerable<double[]> series)
     {
         double lo = double.PositiveInfinity, hi = double.NegativeInfinity;
         foreach (var s in series)

@@ -18,6 +18,8 @@ public sealed class SweepPlotOptions
     public double RUpper95 { get; init; } = 0.036;
     /// <summary>Next-generation B-mode target (common practice).</summary>
     public double TargetR { get; init; } = 1e-3;
+    /// <summary>Draw the 1 and 2 sigma contours of the Gaussian Delta chi^2 in (n_s, r) (<see cref="Observables.DataDistance"/>).</summary>
+    public bool ShowContours { get; init; } = true;
     /// <summary>Image width in pixels.</summary>
     public int Width { get; init; } = 1300;
     /// <summary>Image height in pixels.</summary>
@@ -120,6 +122,8 @@ public static class SweepPlot
             target.EnableAutoscale = false;
         }
 
+        if (options.ShowContours) AddContours(plot, options, log);
+
         var markShapes = new Dictionary<double, MarkerShape>();
         if (mark >= 0)
             for (int i = 0; i < spec.Axes[mark].Values.Count; i++)
@@ -175,6 +179,44 @@ public static class SweepPlot
         }
         plot.ShowLegend(Edge.Right);
         return plot;
+    }
+
+    /// <summary>
+    /// The n-sigma contours (n = 1, 2) of Delta chi^2 = ((n_s - c)/sigma)^2 + (r/sigma_r)^2 for two degrees of freedom,
+    /// sigma_r = half the 95% bound: half-ellipses over r &gt;= 0.
+    /// </summary>
+    internal static List<(double[] Ns, double[] R)> Contours(SweepPlotOptions options)
+    {
+        var data = new Observables.DataConstraints(Ns: options.NsCentre, SigmaNs: options.NsSigma, SigmaR: options.RUpper95 / 2);
+        var list = new List<(double[], double[])>();
+        foreach (int n in new[] { 1, 2 })
+        {
+            double radius = Math.Sqrt(Observables.DataDistance.ContourLevel(n, 2));
+            const int m = 181;
+            var x = new double[m]; var y = new double[m];
+            for (int i = 0; i < m; i++)
+            {
+                double t = Math.PI * (i + 0.5) / m; // open ends: r > 0 for the log axis
+                x[i] = data.Ns + data.SigmaNs * radius * Math.Cos(t);
+                y[i] = data.SigmaR * radius * Math.Sin(t);
+            }
+            list.Add((x, y));
+        }
+        return list;
+    }
+
+    private static void AddContours(Plot plot, SweepPlotOptions options, bool log)
+    {
+        var contours = Contours(options);
+        for (int n = 0; n < contours.Count; n++)
+        {
+            var (x, y) = contours[n];
+            var ys = log ? y.Select(Math.Log10).ToArray() : y;
+            var line = plot.Add.ScatterLine(x, ys, Color.FromHex(SweepPalette.Ink).WithAlpha(n == 0 ? 0.8 : 0.5));
+            line.LinePattern = n == 0 ? LinePattern.Solid : LinePattern.Dashed;
+            line.LineWidth = 1.2f;
+            line.LegendText = $"{n + 1}σ contour of the Gaussian Δχ² in (n_s, r), 2 dof (an approximation)";
+        }
     }
 
     private static string G(double x) => x.ToString("G6", CultureInfo.InvariantCulture);
