@@ -15,7 +15,7 @@ internal static class ObservablesPrinter
     public static void Print(IAnsiConsole console, bool plain, ObservablesReport? o)
     {
         if (o is null) return;
-        void Say(FormattableString s, string? colour = null) => SummaryPrinter.Line(console, plain, s.ToString(Inv), colour);
+        void Say(FormattableString s, string? colour = null) => SummaryPrinter.Line(console, plain, Lower(s.ToString(Inv)), colour);
         if (o.Distance is { } d)
             Say($"distance to the data: Delta chi^2 = {d.DeltaChi2:G4}, {d.Sigmas:0.00} sigma for {d.DegreesOfFreedom} degrees of freedom (Gaussian approximation)");
         if (o.Peak is { } p)
@@ -35,8 +35,11 @@ internal static class ObservablesPrinter
             Say($"black holes: f_PBH = {b.FTotal:G4} (rel. error {Num(b.FTotalRelError, "G2")} from the spectrum and quadrature only), largest f_PBH(M) = {b.FAtPeak:G3} at M = {b.MassAtPeak:G3} solar masses; delta_c = {b.DeltaC:G4}, gamma = {b.Gamma:G3}, {b.Window.Code()} window");
             Say($"black holes: CAUTION these are estimates that depend exponentially on the threshold: d ln f_PBH / d ln delta_c = {Num(b.DlnFDlnDeltaC, "G3")}, so 1% more delta_c multiplies f_PBH by {Num(Math.Pow(1.01, b.DlnFDlnDeltaC), "G3")}", "yellow");
         }
-        foreach (var n in o.Notes) SummaryPrinter.Line(console, plain, "  " + n, null);
+        foreach (var n in o.Notes) SummaryPrinter.Line(console, plain, "  " + Lower(n), null);
     }
+
+    // Exponents as the rest of the summary writes them (1.5e+13, not 1.5E+13).
+    private static string Lower(string s) => s.Replace("E+", "e+", StringComparison.Ordinal).Replace("E-", "e-", StringComparison.Ordinal);
 
     private static string Num(double v, string format) => double.IsFinite(v) ? v.ToString(format, Inv) : "n/a";
 }

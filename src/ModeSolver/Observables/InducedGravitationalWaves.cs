@@ -67,7 +67,11 @@ public static class InducedGravitationalWaves
         double pre = 3 * w / (4 * uv * uv * uv);
         // ln|(3 - (t+1)^2) / (3 - s^2)| = ln|2 - 2t - t^2| - ln(2 + d (1 + s)), with log1p near the corner.
         double num = -t * (2 + t) / 2, den = d * (1 + s) / 2;
-        double log = (Math.Abs(num) < 0.5 ? LogOnePlus(num) : Math.Log(Math.Abs(1 + num))) - LogOnePlus(den);
+        double lnNum = Math.Abs(num) < 0.5 ? LogOnePlus(num) : Math.Log(Math.Abs(1 + num));
+        // Exactly on the resonance u + v = sqrt 3 the logarithm is infinite (an integrable singularity): a quadrature
+        // node that rounds onto it takes the value one step in t away instead.
+        if (double.IsInfinity(lnNum)) return KernelTS(Math.BitIncrement(t), s);
+        double log = lnNum - LogOnePlus(den);
         double brace = Sq(-uv4 + w * log) + (sum > Sqrt3 ? Math.PI * Math.PI * w * w : 0.0);
         return a * a * pre * pre * brace / 12.0;
     }

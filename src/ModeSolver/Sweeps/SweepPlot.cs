@@ -130,6 +130,7 @@ public static class SweepPlot
                 markShapes.TryAdd(spec.Axes[mark].Values[i], Shapes[markShapes.Count % Shapes.Length]);
         int colour = 0;
         double xmin = c - 2.5 * s, xmax = c + 2.5 * s, ymin = double.PositiveInfinity, ymax = yBound;
+        if (options.ShowContours) ymax = Math.Max(ymax, log ? Math.Log10(ContourTop(options)) : ContourTop(options));
         foreach (var label in lines.Keys.OrderBy(k => lineOrder[k]))
         {
             var pts = lines[label].OrderBy(p => p.Along).ThenBy(p => p.Index).ToList();
@@ -192,18 +193,24 @@ public static class SweepPlot
         foreach (int n in new[] { 1, 2 })
         {
             double radius = Math.Sqrt(Observables.DataDistance.ContourLevel(n, 2));
-            const int m = 181;
-            var x = new double[m]; var y = new double[m];
-            for (int i = 0; i < m; i++)
+            // Angles from just above 0 to just below pi (r > 0 for the log axis), geometric towards both ends so that
+            // on a log axis the contour runs down to r ~ 1e-9 instead of stopping short.
+            var angles = new List<double>();
+            for (int j = 36; j > 0; j--) angles.Add(0.1 * Math.Pow(10, -j / 4.0));
+            for (int i = 0; i <= 120; i++) angles.Add(0.1 + (Math.PI - 0.2) * i / 120);
+            for (int j = 1; j <= 36; j++) angles.Add(Math.PI - 0.1 * Math.Pow(10, -j / 4.0));
+            var x = new double[angles.Count]; var y = new double[angles.Count];
+            for (int i = 0; i < x.Length; i++)
             {
-                double t = Math.PI * (i + 0.5) / m; // open ends: r > 0 for the log axis
-                x[i] = data.Ns + data.SigmaNs * radius * Math.Cos(t);
-                y[i] = data.SigmaR * radius * Math.Sin(t);
+                x[i] = data.Ns + data.SigmaNs * radius * Math.Cos(angles[i]);
+                y[i] = data.SigmaR * radius * Math.Sin(angles[i]);
             }
             list.Add((x, y));
         }
         return list;
     }
+
+    private static double ContourTop(SweepPlotOptions options) => options.RUpper95 / 2 * Math.Sqrt(Observables.DataDistance.ContourLevel(2, 2));
 
     private static void AddContours(Plot plot, SweepPlotOptions options, bool log)
     {
