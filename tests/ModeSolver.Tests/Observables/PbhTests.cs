@@ -114,4 +114,14 @@ public class PbhTests
         Assert.Equal(Math.Pow(2, -1.0 / 6), PrimordialBlackHoles.Mass(k, settings with { GStar = 2 * g }) / m, 12);
         Assert.Equal(2.0, PrimordialBlackHoles.Mass(k, settings with { Gamma = 2 * gamma }) / m, 12);
     }
+
+    [Fact]
+    public void DefaultThresholdIsTheRadiationValueOfTheAnalyticFormula()
+    {
+        // delta_c = [3 (1 + w) / (5 + 3 w)] sin^2(pi sqrt(w) / (1 + 3 w)) at w = 1/3 gives 0.414 (Harada, Yoo & Kohri 2013,
+        // Phys. Rev. D 88, 084051, from memory); the default is that value to two digits.
+        double w = 1.0 / 3.0;
+        double formula = 3 * (1 + w) / (5 + 3 * w) * Math.Pow(Math.Sin(Math.PI * Math.Sqrt(w) / (1 + 3 * w)), 2);
+        Assert.Equal(Math.Round(formula, 2), ObservablesSettings.Default.DeltaC, 12);
+    }
 }
