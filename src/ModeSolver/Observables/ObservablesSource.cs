@@ -46,11 +46,11 @@ public sealed record ObservablesSource(
         }
     }
 
-    /// <summary>Checks lengths, ordering and positivity; throws <see cref="ArgumentException"/> with a one-line message.</summary>
+    /// <summary>Checks lengths, ordering and positivity (one sample is valid; interpolation needs two); throws <see cref="ArgumentException"/> with a one-line message.</summary>
     public void Validate()
     {
         int n = K.Length;
-        if (n < 2) throw new ArgumentException("observables: the spectrum needs at least two wavenumbers");
+        if (n < 1) throw new ArgumentException("observables: the spectrum has no wavenumbers");
         if (Ps.Length != n || Ns.Length != n || RelError.Length != n)
             throw new ArgumentException("observables: spectrum arrays differ in length");
         for (int i = 0; i < n; i++)

@@ -95,6 +95,10 @@ public class ObservablesCliTests : IClassFixture<BumpPeakRun>
         Assert.True(merged.InducedGw);
         Assert.False(merged.Pbh);
         Assert.Equal(10.75, merged.GStar); // from the deck
+
+        // The deck writer records the non-default choices, and reading them back gives the same choices.
+        var back = SettingsResolver.Resolve(DeckReader.Parse(DeckWriter.Write(SettingsResolver.Resolve(input)), "written.toml")).Observables;
+        Assert.Equal(ObservablesKeys.Entries(s), ObservablesKeys.Entries(back));
     }
 
     [Fact]
