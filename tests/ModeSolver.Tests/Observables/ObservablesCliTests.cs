@@ -9,30 +9,12 @@ using PureHDF;
 namespace ModeSolver.Tests.Observables;
 
 /// <summary>One run of the demo deck runs/bump-peak.toml (small-scale peak, every observable on), shared by the checks.</summary>
-public sealed class BumpPeakRun : IDisposable
+public sealed class BumpPeakRun() : CliDeckRun("bump", "runs/bump-peak.toml", "--quiet")
 {
-    public BumpPeakRun()
-    {
-        Root = CliRunner.TempDir("bump");
-        Dir = Path.Combine(Root, "out");
-        (Code, Out, Err) = CliRunner.Run("spectrum", DeckTests.RepoFile("runs/bump-peak.toml"), "--out", Dir, "--quiet");
-    }
-
-    public string Root { get; }
-    public string Dir { get; }
-    public int Code { get; }
-    public string Out { get; }
-    public string Err { get; }
-
     public JsonElement Summary(string? dir = null)
     {
-        using var doc = JsonDocument.Parse(File.ReadAllText(Path.Combine(dir ?? Dir, "summary.json")));
+        using var doc = JsonDocument.Parse(System.IO.File.ReadAllText(Path.Combine(dir ?? Dir, "summary.json")));
         return doc.RootElement.Clone();
-    }
-
-    public void Dispose()
-    {
-        if (Directory.Exists(Root)) Directory.Delete(Root, true);
     }
 }
 
