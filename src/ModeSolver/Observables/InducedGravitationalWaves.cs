@@ -139,7 +139,8 @@ public static class InducedGravitationalWaves
         ArgumentNullException.ThrowIfNull(source);
         ArgumentNullException.ThrowIfNull(settings);
         int perDecade = Math.Max(1, settings.GwPointsPerDecade);
-        int count = Math.Max(2, (int)Math.Ceiling(Math.Log10(kHigh / kLow) * perDecade) + 1);
+        var grid = Output.PrimordialTableWriter.LogGrid(kLow, kHigh, perDecade); // the same log grid as the primordial table
+        int count = grid.Length;
         double g = settings.GStar;
         double omegaR = settings.OmegaRadiationH2 ?? RadiationEra.RadiationDensityH2;
         double cg = RadiationEra.TransferCg(g);
@@ -151,7 +152,7 @@ public static class InducedGravitationalWaves
         double peakF = double.NaN, peakOm = 0;
         for (int i = 0; i < count; i++)
         {
-            double ki = kLow * Math.Pow(kHigh / kLow, i / (double)(count - 1));
+            double ki = grid[i];
             var r = OmegaRadiation(source.PsAt, ki, source.KMin, source.KMax, kPeak, settings.GwTolerance);
             converged &= r.Converged;
             evaluations += r.Evaluations;
