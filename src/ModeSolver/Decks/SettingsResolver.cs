@@ -242,6 +242,7 @@ public static class SettingsResolver
             DeckPath = input.DeckPath,
             Warnings = warnings,
             Flags = FlagSettingsFor(input),
+            Observables = ObservablesKeys.Resolve(input.ObservableValues),
         };
         CheckTheory(settings, input, entry);
         return settings;

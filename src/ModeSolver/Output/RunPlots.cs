@@ -197,7 +197,7 @@ public static class RunPlots
         return plot;
     }
 
-    private static Plot NewPlot()
+    internal static Plot NewPlot()
     {
         var p = new Plot();
         p.FigureBackground.Color = C(PlotPalette.Paper);
@@ -210,7 +210,7 @@ public static class RunPlots
         return p;
     }
 
-    private static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,
+    internal static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,
         string color, LinePattern pattern, string label, bool logX = true)
     {
         var xs = new List<double>(x.Length);
@@ -268,7 +268,7 @@ public static class RunPlots
         mk.LegendText = label;
     }
 
-    private static (double Min, double Max) Range(IEnumerable<double[]> series)
+    internal static (double Min, double Max) Range(IEnumerable<double[]> series)
     {
         double lo = double.PositiveInfinity, hi = double.NegativeInfinity;
         foreach (var s in series)
