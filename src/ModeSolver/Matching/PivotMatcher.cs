@@ -103,6 +103,7 @@ public static class PivotMatcher
                 double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
                 double lnHMpc = Math.Log(bgs.At(nEnd - x).H) + LnMplInMpc;
                 double next = lnHMpc - lnKStar - nReh + lnAReh;
+                if (tReh < ReheatingHistory.MinimumTemperatureGeV) throw TooCold(reh, tReh); // the final check would refuse it
                 if (!(next > 0))
                     throw NoHorizonExit(reh, next, tReh, rho, settings, Math.Exp(next + lnKStar));
                 return next - x;

@@ -173,7 +173,8 @@ public static class SpectrumPipeline
         var ns1 = new double[m]; var ns2 = new double[m];
         for (int i = 0; i < m; i++)
         {
-            kMpc[i] = pivot.ToInverseMpc(k[i]);
+            // The pivot sample is k_* exactly (the round trip through background units can miss it by an ulp).
+            kMpc[i] = k[i] == kPivotBg ? pivot.KPivot : pivot.ToInverseMpc(k[i]);
             var sr = SlowRoll.AtK(bg, k[i]);
             ps1[i] = sr.FirstOrder.Ps; pt1[i] = sr.FirstOrder.Pt; ns1[i] = sr.FirstOrder.Ns;
             ps2[i] = sr.SecondOrder.Ps; pt2[i] = sr.SecondOrder.Pt; ns2[i] = sr.SecondOrder.Ns;
