@@ -7,7 +7,8 @@ namespace ModeSolver.Formulas;
 /// smooth programs built from arithmetic, powers, exp, log, sqrt and the hyperbolic functions. Where a derivative is a
 /// difference of nearly equal terms (the Einstein-frame slope of a plateau flatter than 1e-12, e.g. the Palatini map at
 /// xi phi^2 ~ 1e11), double arithmetic leaves only noise; here about 32 digits survive the cancellation, and the
-/// results are rounded to double at the end. Same chain rule (Faa di Bruno on normalised coefficients).
+/// results are rounded to double at the end. Same chain rule (Faa di Bruno on normalised coefficients); kept parallel to
+/// the double kernels instead of one generic evaluator so that the double path (the hot one) stays as it is.
 /// </summary>
 internal static class Jet3ExtendedEvaluator
 {
