@@ -32,7 +32,7 @@ public static class SweepDensityPlot
         {
             if (!Plottable(r, options.LogR)) continue;
             if (small.Count == LineLimit) { large = true; break; }
-            small.Add(r);
+            small.Add(r.WithoutSpectrum()); // the plot needs n_s and r only: spectra are not held
         }
         if (!large)
         {
