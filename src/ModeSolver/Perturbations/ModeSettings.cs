@@ -98,4 +98,9 @@ public sealed record ModeResult(
     public double AlphaT { get; init; } = double.NaN;
     /// <summary>n_s = 1 + d ln P_s / d ln k.</summary>
     public double Ns => 1.0 + NsMinusOne;
+    /// <summary>
+    /// True when the mode was still deeper than the start cap (k/aH = 500) inside the horizon where a fast feature of the
+    /// background began, so it started inside the feature: <see cref="ErrorEstimate"/> is then not a bound.
+    /// </summary>
+    public bool StartedInFeature { get; init; }
 }

@@ -1,0 +1,185 @@
+using System.Globalization;
+using ModeSolver.Decks;
+using ModeSolver.Perturbations;
+using ModeSolver.Pipeline;
+using ModeSolver.Spectra;
+
+namespace ModeSolver.Benchmarks.Perturbations;
+
+/// <summary>
+/// `--error-honesty [CASE]`: the per-k error estimate of a spectrum against the true error, measured by re-solving every
+/// sample 1000x tighter on the same normalised background; prints max(true / reported) per model (figures in docs/modes.md).
+/// </summary>
+public static class ErrorHonesty
+{
+    /// <summary>A hard model of the set: command-line-like settings.</summary>
+    public sealed record Case(string Name, Action<RunInput> Set);
+
+    private static Located<double> L(double v, string key) => new(v, key);
+
+    /// <summary>The hard models of the honesty check.</summary>
+    public static IReadOnlyList<Case> Cases { get; } =
+    [
+        new("usr-dip", i =>
+        {
+            i.Potential = new("V0*(1-exp(-sqrt(2/3)*phi))^2*(1 - A*exp(-(phi-p1)^2/(2*s^2)))", "--potential");
+            i.Parameters["V0"] = L(1e-10, "--param"); i.Parameters["A"] = L(0.00240120849609375, "--param");
+            i.Parameters["p1"] = L(4.1, "--param"); i.Parameters["s"] = L(0.018, "--param");
+            i.Phi0 = L(6, "--phi0"); i.KMin = L(1e-4, "--k-min"); i.KMax = L(1e18, "--k-max"); i.KCount = new(200, "--k-count");
+        }),
+        new("step-deck", i => Deck(i, "runs/step-feature.toml")),
+        new("broken-linear", i => i.ModelId = new("broken-linear", "--model")),
+        // The pivot matching of this model does not converge yet (a separate issue item): N_* given, V as it stands.
+        new("palatini-1e6", i =>
+        {
+            i.ModelId = new("higgs-like-palatini", "--model"); i.Parameters["xi"] = L(1e6, "--param");
+            i.Efolds = L(55, "--efolds"); i.Amplitude = new(null, "--amplitude");
+        }),
+        new("palatini-1e4", i =>
+        {
+            i.ModelId = new("higgs-like-palatini", "--model"); i.Parameters["xi"] = L(1e4, "--param");
+            i.Efolds = L(55, "--efolds"); i.Amplitude = new(null, "--amplitude");
+        }),
+        new("t-model-1e-3", i => { i.ModelId = new("t-model", "--model"); i.Parameters["alpha"] = L(1e-3, "--param"); }),
+    ];
+
+    private static void Deck(RunInput i, string path)
+    {
+        string root = FindRoot();
+        var deck = DeckReader.Parse(File.ReadAllText(Path.Combine(root, path)), path);
+        var merged = RunInput.Merge(deck, new RunInput());
+        foreach (var p in typeof(RunInput).GetProperties().Where(p => p.CanWrite)) p.SetValue(i, p.GetValue(merged));
+        foreach (var (k, v) in merged.Parameters) i.Parameters[k] = v;
+    }
+
+    private static string FindRoot()
+    {
+        var d = new DirectoryInfo(AppContext.BaseDirectory);
+        while (d is not null && !File.Exists(Path.Combine(d.FullName, "ModeSolver.sln"))) d = d.Parent;
+        return d?.FullName ?? throw new InvalidOperationException("repository root not found");
+    }
+
+    /// <summary>Runs the set (or the named case) and prints one line per model.</summary>
+    public static void Run(string[] args)
+    {
+        string? only = args.Length >= 2 ? args[1] : null;
+        foreach (var c in Cases)
+        {
+            if (only is not null && c.Name != only) continue;
+            var input = new RunInput();
+            c.Set(input);
+            var settings = SettingsResolver.Resolve(input);
+            PivotRun run;
+            try { run = SpectrumPipeline.RunPivot(settings); }
+            catch (ModeSolver.Physics.PhysicsException e) { Console.WriteLine($"{c.Name,-14} not run: {e.Message}"); continue; }
+            var pivot = run.Pivot;
+            var bg = pivot.Background;
+            var kr = run.Settings.KRange;
+            var ss = new SpectrumSettings
+            {
+                KMin = pivot.ToBackgroundUnits(kr.KMin), KMax = pivot.ToBackgroundUnits(kr.KMax), KCount = kr.Count,
+                MaxPoints = Math.Max(kr.Count + 1, 2000), Tolerance = kr.Tolerance,
+                ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [pivot.ToBackgroundUnits(pivot.KPivot)] : [],
+            };
+            if (args.Contains("--probe"))
+            {
+                double kp = double.Parse(args[Array.IndexOf(args, "--probe") + 1], CultureInfo.InvariantCulture);
+                double kb = pivot.ToBackgroundUnits(kp);
+                if (args.Contains("--growth"))
+                {
+                    var sc = FrictionScan.FromStart(bg);
+                    for (double nn = 60; nn < 90; nn += 1) Console.WriteLine(FormattableString.Invariant($"N {nn} lnG {sc.LogGrowthAfter(nn):G4} F {3 - bg.At(nn).Epsilon1 + bg.At(nn).Epsilon2:G4}"));
+                    return;
+                }
+                if (args.Contains("--bgcheck"))
+                {
+                    var bs = SpectrumPipeline.BackgroundSettingsFor(run.Settings);
+                    var bgT = ModeSolver.Background.BackgroundSolver.Solve(run.Theory, bs with { Tolerance = 1e-13 }).WithVScale(bg.VScale);
+                    var bg0 = ModeSolver.Background.BackgroundSolver.Solve(run.Theory, bs).WithVScale(bg.VScale);
+                    Console.WriteLine(FormattableString.Invariant($"NEnd {bg0.NEnd:R} vs {bgT.NEnd:R}; segments {bg0.SegmentCount}"));
+                    double w1 = 0, w2 = 0, wN = 0;
+                    for (double nn = 60; nn < 90; nn += 0.001)
+                    {
+                        var a = bg0.At(nn); var b = bgT.At(nn);
+                        double d2 = Math.Abs(a.Epsilon2 - b.Epsilon2) / Math.Max(1e-3, Math.Abs(b.Epsilon2));
+                        double d1 = Math.Abs(a.Epsilon1 / b.Epsilon1 - 1);
+                        if (d2 > w2) { w2 = d2; wN = nn; }
+                        w1 = Math.Max(w1, d1);
+                    }
+                    Console.WriteLine(FormattableString.Invariant($"max rel e1 diff {w1:G3}, max rel e2 diff {w2:G3} at N {wN:F3}"));
+                    foreach (double tol in new[] { 3.3e-7, 1e-8, 1e-10, 1e-11 })
+                    {
+                        var a = new ModeIntegrator().Solve(bg0, kb, new ModeSettings { Tolerance = tol, Derivatives = false });
+                        var b = new ModeIntegrator().Solve(bgT, kb, new ModeSettings { Tolerance = tol, Derivatives = false });
+                        Console.WriteLine(FormattableString.Invariant($"tol {tol:G2}: bg 1e-10 {a.Ps:R}  bg 1e-13 {b.Ps:R}"));
+                    }
+                    return;
+                }
+                if (args.Contains("--trace"))
+                {
+                    var targets = new[] { 64.5, 65.0, 65.5, 66.0, 66.5, 67.0, 68.0, 70.0, 74.0, 77.0, 78.0, 79.0, 80.0, 82.0 };
+                    foreach (double nt in targets)
+                    {
+                        var refz = new ModeIntegrator().EvolveTo(bg, kb, nt, new ModeSettings { Tolerance = 1e-12, StartDepth = 30, Derivatives = false, StepToleranceRatio = 0.05 });
+                        var line = FormattableString.Invariant($"N {nt} x {kb * Math.Exp(-nt) / bg.At(nt).H:G3} e1 {bg.At(nt).Epsilon1:G3} e2 {bg.At(nt).Epsilon2:G3} |z| {refz.Zeta.Magnitude:G6}");
+                        foreach (double tol in new[] { 3.3e-7, 1e-8, 1e-10 })
+                        {
+                            var z = new ModeIntegrator().EvolveTo(bg, kb, nt, new ModeSettings { Tolerance = tol, StartDepth = 30, Derivatives = false });
+                            line += FormattableString.Invariant($"  {tol:G2}: {z.Zeta.Magnitude / refz.Zeta.Magnitude - 1:G3} N0x {z.N:G3}");
+                        }
+                        Console.WriteLine(line);
+                    }
+                    return;
+                }
+                if (args.Contains("--fixed"))
+                {
+                    foreach (bool der in new[] { true, false })
+                        foreach (double tol in new[] { 3.3e-7, 1e-7, 1e-8, 1e-9, 1e-10, 1e-11 })
+                            foreach (double ratio in new[] { 0.5, 0.05 })
+                            {
+                                var mm = new ModeIntegrator().Solve(bg, kb, new ModeSettings { Tolerance = tol, StartDepth = 30, Derivatives = der, StepToleranceRatio = ratio }, FrictionScan.FromStart(bg));
+                                Console.WriteLine(FormattableString.Invariant($"der {der} tol {tol:G2} ratio {ratio} Ps {mm.Ps:R} x0 {mm.StartDepth:G4} N0 {mm.NStart:F4} Nf {mm.NFinal:F3} rhs {mm.RhsEvaluations} est {mm.ErrorEstimate:G3}"));
+                            }
+                    return;
+                }
+                foreach (double tol in new[] { 3.3e-7, 1e-7, 3.3e-8, 1e-8, 3.3e-9, 1e-9, 3.3e-10, 1e-10, 3.3e-11 })
+                {
+                    foreach (double sd in (args.Contains("--scan") ? new[] { 0.0 } : new[] { 0.0, 30.0, 100.0, 152.0, 300.0 }))
+                    {
+                        var mm = new ModeIntegrator().Solve(bg, kb, new ModeSettings { Tolerance = tol, StartDepth = sd, StopDepth = args.Contains("--late") ? 1e-15 : 0 }, args.Contains("--scan") ? FrictionScan.FromStart(bg) : null);
+                        Console.WriteLine(FormattableString.Invariant($"tol {tol:G2} sd {sd} Ps {mm.Ps:R} Pt {mm.Pt:R} x0 {mm.StartDepth:G4} N0 {mm.NStart:F4} Nf {mm.NFinal:F3} rhs {mm.RhsEvaluations} est {mm.ErrorEstimate:G3}"));
+                    }
+                }
+                return;
+            }
+            var sw = System.Diagnostics.Stopwatch.StartNew();
+            var spec = SpectrumSolver.Compute(bg, ss);
+            double tSpec = sw.Elapsed.TotalSeconds;
+            var refSettings = new ModeSettings { Tolerance = kr.Tolerance / 3.0 / 1000.0 };
+            var fallback = refSettings with { StopDepth = new ModeSettings { Tolerance = kr.Tolerance / 3.0 }.EffectiveStopDepth };
+            double worst = 0, worstTrue = 0, worstRep = 0, worstK = 0, worstUnbounded = 0;
+            int unbounded = 0;
+            var integrator = new ModeIntegrator();
+            var lines = new List<string>();
+            for (int j = 0; j < spec.Count; j++)
+            {
+                ModeResult m;
+                try { m = integrator.Solve(bg, spec.K[j], refSettings); }
+                catch (ModeSolver.Physics.PhysicsException) { m = integrator.Solve(bg, spec.K[j], fallback); }
+                double t = Math.Max(Math.Abs(spec.Ps[j] / m.Ps - 1), Math.Abs(spec.Pt[j] / m.Pt - 1));
+                double ratio = t / spec.ErrorEstimate[j];
+                if (args.Contains("--all"))
+                {
+                    var same = integrator.Solve(bg, spec.K[j], new ModeSettings { Tolerance = kr.Tolerance / 3.0 }, FrictionScan.FromStart(bg));
+                    lines.Add(FormattableString.Invariant($"  k={pivot.ToInverseMpc(spec.K[j]):G4} Ps={spec.Ps[j]:G5} true={t:G3} rep={spec.ErrorEstimate[j]:G3} ratio={ratio:G3} x0={m.StartDepth:G3} same={same.Ps / spec.Ps[j] - 1:G3} x0s={same.StartDepth:G3} Nf={same.NFinal:F2} est={same.ErrorEstimate:G3}"));
+                }
+                bool bounded = spec.ErrorBounded.Length == 0 || spec.ErrorBounded[j];
+                if (!bounded) { unbounded++; worstUnbounded = Math.Max(worstUnbounded, ratio); continue; }
+                if (ratio > worst) { worst = ratio; worstTrue = t; worstRep = spec.ErrorEstimate[j]; worstK = pivot.ToInverseMpc(spec.K[j]); }
+            }
+            foreach (var l in lines) Console.WriteLine(l);
+            Console.WriteLine(FormattableString.Invariant(
+                $"{c.Name,-14} samples {spec.Count,4}  max true/reported {worst,8:G3} at k = {worstK:G4} /Mpc (true {worstTrue:G3}, reported {worstRep:G3})  max reported {spec.MaxRelativeError:G3}  not bounded: {unbounded} (max ratio {worstUnbounded:G3})  spectrum {tSpec:F1} s"));
+        }
+    }
+}
