@@ -81,81 +81,10 @@ public static class ErrorHonesty
                 MaxPoints = Math.Max(kr.Count + 1, 2000), Tolerance = kr.Tolerance,
                 ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [pivot.ToBackgroundUnits(pivot.KPivot)] : [],
             };
-            if (args.Contains("--probe"))
-            {
-                double kp = double.Parse(args[Array.IndexOf(args, "--probe") + 1], CultureInfo.InvariantCulture);
-                double kb = pivot.ToBackgroundUnits(kp);
-                if (args.Contains("--growth"))
-                {
-                    var sc = FrictionScan.FromStart(bg);
-                    for (double nn = 60; nn < 90; nn += 1) Console.WriteLine(FormattableString.Invariant($"N {nn} lnG {sc.LogGrowthAfter(nn):G4} F {3 - bg.At(nn).Epsilon1 + bg.At(nn).Epsilon2:G4}"));
-                    return;
-                }
-                if (args.Contains("--bgcheck"))
-                {
-                    var bs = SpectrumPipeline.BackgroundSettingsFor(run.Settings);
-                    var bgT = ModeSolver.Background.BackgroundSolver.Solve(run.Theory, bs with { Tolerance = 1e-13 }).WithVScale(bg.VScale);
-                    var bg0 = ModeSolver.Background.BackgroundSolver.Solve(run.Theory, bs).WithVScale(bg.VScale);
-                    Console.WriteLine(FormattableString.Invariant($"NEnd {bg0.NEnd:R} vs {bgT.NEnd:R}; segments {bg0.SegmentCount}"));
-                    double w1 = 0, w2 = 0, wN = 0;
-                    for (double nn = 60; nn < 90; nn += 0.001)
-                    {
-                        var a = bg0.At(nn); var b = bgT.At(nn);
-                        double d2 = Math.Abs(a.Epsilon2 - b.Epsilon2) / Math.Max(1e-3, Math.Abs(b.Epsilon2));
-                        double d1 = Math.Abs(a.Epsilon1 / b.Epsilon1 - 1);
-                        if (d2 > w2) { w2 = d2; wN = nn; }
-                        w1 = Math.Max(w1, d1);
-                    }
-                    Console.WriteLine(FormattableString.Invariant($"max rel e1 diff {w1:G3}, max rel e2 diff {w2:G3} at N {wN:F3}"));
-                    foreach (double tol in new[] { 3.3e-7, 1e-8, 1e-10, 1e-11 })
-                    {
-                        var a = new ModeIntegrator().Solve(bg0, kb, new ModeSettings { Tolerance = tol, Derivatives = false });
-                        var b = new ModeIntegrator().Solve(bgT, kb, new ModeSettings { Tolerance = tol, Derivatives = false });
-                        Console.WriteLine(FormattableString.Invariant($"tol {tol:G2}: bg 1e-10 {a.Ps:R}  bg 1e-13 {b.Ps:R}"));
-                    }
-                    return;
-                }
-                if (args.Contains("--trace"))
-                {
-                    var targets = new[] { 64.5, 65.0, 65.5, 66.0, 66.5, 67.0, 68.0, 70.0, 74.0, 77.0, 78.0, 79.0, 80.0, 82.0 };
-                    foreach (double nt in targets)
-                    {
-                        var refz = new ModeIntegrator().EvolveTo(bg, kb, nt, new ModeSettings { Tolerance = 1e-12, StartDepth = 30, Derivatives = false, StepToleranceRatio = 0.05 });
-                        var line = FormattableString.Invariant($"N {nt} x {kb * Math.Exp(-nt) / bg.At(nt).H:G3} e1 {bg.At(nt).Epsilon1:G3} e2 {bg.At(nt).Epsilon2:G3} |z| {refz.Zeta.Magnitude:G6}");
-                        foreach (double tol in new[] { 3.3e-7, 1e-8, 1e-10 })
-                        {
-                            var z = new ModeIntegrator().EvolveTo(bg, kb, nt, new ModeSettings { Tolerance = tol, StartDepth = 30, Derivatives = false });
-                            line += FormattableString.Invariant($"  {tol:G2}: {z.Zeta.Magnitude / refz.Zeta.Magnitude - 1:G3} N0x {z.N:G3}");
-                        }
-                        Console.WriteLine(line);
-                    }
-                    return;
-                }
-                if (args.Contains("--fixed"))
-                {
-                    foreach (bool der in new[] { true, false })
-                        foreach (double tol in new[] { 3.3e-7, 1e-7, 1e-8, 1e-9, 1e-10, 1e-11 })
-                            foreach (double ratio in new[] { 0.5, 0.05 })
-                            {
-                                var mm = new ModeIntegrator().Solve(bg, kb, new ModeSettings { Tolerance = tol, StartDepth = 30, Derivatives = der, StepToleranceRatio = ratio }, FrictionScan.FromStart(bg));
-                                Console.WriteLine(FormattableString.Invariant($"der {der} tol {tol:G2} ratio {ratio} Ps {mm.Ps:R} x0 {mm.StartDepth:G4} N0 {mm.NStart:F4} Nf {mm.NFinal:F3} rhs {mm.RhsEvaluations} est {mm.ErrorEstimate:G3}"));
-                            }
-                    return;
-                }
-                foreach (double tol in new[] { 3.3e-7, 1e-7, 3.3e-8, 1e-8, 3.3e-9, 1e-9, 3.3e-10, 1e-10, 3.3e-11 })
-                {
-                    foreach (double sd in (args.Contains("--scan") ? new[] { 0.0 } : new[] { 0.0, 30.0, 100.0, 152.0, 300.0 }))
-                    {
-                        var mm = new ModeIntegrator().Solve(bg, kb, new ModeSettings { Tolerance = tol, StartDepth = sd, StopDepth = args.Contains("--late") ? 1e-15 : 0 }, args.Contains("--scan") ? FrictionScan.FromStart(bg) : null);
-                        Console.WriteLine(FormattableString.Invariant($"tol {tol:G2} sd {sd} Ps {mm.Ps:R} Pt {mm.Pt:R} x0 {mm.StartDepth:G4} N0 {mm.NStart:F4} Nf {mm.NFinal:F3} rhs {mm.RhsEvaluations} est {mm.ErrorEstimate:G3}"));
-                    }
-                }
-                return;
-            }
             var sw = System.Diagnostics.Stopwatch.StartNew();
             var spec = SpectrumSolver.Compute(bg, ss);
             double tSpec = sw.Elapsed.TotalSeconds;
-            var refSettings = new ModeSettings { Tolerance = kr.Tolerance / 3.0 / 1000.0 };
+            var refSettings = new ModeSettings { Tolerance = kr.Tolerance / 3.0 / 1000.0, MaxSteps = 400_000 };
             var fallback = refSettings with { StopDepth = new ModeSettings { Tolerance = kr.Tolerance / 3.0 }.EffectiveStopDepth };
             double worst = 0, worstTrue = 0, worstRep = 0, worstK = 0, worstUnbounded = 0;
             int unbounded = 0;

@@ -100,7 +100,8 @@ public sealed record ModeResult(
     public double Ns => 1.0 + NsMinusOne;
     /// <summary>
     /// True when the mode was still deeper than the start cap (k/aH = 500) inside the horizon where a fast feature of the
-    /// background began, so it started inside the feature: <see cref="ErrorEstimate"/> is then not a bound.
+    /// background began, so it started inside the feature, or started before one deeper than k/aH = 250:
+    /// <see cref="ErrorEstimate"/> is then not a verified bound.
     /// </summary>
     public bool StartedInFeature { get; init; }
 }
