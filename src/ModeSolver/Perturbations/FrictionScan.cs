@@ -132,6 +132,28 @@ public sealed class FrictionScan
     /// </summary>
     public double FeatureExcitationBefore(double nStart, double lnK)
     {
+        var fast = FastCells();
+        double sum = 0;
+        foreach (var (n, lnAH, du) in fast)
+        {
+            if (!(n < nStart)) continue;
+            double lnX = lnK - lnAH;
+            if (lnX <= 0) continue;
+            sum += du >= 0 ? du * Math.Exp(-2.0 * lnX) : -du * Math.Exp(-lnX);
+        }
+        return sum;
+    }
+
+    /// <summary>The earliest fast cell (not a non-smooth point) in [<paramref name="nFrom"/>, <paramref name="nTo"/>); NaN when none.</summary>
+    public double FirstFastCell(double nFrom, double nTo)
+    {
+        foreach (var (n, _, du) in FastCells())
+            if (du >= 0 && n >= nFrom && n < nTo) return n;
+        return double.NaN;
+    }
+
+    private (double N, double LnAH, double DeltaU)[] FastCells()
+    {
         var fast = _fast;
         if (fast is null)
         {
@@ -156,19 +178,12 @@ public sealed class FrictionScan
                 // Marked with a negative N-slot convention: DeltaU < 0 carries |Delta f| (weighted by 1/x, not 1/x^2).
                 list.Add((t, t + Math.Log(a.H) - _lnSqrtScale, -df));
             }
+            list.Sort((a, b) => a.Item1.CompareTo(b.Item1));
             fast = list.ToArray();
             Interlocked.CompareExchange(ref _fast, fast, null);
             fast = _fast!;
         }
-        double sum = 0;
-        foreach (var (n, lnAH, du) in fast)
-        {
-            if (!(n < nStart)) continue;
-            double lnX = lnK - lnAH;
-            if (lnX <= 0) continue;
-            sum += du >= 0 ? du * Math.Exp(-2.0 * lnX) : -du * Math.Exp(-lnX);
-        }
-        return sum;
+        return fast;
     }
 
     private bool HasKink(int i, IReadOnlyList<double> kinks)

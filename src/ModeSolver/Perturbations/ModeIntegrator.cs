@@ -62,6 +62,7 @@ public sealed class ModeIntegrator
     public ModeResult Solve(IBackground background, double k, ModeSettings settings, FrictionScan? scan = null)
     {
         Setup(background, k, settings);
+        scan ??= background is BackgroundSolution ? FrictionScan.FromStart(background) : null;
         double xs = settings.EffectiveStartDepth;
         double xStop = settings.EffectiveStopDepth;
         double nEnd = background.NEnd;
@@ -103,13 +104,18 @@ public sealed class ModeIntegrator
         double xf = Math.Exp(_lnK - n) / background.At(n).H;
         double missed = settings.InitialData == InitialDataKind.LocalIndexHankel && _scan is not null
             ? _scan.FeatureExcitationBefore(n0 - 1e-9, _lnK - 0.5 * Math.Log(_bg.VScale)) : 0.0;
+        // Beyond this the first-order bound on the missed excitation is no bound (|beta| is no longer small).
+        _startInFeature = missed > MissedExcitationLimit;
         double err = (IntegratorErrorFactor * options.RelativeTolerance + InitialDataError(n0, xs, settings.InitialData) + _deepError + missed) * Cancellation()
                      + 0.1 * _stopCorrection;
         return Results(k, n0, n, xs, xf, _frozen, err);
     }
 
-    // True when the mode had to start inside a fast feature (see StartTime).
+    // True when the missed excitation of earlier fast features is too large for its first-order bound.
     private bool _startInFeature;
+
+    /// <summary>Largest missed feature excitation (relative) whose first-order bound is still reported as a bound.</summary>
+    internal const double MissedExcitationLimit = 0.1;
 
     // Largest |zeta|^2 (carried units) at the accepted steps after horizon exit, and the N of exit (k/aH = 1).
     private double _maxZeta2, _nExit;
@@ -375,7 +381,6 @@ public sealed class ModeIntegrator
             throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} cannot start at k/aH = {depth:G3}: the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}; the smallest k allowed is {kMin:G6} (start the field further up the potential or raise kMin)");
         }
         double n = DepthTime(depth, nA);
-        _startInFeature = false;
         for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > tol; it++)
         {
             double deeper = depth * 1.5;
@@ -390,16 +395,18 @@ public sealed class ModeIntegrator
         {
             double nLimit = DepthTime(MaxKinkDepth, nA);
             double tBad = FirstDriftBefore(nLimit, n, tol, scan);
-            // The feature was already under way where the mode was as deep as the cap allows: it starts inside it, and
-            // local data there miss part of the excitation (no estimate bounds that part).
-            _startInFeature = !double.IsNaN(tBad) && tBad <= nLimit + 0.02 && nLimit > nA;
+            // The same for a fast feature whose missed excitation (FeatureExcitationBefore: first order, no credit for
+            // the oscillation) would exceed the tolerance, where the drift estimate credits the oscillation too much.
+            double lnKUnit = _lnK - 0.5 * Math.Log(_bg.VScale);
+            if (scan is not null && scan.NFrom <= nLimit && scan.FeatureExcitationBefore(n, lnKUnit) > tol)
+            {
+                double tFast = scan.FirstFastCell(nLimit, n);
+                if (!double.IsNaN(tFast) && (double.IsNaN(tBad) || tFast < tBad)) tBad = tFast;
+            }
             if (!double.IsNaN(tBad))
             {
                 n = Math.Max(nA, tBad - FeatureMargin);
                 depth = Math.Exp(LnDepth(n));
-                // Started just before a feature this deep, the result was measured to move by ~3e-5 with the start
-                // (dip benchmark, k/aH ~ 400-500, tolerance 3e-10) while no estimate or check here saw it: not a bound.
-                _startInFeature |= depth > UnverifiedFeatureDepth;
                 for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > tol; it++)
                 {
                     double deeper = depth * 1.5;
@@ -469,9 +476,6 @@ public sealed class ModeIntegrator
         }
         return double.NaN;
     }
-
-    /// <summary>Modes started before a fast feature deeper than this inside the horizon have no verified error bound.</summary>
-    internal const double UnverifiedFeatureDepth = 0.5 * MaxKinkDepth;
 
     /// <summary>Modes deeper than this inside the horizon at a non-smooth point are not started before it (cost grows with the depth).</summary>
     internal const double MaxKinkDepth = 500;

@@ -99,9 +99,8 @@ public sealed record ModeResult(
     /// <summary>n_s = 1 + d ln P_s / d ln k.</summary>
     public double Ns => 1.0 + NsMinusOne;
     /// <summary>
-    /// True when the mode was still deeper than the start cap (k/aH = 500) inside the horizon where a fast feature of the
-    /// background began, so it started inside the feature, or started before one deeper than k/aH = 250:
-    /// <see cref="ErrorEstimate"/> is then not a verified bound.
+    /// True when the mode started after (part of) a fast feature it was inside the horizon for, and the first-order bound
+    /// on the excitation it missed exceeds 0.1: <see cref="ErrorEstimate"/> is then not a bound.
     /// </summary>
     public bool StartedInFeature { get; init; }
 }

@@ -312,8 +312,8 @@ public static class SpectrumPipeline
     }
 
     /// <summary>
-    /// The one warning line naming the k range whose error estimate is not a bound (modes that had to start inside a fast
-    /// feature), or null when every estimate is one.
+    /// The one warning line naming the k range whose error estimate is not a bound (modes that start after a fast feature
+    /// that excited them too strongly for the first-order bound), or null when every estimate is one.
     /// </summary>
     private static string? UnboundedWarning(PrimordialSpectrum spectrum, double[] kMpc)
     {
@@ -327,8 +327,8 @@ public static class SpectrumPipeline
         }
         if (first < 0) return null;
         return string.Format(CultureInfo.InvariantCulture,
-            "the error estimate is not a bound at {0} of {1} wavenumbers in k = {2:G4} .. {3:G4} /Mpc: those modes were more than {4} times inside the horizon when a fast feature of the background began (tolerance_met: false)",
-            count, spectrum.Count, kMpc[first], kMpc[last], Perturbations.ModeIntegrator.UnverifiedFeatureDepth);
+            "the error estimate is not a bound at {0} of {1} wavenumbers in k = {2:G4} .. {3:G4} /Mpc: those modes start after a fast feature of the background that excited them by more than {4} (a first-order bound) while they were inside the horizon (tolerance_met: false)",
+            count, spectrum.Count, kMpc[first], kMpc[last], Perturbations.ModeIntegrator.MissedExcitationLimit);
     }
 
     /// <summary>The one warning line of a run whose estimated error exceeds the requested tolerance.</summary>

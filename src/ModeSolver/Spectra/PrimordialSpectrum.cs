@@ -26,8 +26,8 @@ public sealed record PrimordialSpectrum
     /// <summary>Estimated relative error of P at each sample.</summary>
     public required double[] ErrorEstimate { get; init; }
     /// <summary>
-    /// False where <see cref="ErrorEstimate"/> is not a bound: the mode was deeper than the start cap inside the horizon
-    /// when a fast feature began, so it started inside it (<see cref="Perturbations.ModeResult.StartedInFeature"/>).
+    /// False where <see cref="ErrorEstimate"/> is not a bound: the mode started after a fast feature whose missed excitation
+    /// is too large for its first-order bound (<see cref="Perturbations.ModeResult.StartedInFeature"/>).
     /// Empty means all bounded.
     /// </summary>
     public bool[] ErrorBounded { get; init; } = [];

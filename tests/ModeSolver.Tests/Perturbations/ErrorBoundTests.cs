@@ -76,6 +76,10 @@ public class ErrorBoundTests
         {
             if (spec.ErrorBounded.Length > 0 && !spec.ErrorBounded[j]) continue; // said so in the output
             var m = integrator.Solve(pivot.Background, spec.K[j], reference);
+            // Near a fast feature the tolerance hardly moves the start: then again from 4x and 16x deeper, until the
+            // reference's own estimate is 10x below the sample's.
+            for (int i = 0; i < 2 && m.ErrorEstimate > 0.1 * spec.ErrorEstimate[j]; i++)
+                m = integrator.Solve(pivot.Background, spec.K[j], reference with { StartDepth = 4 * m.StartDepth });
             double trueError = Math.Max(Math.Abs(spec.Ps[j] / m.Ps - 1), Math.Abs(spec.Pt[j] / m.Pt - 1));
             Assert.True(trueError <= spec.ErrorEstimate[j],
                 $"{name}: k = {pivot.ToInverseMpc(spec.K[j]):G5} /Mpc: true error {trueError:E2} above the reported {spec.ErrorEstimate[j]:E2}");
