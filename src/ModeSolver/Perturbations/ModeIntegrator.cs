@@ -78,6 +78,7 @@ public sealed class ModeIntegrator
         _nStopCandidate = DepthTime(xStop, n0);
         _nExit = DepthTime(1.0, n0);
         _maxZeta2 = 0;
+        _freeDecayCalibrated = xs <= 1.01 * settings.EffectiveStartDepth;
         double stepTol = settings.Tolerance * settings.StepToleranceRatio;
         var options = new OdeOptions
         {
@@ -117,9 +118,12 @@ public sealed class ModeIntegrator
     /// <summary>Largest missed feature excitation (relative) whose first-order bound is still reported as a bound.</summary>
     internal const double MissedExcitationLimit = 0.1;
 
-    // Largest |zeta|^2 / (1 + x_lo^2) (carried units) at the accepted steps after horizon exit (FreeDecayLowerBound),
-    // and the N of exit (k/aH = 1).
+    // Largest |zeta|^2 (carried units; divided by 1 + x_lo^2 when _freeDecayCalibrated) at the accepted steps after
+    // horizon exit, and the N of exit (k/aH = 1).
     private double _maxZeta2, _nExit;
+
+    // True when the mode starts at the default depth, where the integrator and initial-data coefficients were measured.
+    private bool _freeDecayCalibrated;
 
     /// <summary>
     /// A lower bound on k/aH at <paramref name="n"/> after the exit at <paramref name="nExit"/>: d ln(k/aH)/dN = -(1 - e1)
@@ -132,11 +136,14 @@ public sealed class ModeIntegrator
     /// horizon exit over the final |zeta|, squared for P (at least 1). The step control keeps errors relative to the
     /// state's size; where zeta then largely cancels outside the horizon (the dip before an ultra-slow-roll peak, where
     /// P_s falls by many decades), an error of the earlier size remains and is that much larger relative to what is left.
-    /// Each |zeta|^2 is first divided by the free decay 1 + (k/aH)^2 that every mode undergoes after exit (|zeta|^2 is
-    /// proportional to 1 + (k/aH)^2 for the quasi-de Sitter solution, physics.md 3), with k/aH bounded below (<see cref="DepthLowerBound"/>, so
-    /// the division is never by more than the decay): the integrator factor and the initial-data coefficient were measured
-    /// on the final P of such modes, so that decay is already in them. Counted again it made every ordinary mode's estimate
-    /// 1.6-2x larger (Starobinsky pivot at 1e-6: 1.66e-6 reported, 6.0e-7 off a 1e-11 re-solve; 9.2e-7 reported now).
+    /// For a mode started at the default depth each |zeta|^2 is first divided by the free decay 1 + (k/aH)^2 that every
+    /// mode undergoes after exit (|zeta|^2 is proportional to 1 + (k/aH)^2 for the quasi-de Sitter solution, physics.md 3),
+    /// with k/aH bounded below (<see cref="DepthLowerBound"/>, so the division is never by more than the decay): the
+    /// integrator factor and the initial-data coefficient were measured on the final P of such modes, so that decay is
+    /// already in them. Counted again it made every ordinary mode's estimate 1.6-2x larger (Starobinsky pivot at 1e-6:
+    /// 1.66e-6 reported, 6.0e-7 off a 1e-11 re-solve; 9.2e-7 reported now). Modes started deeper (before a feature) keep
+    /// the full factor: their integration error is larger than the calibration's (step deck, start k/aH = 123: 0.14 of the
+    /// step tolerance, above the factor 0.1), and the full factor is what covered it.
     /// </summary>
     private double Cancellation()
     {
@@ -302,7 +309,7 @@ public sealed class ModeIntegrator
     {
         if (_scalar && n >= _nExit)
         {
-            double xLo = DepthLowerBound(n, _nExit);
+            double xLo = _freeDecayCalibrated ? DepthLowerBound(n, _nExit) : 0.0;
             _maxZeta2 = Math.Max(_maxZeta2, (y[0] * y[0] + y[1] * y[1]) / (1.0 + xLo * xLo));
         }
         if (n < _nStopCandidate) return false;
