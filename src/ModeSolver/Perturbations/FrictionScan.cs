@@ -10,6 +10,9 @@ namespace ModeSolver.Perturbations;
 /// The same pass tabulates how fast the local indices nu (scalar and tensor) drift, times (aH)^3, so that a mode can
 /// find cheaply whether a fast but smooth feature lies between the depth where it could start and where it would:
 /// local vacuum data started after such a feature miss the excitation it left (see <see cref="ModeIntegrator"/>).
+/// It also counts the extrema of e2 (sign changes of d e2/dN = e2 e3 between grid points), from which
+/// <see cref="MaxOscillationFrequency"/> measures how fast the background oscillates (an oscillating term in V):
+/// modes resonate with it at -k tau ~ omega/2 and must start deeper than that.
 /// </summary>
 public sealed class FrictionScan
 {
@@ -24,6 +27,8 @@ public sealed class FrictionScan
     private readonly double[] _lnAH; // ln(aH) at unit V scale, so that one table serves every rescaled view
     private readonly double _lnSqrtScale;
     private readonly double[] _logDrift;
+    private readonly double[] _slopeE2; // d e2/dN at the grid points
+    private readonly int[] _extremaAfter; // extrema of e2 in the cells at and after each index
     private readonly object _gate = new();
     private int _lo; // lowest grid index computed so far (entries at and above it are final)
 
@@ -42,6 +47,8 @@ public sealed class FrictionScan
         _nuT = new double[m];
         _lnAH = new double[m];
         _logDrift = new double[m - 1];
+        _slopeE2 = new double[m];
+        _extremaAfter = new int[m];
         _lo = m;
     }
 
@@ -84,7 +91,10 @@ public sealed class FrictionScan
                 _nuS[i] = ModeIntegrator.ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
                 _nuT[i] = ModeIntegrator.TensorIndexOf(p.Epsilon1);
                 _lnAH[i] = n + Math.Log(p.H) - _lnSqrtScale;
+                _slopeE2[i] = p.Epsilon2 * p.Epsilon3;
                 if (i == m - 1) { _logG[i] = 0.0; continue; }
+                bool extremum = _slopeE2[i] * _slopeE2[i + 1] < 0 || (_slopeE2[i] != 0 && _slopeE2[i + 1] == 0);
+                _extremaAfter[i] = _extremaAfter[i + 1] + (extremum ? 1 : 0);
                 // The smaller end value of F over the cell: conservative.
                 double fc = Math.Min(_f[i], _f[i + 1]);
                 _logG[i] = Math.Max(0.0, _logG[i + 1] - fc * _dn);
@@ -129,6 +139,41 @@ public sealed class FrictionScan
             if (_logDrift[i] > limit) return _n0 + i * _dn;
         return double.NaN;
     }
+
+    /// <summary>Width in e-folds of the window over which extrema of e2 are counted.</summary>
+    public const double FrequencyWindow = 2.0;
+
+    /// <summary>Fewest extrema of e2 in one window (two periods) that count as an oscillation; fewer give frequency 0.</summary>
+    public const int MinExtrema = 4;
+
+    /// <summary>
+    /// The largest local oscillation frequency of the background (radians per e-fold) over windows of
+    /// <see cref="FrequencyWindow"/> e-folds overlapping [<paramref name="nFrom"/>, <paramref name="nTo"/>]:
+    /// pi times the extrema of e2 per e-fold (a sinusoid of frequency omega has omega/pi extrema per e-fold). 0 when no
+    /// window holds <see cref="MinExtrema"/> extrema (a smooth background). The 0.01 e-fold grid resolves omega up to
+    /// about 150; beyond that (an extremum in most cells) the count saturates and <see cref="OscillationUnresolved"/> is true.
+    /// </summary>
+    public double MaxOscillationFrequency(double nFrom, double nTo)
+    {
+        int w = (int)Math.Round(FrequencyWindow / _dn);
+        int cells = _extremaAfter.Length - 1;
+        int i0 = Math.Max(0, (int)Math.Floor((nFrom - _n0) / _dn) - w / 2);
+        int i1 = Math.Min(cells, (int)Math.Ceiling((nTo - _n0) / _dn) + w / 2);
+        if (i1 <= i0) return 0.0;
+        if (i0 < Volatile.Read(ref _lo)) ExtendTo(i0);
+        int best = 0;
+        int step = Math.Max(1, w / 8);
+        for (int a = i0; a < i1; a += step)
+        {
+            int b = Math.Min(cells, a + w);
+            best = Math.Max(best, _extremaAfter[a] - _extremaAfter[b]);
+            if (b == cells) break;
+        }
+        return best < MinExtrema ? 0.0 : Math.PI * best / (w * _dn);
+    }
+
+    /// <summary>True when a frequency this high is beyond what the scan's grid resolves (more than one extremum per three cells).</summary>
+    public bool OscillationUnresolved(double omega) => omega * _dn > Math.PI / 3;
 
     /// <summary>First N covered.</summary>
     public double NFrom => _n0;

@@ -17,7 +17,7 @@ namespace ModeSolver.Perturbations;
 /// The zeta form needs no e3 and keeps zeta, zeta' continuous where V_phi jumps (e2 jumps but stays finite).
 /// A reusable, single-threaded workspace: keep one per thread. The right-hand side does not allocate.
 /// </summary>
-public sealed class ModeIntegrator
+public sealed partial class ModeIntegrator
 {
     private const int MaxDim = 24;
     private readonly double[] _y = new double[MaxDim];
@@ -77,8 +77,8 @@ public sealed class ModeIntegrator
         _nStopCandidate = DepthTime(xStop, n0);
         var options = new OdeOptions
         {
-            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio,
-            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
+            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
             Observer = _observer,
@@ -189,6 +189,7 @@ public sealed class ModeIntegrator
             dNu = Math.Max(dNu, Math.Abs(TensorIndex(hi) - TensorIndex(lo)) / (hi - lo));
             dev = Math.Max(dev, Math.Abs(TensorIndex(n0) - 1.5));
         }
+        dNu = Math.Max(dNu, OscillatingDrift(n0));
         return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : dev / (xs * xs) + dNu / (xs * xs * xs);
     }
 
@@ -253,8 +254,8 @@ public sealed class ModeIntegrator
         SetInitialData(n0, settings.InitialData);
         var options = new OdeOptions
         {
-            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio,
-            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
+            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
         };
@@ -313,6 +314,7 @@ public sealed class ModeIntegrator
     /// </summary>
     private double StartTime(ref double depth, double tol, InitialDataKind kind, FrictionScan? scan = null)
     {
+        _oscScan = scan ?? FrictionScan.FromStart(_bg);
         double nA = _bg.NStart;
         double lnDepthA = LnDepth(nA);
         if (lnDepthA < Math.Log(depth))
@@ -348,6 +350,7 @@ public sealed class ModeIntegrator
                 }
             }
         }
+        ResonantStart(ref n, ref depth, nA, lnDepthA, tol, kind, scan);
         var ns = _bg.NonSmoothTimes;
         for (int i = 0; i < ns.Count; i++)
         {
