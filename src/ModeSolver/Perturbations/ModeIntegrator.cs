@@ -97,7 +97,9 @@ public sealed partial class ModeIntegrator
         }
         if (_frozen) ApplyFreeze();
         double xf = Math.Exp(_lnK - n) / background.At(n).H;
-        double err = IntegratorErrorFactor * options.RelativeTolerance + 0.1 * _stopCorrection + InitialDataError(n0, xs, settings.InitialData) + _deepError;
+        // The integrator part is that of the nominal step tolerance: deep starts take tighter steps (DeepStepScale) so that
+        // their global error, which grows with the oscillations integrated, stays at the nominal level.
+        double err = IntegratorErrorFactor * settings.Tolerance * settings.StepToleranceRatio + 0.1 * _stopCorrection + InitialDataError(n0, xs, settings.InitialData) + _deepError;
         return Results(k, n0, n, xs, xf, _frozen, err);
     }
 
@@ -164,7 +166,8 @@ public sealed partial class ModeIntegrator
     /// Truncation of the initial data. The local-index Hankel data are exact for constant nu (power law); their error
     /// follows the drift of the index and falls like the cube of the start depth: about 0.2 |d nu/dN| / x^3 measured
     /// on the quadratic model (x = 4..23); reported with a factor 5 margin. The quasi-de Sitter data leave
-    /// about |nu - 3/2| / x^2 (physics.md 3 figures).
+    /// about 1.5 |nu - 3/2| / x^2 in P (the x^-2 term of the Hankel asymptotic series, Abramowitz &amp; Stegun 9.2.7,
+    /// (4 nu^2 - 1)(4 nu^2 - 9)/(128 x^2), against nu = 3/2), reported as 2 |nu - 3/2| / x^2.
     /// </summary>
     private double InitialDataError(double n0, double xs, InitialDataKind kind)
     {
@@ -190,7 +193,7 @@ public sealed partial class ModeIntegrator
             dev = Math.Max(dev, Math.Abs(TensorIndex(n0) - 1.5));
         }
         dNu = Math.Max(dNu, OscillatingDrift(n0));
-        return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : dev / (xs * xs) + dNu / (xs * xs * xs);
+        return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : 2.0 * dev / (xs * xs) + dNu / (xs * xs * xs);
     }
 
     private double ScalarIndex(double n)
