@@ -29,6 +29,7 @@ public sealed class FrictionScan
     private readonly double[] _logDrift;
     private readonly double[] _slopeE2; // d e2/dN at the grid points
     private readonly int[] _extremaAfter; // extrema of e2 in the cells at and after each index
+    private double _lastExtremum = double.NaN; // e2 at the last extremum counted (the table fills backwards)
     private readonly object _gate = new();
     private int _lo; // lowest grid index computed so far (entries at and above it are final)
 
@@ -93,8 +94,16 @@ public sealed class FrictionScan
                 _lnAH[i] = n + Math.Log(p.H) - _lnSqrtScale;
                 _slopeE2[i] = p.Epsilon2 * p.Epsilon3;
                 if (i == m - 1) { _logG[i] = 0.0; continue; }
+                // An extremum counts when e2 has swung by more than MinSwing since the last one counted: round-off
+                // wiggles of a constant e2 (power law) are not an oscillation.
                 bool extremum = _slopeE2[i] * _slopeE2[i + 1] < 0 || (_slopeE2[i] != 0 && _slopeE2[i + 1] == 0);
-                _extremaAfter[i] = _extremaAfter[i + 1] + (extremum ? 1 : 0);
+                bool counted = false;
+                if (extremum)
+                {
+                    if (double.IsNaN(_lastExtremum)) _lastExtremum = p.Epsilon2;
+                    else if (Math.Abs(p.Epsilon2 - _lastExtremum) > MinSwing) { counted = true; _lastExtremum = p.Epsilon2; }
+                }
+                _extremaAfter[i] = _extremaAfter[i + 1] + (counted ? 1 : 0);
                 // The smaller end value of F over the cell: conservative.
                 double fc = Math.Min(_f[i], _f[i + 1]);
                 _logG[i] = Math.Max(0.0, _logG[i + 1] - fc * _dn);
@@ -139,6 +148,13 @@ public sealed class FrictionScan
             if (_logDrift[i] > limit) return _n0 + i * _dn;
         return double.NaN;
     }
+
+    /// <summary>
+    /// Smallest swing of e2 between successive extrema that counts as an oscillation. A resonance of swing s moves P_s by
+    /// about (s/4) sqrt(2 pi/omega) &lt;= 0.63 s (the first-order resonant amplitude with e2 = 6 b sin), so smaller swings
+    /// matter below 1e-8 relative.
+    /// </summary>
+    public const double MinSwing = 1e-8;
 
     /// <summary>Width in e-folds of the window over which extrema of e2 are counted.</summary>
     public const double FrequencyWindow = 2.0;
