@@ -8,7 +8,13 @@ using ModeSolver.Pipeline;
 // `--sweep-scale N [--machinery] [--threads T] [--out DIR]`: a pivot-only sweep of N points, peak memory and points/s.
 // `--warm-deck DECK [REPS]`: warm median of SpectrumPipeline.Run on a deck, one line (for benchmarks/baseline/compare.py).
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
+// `--resonant-depths DECK [f]`: RHS work per mode against the start depth on a resonant deck, with and without the propagator.
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
+if (args.Length >= 2 && args[0] == "--resonant-depths")
+{
+    ModeSolver.Benchmarks.Perturbations.ResonantDepthWork.Run(args);
+    return;
+}
 if (args.Length >= 2 && args[0] == "--sweep-scale")
 {
     ModeSolver.Benchmarks.Sweeps.SweepScaleBenchmark.Run(args);
