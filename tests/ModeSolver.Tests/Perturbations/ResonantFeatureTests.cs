@@ -95,6 +95,17 @@ public class ResonantFeatureTests
             $"P_s off the deep start (k/aH {deep.StartDepth:G4}) by {dev:E2}; reported {mode.ErrorEstimate:E2} + {deep.ErrorEstimate:E2}");
     }
 
+    [Fact]
+    public void AModeTheBackgroundCannotStartBeyondTheResonanceIsRefused()
+    {
+        // k/aH = 100 at the background's start is enough for the plain rule (7) but not for 2 omega = 2 x 83 there.
+        var c = Cases[1e-3].Value;
+        double k = 100 * Math.Exp(c.Bg.NStart) * c.Bg.At(c.Bg.NStart).H;
+        var e = Assert.Throws<ModeSolver.Physics.PhysicsException>(() => new ModeIntegrator().Solve(c.Bg, k, new ModeSettings { Derivatives = false }));
+        Assert.Contains("oscillation frequency", e.Message);
+        Assert.Contains("phi0", e.Message);
+    }
+
     [Theory]
     [InlineData(1e-2)]
     [InlineData(1e-3)]
