@@ -78,7 +78,8 @@ public static class SweepDensityPlot
         // no per-value legend or marker table of a long axis is built).
         var standIn = new SweepSpec([SweepAxis.List("point", [0.0])]);
         var plot = SweepPlot.Build(standIn, [], options);
-        plot.Title($"n_s and r: density of {n} points (sweep over {string.Join(", ", spec.Keys)})");
+        string what = $"n_s and r: density of {n} points (sweep over {string.Join(", ", spec.Keys)})";
+        plot.Title(string.IsNullOrWhiteSpace(options.Subject) ? what : $"{options.Subject}: {what}");
         var map = plot.Add.Heatmap(counts);
         map.Extent = new CoordinateRect(xmin, xmax, ymin, ymax);
         map.Colormap = new ScottPlot.Colormaps.Viridis();
