@@ -27,8 +27,9 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>Thresholds of the slow-roll disagreement flags (deck table [flags]).</summary>
     public Diagnostics.FlagSettings Flags { get; init; } = Diagnostics.FlagSettings.Default;
 
-    /// <summary>A one-paragraph human summary of the resolved settings.</summary>
-    public string Summary()
+    /// <summary>A one-paragraph human summary of the resolved settings; without <paramref name="spectrum"/> (the
+    /// background command) the modes and outputs, which that command does not use, are left out.</summary>
+    public string Summary(bool spectrum = true)
     {
         var c = CultureInfo.InvariantCulture;
         var parts = new List<string>();
@@ -45,6 +46,7 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
                 ? string.Create(c, $"Normalised to A_s = {a:G4} at the pivot by solving for the parameter {sf} (V not rescaled).")
                 : string.Create(c, $"Normalised to A_s = {a:G4} at the pivot.")
             : "Not normalised (V used as given).");
+        if (!spectrum) return string.Join(" ", parts);
         parts.Add(string.Create(c, $"Modes: {KRange.Count} wavenumbers in [{KRange.KMin:G4}, {KRange.KMax:G4}]/Mpc, tolerance {KRange.Tolerance:G3}."));
         parts.Add($"Output: {Output.Directory} ({string.Join(", ", Output.Formats)}).");
         return string.Join(" ", parts);
