@@ -189,6 +189,26 @@ public class FirstHourCliTests
     }
 
     [Fact]
+    public void Frame_plots_carry_the_model_name()
+    {
+        string dir = CliRunner.TempDir("frame-title");
+        try
+        {
+            var run = Run("frame", "--model", "higgs-like", "--phi-min", "0", "--phi-max", "0.3", "--points", "40", "--out", dir);
+            Assert.True(run.Code == 0, run.Err);
+            Assert.Contains("higgs-like: potential against the canonical field", Output.SvgText.Of(File.ReadAllText(Path.Combine(dir, "frame-potential.svg"))));
+            Assert.Contains("higgs-like: canonical field chi(phi)", Output.SvgText.Of(File.ReadAllText(Path.Combine(dir, "frame-chi.svg"))));
+            var formula = Run("frame", "--potential", "V0*phi^2", "--param", "V0=1", "--phi-min", "0", "--phi-max", "2", "--points", "20", "--out", Path.Combine(dir, "f"));
+            Assert.True(formula.Code == 0, formula.Err);
+            Assert.Contains("V = V0*phi^2: potential against the canonical field", Output.SvgText.Of(File.ReadAllText(Path.Combine(dir, "f", "frame-potential.svg"))));
+        }
+        finally
+        {
+            if (Directory.Exists(dir)) Directory.Delete(dir, true);
+        }
+    }
+
+    [Fact]
     public void Help_names_modesolver_and_lists_debug()
     {
         var root = Run("--help");
