@@ -69,6 +69,39 @@ public class DeckKeyOptionTests
         Assert.Equal(fromDeck, fromOption);
     }
 
+    [Fact]
+    public void A_deck_with_a_start_in_efolds_solve_for_table_h_and_flags_round_trips_through_the_writer()
+    {
+        static RunSettings FromText(string text) => SettingsResolver.Resolve(DeckReader.Parse(text, "deck.toml"));
+        var s = FromText("""
+            [model]
+            catalogue = "higgs-like"
+            [model.parameters]
+            lambda = 0.13
+            [start]
+            efolds = 68
+            [normalisation]
+            ln_10_10_a_s = 3.05
+            solve_for = "xi"
+            [output]
+            table_h = 0.7
+            [flags]
+            sigma_r = 0.01
+            reference = "potential"
+            """);
+        string text = DeckWriter.Write(s);
+        var back = FromText(text);
+        Assert.Equal(68, back.Initial.StartEfolds);
+        Assert.Equal(s.Model with { Parameters = back.Model.Parameters }, back.Model);
+        Assert.Equal(s.Initial, back.Initial);
+        Assert.Equal(s.Amplitude, back.Amplitude);
+        Assert.Equal("xi", back.Amplitude.SolveFor);
+        Assert.Equal(0.7, back.Output.TableH);
+        Assert.Equal(s.Flags, back.Flags);
+        Assert.Equal(0.01, back.Flags.SigmaR);
+        Assert.Equal(s.Model.Parameters.OrderBy(p => p.Key), back.Model.Parameters.OrderBy(p => p.Key));
+    }
+
     // The deck holding only deckKey, with the first sample value of a fitting TOML type.
     private static RunInput DeckInput(string deckKey)
     {
