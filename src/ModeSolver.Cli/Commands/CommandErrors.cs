@@ -44,6 +44,7 @@ internal static class CommandErrors
                 _ => e.Message,
             };
             // One line always: warnings found before the failure go onto the error's line.
+            if (warnings.Count > 0) msg = msg.TrimEnd('.', ' ');
             foreach (string w in warnings) msg += "; warning: " + w;
             return Report(e, msg, code);
         }

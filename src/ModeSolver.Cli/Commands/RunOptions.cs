@@ -103,6 +103,13 @@ public sealed class RunOptions
     public IReadOnlyList<Option<string?>> FlagThresholds { get; } =
         [.. DeckReader.FlagKeys.Select(k => Opt(FlagOption(k), $"Flag threshold {k} (deck [flags] {k}; see docs/outputs.md)."))];
 
+    /// <summary>--obs-KEY for each key of the deck's [observables] table, in <see cref="ObservablesKeys.All"/> order.</summary>
+    public IReadOnlyList<Option<string?>> ObservableOptions { get; } =
+        [.. ObservablesKeys.All.Select(k => Opt(ObservableOption(k.Key), $"{k.Description} Deck [observables] {k.Key}{(k.Kind == ObservableKeyKind.Switch ? "; without a value: true" : "")}."))];
+
+    /// <summary>The option of an [observables] key: "--obs-" and the key with '_' as '-'.</summary>
+    public static string ObservableOption(string key) => "--obs-" + key.Replace('_', '-');
+
     /// <summary>The option of a [flags] key: "--flag-" and the key with '_' as '-'.</summary>
     public static string FlagOption(string key) => "--flag-" + key.Replace('_', '-');
 
@@ -123,10 +130,12 @@ public sealed class RunOptions
         ("output.dir", "--out"), ("output.formats", "--formats"), ("output.table_h", "--table-h"),
         .. DeckReader.FlagKeys.Select(k => ("flags." + k, FlagOption(k))),
         ("flags.reference", "--flag-reference"),
+        .. ObservablesKeys.Names.Select(k => ("observables." + k, ObservableOption(k))),
     ];
 
     /// <summary>Options `background` refuses: it computes no spectrum and writes no files.</summary>
-    public static IReadOnlyList<string> SpectrumOnlyOptions { get; } = ["--out", "--k-min", "--k-max", "--k-count", "--formats", "--table-h"];
+    public static IReadOnlyList<string> SpectrumOnlyOptions { get; } =
+        ["--out", "--k-min", "--k-max", "--k-count", "--formats", "--table-h", .. ObservablesKeys.Names.Select(ObservableOption)];
 
     /// <summary>
     /// A text-valued option whose value may be missing at parse time, so that a missing value becomes our own one-line
@@ -166,6 +175,8 @@ public sealed class RunOptions
                      o.KPivot, o.Amplitude, o.LnAmplitude, o.NormaliseBy, o.KMin, o.KMax, o.KCount, o.Tolerance, o.Out, o.Formats, o.TableH, o.Title, o.FlagReference })
             if (spectrum || !SpectrumOnlyOptions.Contains(opt.Name)) cmd.Options.Add(opt);
         foreach (var opt in o.FlagThresholds) cmd.Options.Add(opt);
+        foreach (var opt in o.ObservableOptions)
+            if (spectrum) cmd.Options.Add(opt);
         return o;
     }
 
@@ -245,6 +256,14 @@ public sealed class RunOptions
         r.FlagReference = Text(parse, FlagReference);
         for (int i = 0; i < FlagThresholds.Count; i++)
             if (Number(parse, FlagThresholds[i]) is { } f) r.FlagValues[DeckReader.FlagKeys[i]] = f;
+        for (int i = 0; i < ObservableOptions.Count; i++)
+        {
+            var key = ObservablesKeys.All[i];
+            var option = ObservableOptions[i];
+            if (parse.GetResult(option) is not { } result) continue;
+            if (result.Tokens.Count == 0 && key.Kind == ObservableKeyKind.Switch) r.ObservableValues[key.Key] = new("true", option.Name);
+            else if (Text(parse, option) is { } v) r.ObservableValues[key.Key] = v;
+        }
         return r;
     }
 

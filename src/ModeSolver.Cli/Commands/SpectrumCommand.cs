@@ -68,7 +68,7 @@ public static class SpectrumCommand
             Threads = run.Threads,
             Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null,
         };
-        var files = tableOnly ? [] : OutputFiles(settings.Output.Formats);
+        var files = tableOnly ? [] : OutputFiles(settings);
         if (!tableOnly) OutputTransaction.Precheck(settings.Output.Directory, files.Select(f => f.FileName));
         else if (run.TablePath != "-")
         {
@@ -98,8 +98,9 @@ public static class SpectrumCommand
         return 0;
     }
 
-    private static List<OutputFile> OutputFiles(IReadOnlyList<string> formats)
+    private static List<OutputFile> OutputFiles(RunSettings settings)
     {
+        var formats = settings.Output.Formats;
         var files = new List<OutputFile>();
         if (formats.Contains("json")) files.Add(RunOutputs.Json);
         if (formats.Contains("hdf5")) files.Add(RunOutputs.Hdf5);
@@ -108,6 +109,7 @@ public static class SpectrumCommand
         {
             files.Add(RunOutputs.SpectraPng); files.Add(RunOutputs.SpectraSvg);
             files.Add(RunOutputs.BackgroundPng); files.Add(RunOutputs.BackgroundSvg);
+            files.AddRange(RunOutputs.ObservablePlots(settings.Observables));
         }
         return files;
     }

@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Runtime.InteropServices;
 using ModeSolver.Cluster;
+using ModeSolver.Output;
 using ModeSolver.Sweeps;
 using Spectre.Console;
 
@@ -41,7 +42,7 @@ public static class SweepCommand
     /// Builds the physics evaluator for a deck: the run deck (without <c>[sweep]</c>) parsed once, the swept keys
     /// checked (an unknown key is a one-line error listing the valid ones) before any point runs.
     /// </summary>
-    public static PipelineSweepEvaluator CreateEvaluator(string deckPath) => PipelineSweepEvaluator.FromDeck(deckPath);
+    public static PipelineSweepEvaluator CreateEvaluator(string deckText, string source) => PipelineSweepEvaluator.FromDeckText(deckText, source);
 
     private static int Run(FileInfo deckFile, DirectoryInfo? outDir, int? threads, string? shardText, bool restart, bool quiet, bool logR,
         long maxPoints, CancellationToken ct)
@@ -65,12 +66,12 @@ public static class SweepCommand
             if (!deckFile.Exists) throw new SweepException($"{deckFile.FullName}: deck not found");
             if (threads is < 1) throw new SweepException($"--threads: must be at least 1, got {threads}");
             var shard = shardText is null ? ShardSpec.All : ShardSpec.Parse(shardText);
-            string deckText = File.ReadAllText(deckFile.FullName);
+            string deckText = SweepDeck.ReadText(deckFile.FullName);
             if (maxPoints < 1) throw new SweepException($"--max-points: must be at least 1, got {maxPoints}");
             var spec = SweepDeck.ParseSpec(deckText, deckFile.FullName);
             spec.CheckPointCount(maxPoints, deckFile.FullName);
             string dir = outDir?.FullName ?? Path.Combine(deckFile.DirectoryName ?? ".", Path.GetFileNameWithoutExtension(deckFile.Name) + "-sweep");
-            var evaluator = CreateEvaluator(deckFile.FullName);
+            var evaluator = CreateEvaluator(deckText, deckFile.FullName); // the text read once, within the deck limits
             evaluator.ValidateGrid(spec);
             // No progress bar (and so no terminal control codes) under mpirun, whose ranks may sit on a pseudo-terminal.
             bool showProgress = comm.Rank == 0 && !quiet && !Console.IsErrorRedirected && !MessagePassing.LaunchedByMpi;
@@ -105,10 +106,10 @@ public static class SweepCommand
             if (comm.Rank != 0) return summary.Completed ? 0 : InterruptedExitCode;
             if (!summary.Completed)
             {
-                Console.Error.WriteLine($"sweep interrupted: {summary.Done} of {summary.Total} points done in {dir}; run the same command again to resume");
+                Console.Error.WriteLine(TextSafety.Printable($"sweep interrupted: {summary.Done} of {summary.Total} points done in {dir}; run the same command again to resume"));
                 return InterruptedExitCode;
             }
-            Console.WriteLine($"sweep: {summary.Total} points, {summary.Done - summary.Failed} ok, {summary.Failed} failed ({summary.Resumed} from an earlier run) -> {dir}");
+            Console.WriteLine(TextSafety.Printable($"sweep: {summary.Total} points, {summary.Done - summary.Failed} ok, {summary.Failed} failed ({summary.Resumed} from an earlier run) -> {dir}"));
             return 0;
         }
         catch (Exception e) when (e is SweepException or MessagePassingException or ModeSolver.Decks.DeckException)
@@ -141,5 +142,6 @@ public static class SweepCommand
         return Math.Max(1, Environment.ProcessorCount / perNode);
     }
 
-    private static string SweepDeckMessage(string s) => s.Replace('\n', ' ').Replace('\r', ' ');
+    /// <summary>One line with every control character of the deck or path shown as U+XXXX.</summary>
+    private static string SweepDeckMessage(string s) => TextSafety.Printable(s);
 }

@@ -1,4 +1,5 @@
 using System.CommandLine;
+using ModeSolver.Output;
 using ModeSolver.Sweeps;
 
 namespace ModeSolver.Cli.Commands;
@@ -22,12 +23,12 @@ public static class SweepMergeCommand
                 string deckCopy = Path.Combine(outDir, SweepFiles.Deck);
                 string? subject = PipelineSweepEvaluator.SubjectOfDeckText(File.ReadAllText(deckCopy), deckCopy);
                 SweepDensityPlot.Write(outDir, spec, SweepResults.Open(outDir).Records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) || spec.LogR, Subject = subject });
-                Console.WriteLine($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}");
+                Console.WriteLine(TextSafety.Printable($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}"));
                 return 0;
             }
             catch (Exception e) when (e is SweepException or IOException or UnauthorizedAccessException)
             {
-                Console.Error.WriteLine($"modesolver: {e.Message.Replace('\n', ' ')}");
+                Console.Error.WriteLine("modesolver: " + TextSafety.Printable(e.Message));
                 return 2;
             }
         }));

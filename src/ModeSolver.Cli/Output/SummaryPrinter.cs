@@ -84,6 +84,7 @@ public static class SummaryPrinter
         info.AddRow("max rel. error", Num(p.MaxRelError, "0.0e+00"), "");
         info.AddRow("RHS evals / mode", Num(p.RhsEvaluationsPerMode, "0"), "");
         console.Write(info);
+        ObservablesPrinter.Print(console, plain, report.Observables);
 
         // Flags and warnings: one line each. Plain output bypasses Spectre's wrapping so a line is never split.
         if (report.Flags.IsDefaultOrEmpty)
@@ -112,7 +113,7 @@ public static class SummaryPrinter
         info.AddRow("r at 0.002/Mpc", Num(d.R002, "0.00000e+00"), how);
     }
 
-    private static void Line(IAnsiConsole console, bool plain, string text, string? colour)
+    internal static void Line(IAnsiConsole console, bool plain, string text, string? colour)
     {
         if (plain)
         {

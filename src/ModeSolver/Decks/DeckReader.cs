@@ -27,6 +27,7 @@ public static class DeckReader
         ["modes"] = ["k_min", "k_max", "count", "tolerance"],
         ["output"] = ["dir", "formats", "table_h"],
         ["flags"] = [.. FlagKeys, "reference"],
+        ["observables"] = [.. ObservablesKeys.Names],
     };
 
     /// <summary>Converts ln(10^10 A_s), the form papers quote, to A_s.</summary>
@@ -213,6 +214,7 @@ public static class DeckReader
                         break;
                     default:
                         if (section == "flags") _input.FlagValues[key] = Number(table, key, full, value);
+                        else if (section == "observables") _input.ObservableValues[key] = Observable(table, key, full, value);
                         break;
                 }
             }
@@ -227,6 +229,19 @@ public static class DeckReader
                 _ => throw Error(table, key, full, $"must be {expected} (got {Describe(value)})"),
             };
             return new Located<double>(x, full, file, LineOf(table, key));
+        }
+
+        // An [observables] value checked for its TOML type and kept as text (the resolver checks its range).
+        private Located<string> Observable(TomlTable table, string key, string full, object? value)
+        {
+            string text = ObservablesKeys.KindOf(key) switch
+            {
+                ObservableKeyKind.Switch => value is bool b ? (b ? "true" : "false") : throw Error(table, key, full, $"must be true or false (got {Describe(value)})"),
+                ObservableKeyKind.Whole => value is long l ? l.ToString(CultureInfo.InvariantCulture) : throw Error(table, key, full, $"must be a whole number (got {Describe(value)})"),
+                ObservableKeyKind.Word => String(table, key, full, value),
+                _ => Number(table, key, full, value).Value.ToString("R", CultureInfo.InvariantCulture),
+            };
+            return new Located<string>(text, full, file, LineOf(table, key));
         }
 
         private string String(TomlTable table, string key, string full, object? value) =>

@@ -87,7 +87,29 @@ public static class DeckWriter
                  })
             sb.AppendLine($"{key} = {Num(value)}");
         sb.AppendLine($"reference = {Str(f.Reference switch { Diagnostics.SlowRollReference.FirstOrder => "first_order", Diagnostics.SlowRollReference.Potential => "potential", _ => "second_order" })}");
+        WriteObservables(sb, s.Observables);
         return sb.ToString();
+    }
+
+    // The [observables] keys whose values differ from the defaults (none: no table).
+    private static void WriteObservables(StringBuilder sb, Observables.ObservablesSettings o)
+    {
+        var defaults = ObservablesKeys.Entries(Observables.ObservablesSettings.Default);
+        var entries = ObservablesKeys.Entries(o);
+        bool header = false;
+        for (int i = 0; i < entries.Count; i++)
+        {
+            var (key, value, _) = entries[i];
+            if (value == defaults[i].Value) continue;
+            if (!header) { sb.AppendLine(); sb.AppendLine("[observables]"); header = true; }
+            string text = ObservablesKeys.KindOf(key) switch
+            {
+                ObservableKeyKind.Number => Num(double.Parse(value, CultureInfo.InvariantCulture)),
+                ObservableKeyKind.Word => Str(value),
+                _ => value,
+            };
+            sb.AppendLine($"{key} = {text}");
+        }
     }
 
     /// <summary>A TOML float that reads back to the same double (always with a '.' or exponent).</summary>

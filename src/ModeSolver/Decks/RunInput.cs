@@ -116,6 +116,9 @@ public sealed class RunInput
     /// <summary>Slow-roll reference of the flags ("first_order", "second_order" or "potential").</summary>
     public Located<string>? FlagReference { get; set; }
 
+    /// <summary>[observables] values by key (see <see cref="ObservablesKeys"/>), as text: "true"/"false", numbers, words.</summary>
+    public Dictionary<string, Located<string>> ObservableValues { get; } = new(StringComparer.Ordinal);
+
     /// <summary>
     /// The deck overridden by the command line (the command line wins). Choosing a model source on the command line
     /// (--model, or --potential) replaces the deck's; choosing N_* directly (--efolds) replaces the deck's reheating
@@ -164,6 +167,8 @@ public sealed class RunInput
         foreach (var (k, v) in deck.FlagValues) r.FlagValues[k] = v;
         foreach (var (k, v) in overrides.FlagValues) r.FlagValues[k] = v;
         r.FlagReference = overrides.FlagReference ?? deck.FlagReference;
+        foreach (var (k, v) in deck.ObservableValues) r.ObservableValues[k] = v;
+        foreach (var (k, v) in overrides.ObservableValues) r.ObservableValues[k] = v;
         return r;
     }
 }

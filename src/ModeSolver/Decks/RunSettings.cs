@@ -27,8 +27,11 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>Thresholds of the slow-roll disagreement flags (deck table [flags]).</summary>
     public Diagnostics.FlagSettings Flags { get; init; } = Diagnostics.FlagSettings.Default;
 
+    /// <summary>Which observables to compute from the spectrum and every choice they use (deck table [observables]).</summary>
+    public ModeSolver.Observables.ObservablesSettings Observables { get; init; } = ModeSolver.Observables.ObservablesSettings.Default;
+
     /// <summary>A one-paragraph human summary of the resolved settings; without <paramref name="spectrum"/> (the
-    /// background command) the modes and outputs, which that command does not use, are left out.</summary>
+    /// background command) the modes, outputs and observables, which that command does not use, are left out.</summary>
     public string Summary(bool spectrum = true)
     {
         var c = CultureInfo.InvariantCulture;
@@ -49,6 +52,12 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
         if (!spectrum) return string.Join(" ", parts);
         parts.Add(string.Create(c, $"Modes: {KRange.Count} wavenumbers in [{KRange.KMin:G4}, {KRange.KMax:G4}]/Mpc, tolerance {KRange.Tolerance:G3}."));
         parts.Add($"Output: {Output.Directory} ({string.Join(", ", Output.Formats)}).");
+        var on = new List<string>();
+        if (Observables.Distance) on.Add("distance to the data");
+        if (Observables.Peak) on.Add("peak summary");
+        if (Observables.InducedGw) on.Add("induced GWs");
+        if (Observables.Pbh) on.Add(string.Create(c, $"black holes (delta_c = {Observables.DeltaC:G4}, gamma = {Observables.Gamma:G3}, {ModeSolver.Observables.PbhWindowText.Code(Observables.Window)} window)"));
+        parts.Add(on.Count == 0 ? "Observables: none." : $"Observables: {string.Join(", ", on)}.");
         return string.Join(" ", parts);
     }
 }

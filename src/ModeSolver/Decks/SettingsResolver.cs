@@ -162,8 +162,11 @@ public static class SettingsResolver
         if (input.Amplitude is { } a)
         {
             if (a.Value is double av && !(av > 0 && av < 1)) throw a.Error($"must be a positive number below 1, or \"none\" (got {av})");
+            if (a.Value is double tiny && tiny < Matching.PivotLimits.MinScalarAmplitude)
+                throw a.Error($"= {tiny:G3} is below {Matching.PivotLimits.MinScalarAmplitude:G1}, outside the double-precision range of the spectra");
             amplitude = new AmplitudeSpec(a.Value);
         }
+        CheckReachableFromReheating(input, efolds is null, amplitude.ScalarAmplitude, kPivot, dof);
         if (input.SolveFor is { } sf)
         {
             string name = sf.Value.Trim();
@@ -239,9 +242,31 @@ public static class SettingsResolver
             DeckPath = input.DeckPath,
             Warnings = warnings,
             Flags = FlagSettingsFor(input),
+            Observables = ObservablesKeys.Resolve(input.ObservableValues),
         };
         CheckTheory(settings, input, entry);
         return settings;
+    }
+
+    /// <summary>
+    /// With N_* from reheating, an A_s or a k_pivot that no model can reach (<see cref="Matching.PivotLimits"/>) is refused
+    /// here instead of failing inside the matching.
+    /// </summary>
+    private static void CheckReachableFromReheating(RunInput input, bool fromReheating, double? scalarAmplitude, double kPivot, double dof)
+    {
+        if (!fromReheating || scalarAmplitude is not double target) return;
+        double minAs = Matching.PivotLimits.MinScalarAmplitudeFromReheating(dof);
+        if (target < minAs)
+        {
+            var key = input.Amplitude!.Value;
+            throw key.Error($"= {target:G3} is below {minAs:G2}, the smallest A_s of any inflation that ends above T_reh = {Matching.ReheatingHistory.MinimumTemperatureGeV} GeV (N_* from reheating; give N_* with pivot.efolds or --efolds to go lower)");
+        }
+        double maxK = Matching.PivotLimits.MaxPivotFromReheating(target, dof);
+        if (kPivot > maxK)
+        {
+            var key = input.KPivot!.Value;
+            throw key.Error($"= {kPivot:G3} 1/Mpc is above {maxK:G2} 1/Mpc, the largest scale that can leave the horizon during inflation with A_s = {target:G4} and T_reh >= {Matching.ReheatingHistory.MinimumTemperatureGeV} GeV (N_* from reheating; give N_* with pivot.efolds or --efolds to go higher)");
+        }
     }
 
     /// <summary>The theory must be valid at phi0 with V &gt; 0 there, and phi_end must lie ahead in the roll direction.</summary>
@@ -261,6 +286,8 @@ public static class SettingsResolver
             throw phi0Key.Error($"= {settings.Initial.Phi0:G6} is outside the theory's valid region: {reason} there");
         var v = theory.Potential(settings.Initial.Phi0);
         if (!(v.Value > 0)) throw phi0Key.Error($"= {settings.Initial.Phi0:G6} gives V = {v.Value:G6}; inflation needs V > 0");
+        if (v.Value < Matching.PivotLimits.MinPotential)
+            throw phi0Key.Error($"= {settings.Initial.Phi0:G6} gives V = {v.Value:G3} (reduced Planck units), below {Matching.PivotLimits.MinPotential:G1}: too close to the double-precision underflow; scale the potential up (the A_s normalisation rescales V anyway)");
         if (settings.Model.PhiEnd is double end)
         {
             double dir = -Math.Sign(v.D1);

@@ -72,6 +72,8 @@ public static class PivotMatcher
                     throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {psPivot} at the pivot (N = {nPiv:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
                 ratio = target / psPivot;
                 s *= ratio;
+                if (!(s > 0) || !double.IsFinite(s))
+                    throw new PhysicsException($"Normalising to A_s = {target:G4} needs the potential scaled by {ratio:G3}, beyond the double-precision range (P_s = {psPivot:G3} at the pivot before scaling); give the potential a scale nearer A_s.");
                 bgs = background.WithVScale(s);
                 pt = bgs.At(nPiv);
                 psPivot = target;
@@ -83,20 +85,32 @@ public static class PivotMatcher
             }
             double hEnd = bgs.At(nEnd).H;
             rhoEnd = 3 * hEnd * hEnd;
-            (nReh, tReh) = Reheat(reh, rhoEnd, settings);
+            // A T_reh above T_end is reported after the loop with both temperatures; until then iterate as if instantaneous.
+            (nReh, tReh) = reh.TRehGeV is double tGiven && tGiven > TemperatureGeV(rhoEnd, settings.GReh)
+                ? Reheat(ReheatingHistory.Instantaneous, rhoEnd, settings)
+                : Reheat(reh, rhoEnd, settings);
             double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
             double lnHMpc = Math.Log(pt.H) + LnMplInMpc;
             double next = lnHMpc - lnKStar - nReh + lnAReh;
+            if (!(next > 0))
+                throw NoHorizonExit(reh, next, tReh, rhoEnd, settings, Math.Exp(next + lnKStar));
             double delta = next - nStar;
             nStar = next;
             if (Math.Abs(delta) < settings.Tolerance && Math.Abs(ratio - 1) < 1e-8) { converged = true; break; }
         }
         if (!converged)
             throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} iterations (last N_* = {nStar:G8}, V scale = {s:G6}); give N_* directly or check the amplitude provider.");
+        var final = background.WithVScale(s);
+        double hEndFinal = final.At(nEnd).H;
+        rhoEnd = 3 * hEndFinal * hEndFinal;
+        if (fromReheating)
+        {
+            (nReh, tReh) = Reheat(reh, rhoEnd, settings);
+            ValidateTemperature(reh, tReh, rhoEnd, settings, nEnd, final);
+        }
         if (nStar > nTotal || nStar <= 0)
             throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {nStar:G6}; start the field further up the potential (phi0).");
 
-        var final = background.WithVScale(s);
         double nPivot = nEnd - nStar;
         var p = final.At(nPivot);
         double kbgStar = Math.Exp(nPivot) * p.H;
@@ -104,19 +118,6 @@ public static class PivotMatcher
         var (kMinServe, _) = final.KRange(settings.PivotStartDepth, 1.0);
         if (!final.TryNAtHorizonExit(kbgStar, out double nExit) || Math.Abs(nExit - nPivot) > 1e-6 || kbgStar < kMinServe)
             throw new PhysicsException($"The pivot (N_* = {nStar:G6}, at N = {nPivot:G8}, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
-
-        if (fromReheating)
-        {
-            double hEnd = final.At(nEnd).H;
-            rhoEnd = 3 * hEnd * hEnd;
-            (nReh, tReh) = Reheat(reh, rhoEnd, settings);
-            ValidateTemperature(reh, tReh, rhoEnd, settings, nEnd, final);
-        }
-        else
-        {
-            double hEnd = final.At(nEnd).H;
-            rhoEnd = 3 * hEnd * hEnd;
-        }
 
         double lnKUnit = Math.Log(kbgStar) - lnKStar;
         var (kMin, kMax) = final.KRange(settings.RangeStartDepth, settings.RangeEndDepth);
@@ -177,6 +178,19 @@ public static class PivotMatcher
         if (tReh > tEnd * (1 + 1e-12))
             throw new PhysicsException($"The reheating temperature T_reh = {tReh:G6} GeV is above the temperature at the end of inflation ({tEnd:G6} GeV, N = {nEnd:G8}, phi = {bg.At(nEnd).Phi:G6}); lower T_reh.");
         if (tReh < ReheatingHistory.MinimumTemperatureGeV)
-            throw new PhysicsException($"The reheating history gives T_reh = {tReh:G6} GeV, below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); shorten reheating (N_reh = {(reh.NReh ?? double.NaN):G6}).");
+            throw TooCold(reh, tReh);
+    }
+
+    private static PhysicsException TooCold(ReheatingHistory reh, double tReh) => reh.NReh is double nr
+        ? new PhysicsException($"The reheating history gives T_reh = {tReh:G6} GeV, below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); shorten reheating (N_reh = {nr:G6}).")
+        : new PhysicsException($"Inflation ends at T = {tReh:G6} GeV{(reh.IsInstantaneous ? " (instantaneous reheating)" : "")}, below {ReheatingHistory.MinimumTemperatureGeV:G3} GeV (nucleosynthesis needs a few MeV); raise the energy scale of inflation (A_s or the potential's scale) or give N_* directly.");
+
+    /// <summary>The reheating history puts the pivot's horizon exit after the end of inflation (N_* &lt;= 0).</summary>
+    private static PhysicsException NoHorizonExit(ReheatingHistory reh, double nStar, double tReh, double rhoEnd, PivotSettings s, double kEndMpc)
+    {
+        if (tReh < ReheatingHistory.MinimumTemperatureGeV) return TooCold(reh, tReh);
+        double tEnd = TemperatureGeV(rhoEnd, s.GReh);
+        string temperatures = reh.IsInstantaneous ? $"instantaneous reheating at T = {tEnd:G3} GeV" : $"T_end = {tEnd:G3} GeV, T_reh = {tReh:G3} GeV";
+        return new PhysicsException($"The pivot k_* = {s.KPivot:G3} 1/Mpc never leaves the horizon during inflation: the reheating history gives N_* = {nStar:G4} ({temperatures}; the largest scale leaving the horizon is about {kEndMpc:G3} 1/Mpc); lower k_pivot or give N_* directly.");
     }
 }

@@ -67,7 +67,11 @@ public static class InducedGravitationalWaves
         double pre = 3 * w / (4 * uv * uv * uv);
         // ln|(3 - (t+1)^2) / (3 - s^2)| = ln|2 - 2t - t^2| - ln(2 + d (1 + s)), with log1p near the corner.
         double num = -t * (2 + t) / 2, den = d * (1 + s) / 2;
-        double log = (Math.Abs(num) < 0.5 ? LogOnePlus(num) : Math.Log(Math.Abs(1 + num))) - LogOnePlus(den);
+        double lnNum = Math.Abs(num) < 0.5 ? LogOnePlus(num) : Math.Log(Math.Abs(1 + num));
+        // Exactly on the resonance u + v = sqrt 3 the logarithm is infinite (an integrable singularity): a quadrature
+        // node that rounds onto it takes the value one step in t away instead.
+        if (double.IsInfinity(lnNum)) return KernelTS(Math.BitIncrement(t), s);
+        double log = lnNum - LogOnePlus(den);
         double brace = Sq(-uv4 + w * log) + (sum > Sqrt3 ? Math.PI * Math.PI * w * w : 0.0);
         return a * a * pre * pre * brace / 12.0;
     }
@@ -135,7 +139,8 @@ public static class InducedGravitationalWaves
         ArgumentNullException.ThrowIfNull(source);
         ArgumentNullException.ThrowIfNull(settings);
         int perDecade = Math.Max(1, settings.GwPointsPerDecade);
-        int count = Math.Max(2, (int)Math.Ceiling(Math.Log10(kHigh / kLow) * perDecade) + 1);
+        var grid = Output.PrimordialTableWriter.LogGrid(kLow, kHigh, perDecade); // the same log grid as the primordial table
+        int count = grid.Length;
         double g = settings.GStar;
         double omegaR = settings.OmegaRadiationH2 ?? RadiationEra.RadiationDensityH2;
         double cg = RadiationEra.TransferCg(g);
@@ -147,7 +152,7 @@ public static class InducedGravitationalWaves
         double peakF = double.NaN, peakOm = 0;
         for (int i = 0; i < count; i++)
         {
-            double ki = kLow * Math.Pow(kHigh / kLow, i / (double)(count - 1));
+            double ki = grid[i];
             var r = OmegaRadiation(source.PsAt, ki, source.KMin, source.KMax, kPeak, settings.GwTolerance);
             converged &= r.Converged;
             evaluations += r.Evaluations;

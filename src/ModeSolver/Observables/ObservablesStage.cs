@@ -49,10 +49,19 @@ public static class ObservablesStage
             Note($"distance: Gaussian approximation of Planck 2018 + BICEP/Keck 2021, not their likelihood: n_s = {d.Ns} +- {d.SigmaNs}, r = 0 +- {d.SigmaR} (half the 95% bound){(d.UseAlphaS ? FormattableString.Invariant($", alpha_s = {d.AlphaS} +- {d.SigmaAlphaS}") : "")}, correlations neglected, {distance.DegreesOfFreedom} degrees of freedom");
         }
 
+        if (source.Count < 2)
+        {
+            if (settings.Peak || settings.InducedGw || settings.Pbh)
+                Note($"peak, induced GWs and black holes: not computed: they need a spectrum of at least two wavenumbers (this run has {source.Count})");
+            return new ObservablesReport(settings, distance, null, null, null, notes.ToImmutable());
+        }
+
         PeakSummary? peak = null;
         if (settings.Peak || settings.InducedGw || settings.Pbh)
             peak = PeakFinder.Find(source, settings.PeakMinRatio);
         double kPeak = peak is { Found: true } ? peak.KPeak : double.NaN;
+        if (settings.Peak && peak is { Found: true, SteepestGrowth: > 4.5 })
+            Note($"peak: the steepest local slope d ln P_s / d ln k = {peak.SteepestGrowth:G3} (at k = {peak.KSteepest:G3} /Mpc) includes the climb out of a dip where P_s is small; the limit of about k^4 (Byrnes, Cole & Patil 2019) concerns the envelope of the growth");
 
         (double Low, double High)? Range(double highEnd)
         {

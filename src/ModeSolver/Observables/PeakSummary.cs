@@ -87,7 +87,7 @@ public static class PeakFinder
         for (int i = first; i <= best; i++)
             if (source.Ns[i] - 1 > steepest) { steepest = source.Ns[i] - 1; kSteep = k[i]; }
 
-        double nExit = source.Linear(source.ExitN, kPeak);
+        double nExit = source.NAtExit(kPeak);
         double before = source.NEnd - nExit;
         double relErr = Math.Max(source.RelError[best], Math.Max(source.RelError[best - 1], source.RelError[best + 1]));
         return new PeakSummary(true, "", kPeak, pPeak, pPeak / aS, width, kLow, kHigh, steepest, kSteep, nExit, before, relErr);

@@ -101,14 +101,15 @@ public static class PrimordialBlackHoles
         ArgumentNullException.ThrowIfNull(source);
         ArgumentNullException.ThrowIfNull(settings);
         int perDecade = Math.Max(1, settings.PbhPointsPerDecade);
-        int count = Math.Max(2, (int)Math.Ceiling(Math.Log10(kHigh / kLow) * perDecade) + 1);
+        var grid = Output.PrimordialTableWriter.LogGrid(kLow, kHigh, perDecade); // the same log grid as the primordial table
+        int count = grid.Length;
         double spectrumError = source.MaxRelError;
         var kh = new double[count]; var m = new double[count]; var sig = new double[count]; var beta = new double[count];
         var betaErr = new double[count]; var f = new double[count];
         double fMax = 0, mAtMax = double.NaN;
         for (int i = 0; i < count; i++)
         {
-            double k = kLow * Math.Pow(kHigh / kLow, i / (double)(count - 1));
+            double k = grid[i];
             var s2 = SigmaSquared(source, k, settings.Window, kPeak);
             double sigma = Math.Sqrt(s2.Value);
             kh[i] = k;

@@ -22,6 +22,7 @@ namespace ModeSolver.Output;
 /// <item>/table: k, P_s, P_t (the dense primordial table).</item>
 /// <item>/flags: kind, quantity, message, where (string arrays), lower, upper, exact, slow_roll, difference; attribute count.</item>
 /// <item>/statistics: attributes wall_seconds, modes, rhs_evaluations, workers; datasets stage (strings) and stage_seconds.</item>
+/// <item>/observables (when computed): data_distance, peak, induced_gw (Omega_GW h^2 against f), pbh (beta and f_PBH against M); see ObservablesHdf5.</item>
 /// </list>
 /// NaN stays NaN in HDF5 (it is a valid IEEE value there).
 /// </summary>
@@ -190,6 +191,7 @@ public static class Hdf5Writer
         stats.Attributes["rhs_evaluations"] = st.RhsEvaluations;
         stats.Attributes["workers"] = st.Workers;
         file["statistics"] = stats;
+        ObservablesHdf5.Add(file, report.Observables);
         return file;
     }
 
@@ -207,7 +209,7 @@ public static class Hdf5Writer
         return g;
     }
 
-    private static double[] Arr(ImmutableArray<double> a) => a.IsDefault ? [] : a.ToArray();
+    internal static double[] Arr(ImmutableArray<double> a) => a.IsDefault ? [] : a.ToArray();
 
     private static string[] Strings(ImmutableArray<Flag> flags, Func<Flag, string> pick)
     {

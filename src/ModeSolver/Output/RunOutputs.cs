@@ -27,6 +27,28 @@ public static class RunOutputs
     /// <summary>background.svg.</summary>
     public static OutputFile BackgroundSvg { get; } = new("background.svg", (r, p) => RunPlots.SaveBackground(r, p, PlotFormat.Svg));
 
+    /// <summary>induced-gw.png: Omega_GW h^2 against f.</summary>
+    public static OutputFile InducedGwPng { get; } = new("induced-gw.png", (r, p) => ObservablesPlots.SaveInducedGw(r, p, PlotFormat.Png));
+
+    /// <summary>induced-gw.svg.</summary>
+    public static OutputFile InducedGwSvg { get; } = new("induced-gw.svg", (r, p) => ObservablesPlots.SaveInducedGw(r, p, PlotFormat.Svg));
+
+    /// <summary>black-holes.png: f_PBH against M.</summary>
+    public static OutputFile PbhPng { get; } = new("black-holes.png", (r, p) => ObservablesPlots.SavePbh(r, p, PlotFormat.Png));
+
+    /// <summary>black-holes.svg.</summary>
+    public static OutputFile PbhSvg { get; } = new("black-holes.svg", (r, p) => ObservablesPlots.SavePbh(r, p, PlotFormat.Svg));
+
+    /// <summary>The observables' plots a run with these settings writes (none unless induced GWs or black holes are on).</summary>
+    public static IReadOnlyList<OutputFile> ObservablePlots(Observables.ObservablesSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        var list = new List<OutputFile>();
+        if (settings.InducedGw) list.AddRange([InducedGwPng, InducedGwSvg]);
+        if (settings.Pbh) list.AddRange([PbhPng, PbhSvg]);
+        return list;
+    }
+
     /// <summary>The standard set; plots and the table can be left out.</summary>
     public static IReadOnlyList<OutputFile> Standard(bool table = true, bool plots = true)
     {

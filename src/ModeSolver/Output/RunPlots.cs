@@ -83,7 +83,7 @@ public static class RunPlots
         var s = report.Spectrum;
         var sr = report.SlowRollSpectra;
         var k = s.K.AsSpan();
-        if (k.Length < 2) throw new ArgumentException("spectra plot: need at least two k samples");
+        if (k.Length < 1) throw new ArgumentException("spectra plot: no k samples");
         if (sr.K.Length != k.Length) throw new ArgumentException("spectra plot: slow-roll spectra are not on the same k as the exact spectrum");
 
         var top = NewPlot();
@@ -94,6 +94,7 @@ public static class RunPlots
         AddLogLine(top, lines, k, sr.PtSecondOrder.AsSpan(), PlotPalette.BurntOrange, LinePattern.Dashed, "P_t slow roll (2nd order)");
 
         double xMin = Math.Log10(k[0]), xMax = Math.Log10(k[^1]);
+        if (!(xMax > xMin)) (xMin, xMax) = (xMin - 0.5, xMax + 0.5); // one wavenumber: its points, a decade wide
         var (yMin, yMax) = Range(lines.Select(l => l.Y));
         double kp = report.Pivot.KPivot;
         if (kp > 0 && double.IsFinite(kp))
@@ -122,7 +123,7 @@ public static class RunPlots
         double thr = report.Settings.FlagSettings.SpectrumThreshold;
         var ps = Ratio(k, s.Ps.AsSpan(), sr.PsSecondOrder.AsSpan());
         var pt = Ratio(k, s.Pt.AsSpan(), sr.PtSecondOrder.AsSpan());
-        var (dMin, dMax) = Range(new[] { ps.Y, pt.Y }.Where(y => y.Length >= 2));
+        var (dMin, dMax) = Range(new[] { ps.Y, pt.Y }.Where(y => y.Length >= 1));
         // Slow roll poor or negative (ratios far beyond 1, or below -1): a symmetric-log axis, linear within the flag
         // threshold, so that the whole range stays readable with tick labels of powers of ten.
         bool symLog = Math.Max(Math.Abs(dMin), Math.Abs(dMax)) > SymLogAbove;
@@ -209,7 +210,7 @@ public static class RunPlots
         return plot;
     }
 
-    private static Plot NewPlot()
+    internal static Plot NewPlot()
     {
         var p = new Plot();
         p.FigureBackground.Color = C(PlotPalette.Paper);
@@ -222,7 +223,7 @@ public static class RunPlots
         return p;
     }
 
-    private static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,
+    internal static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,
         string color, LinePattern pattern, string label, bool logX = true)
     {
         var xs = new List<double>(x.Length);
@@ -234,7 +235,13 @@ public static class RunPlots
             xs.Add(logX ? Math.Log10(x[i]) : x[i]);
             ys.Add(Math.Log10(y[i]));
         }
-        if (xs.Count < 2) return;
+        if (xs.Count == 0) return;
+        if (xs.Count == 1)
+        {
+            AddPoint(plot, xs[0], ys[0], color, pattern.Equals(LinePattern.Solid) ? MarkerShape.FilledCircle : MarkerShape.OpenCircle, label);
+            sink.Add((xs.ToArray(), ys.ToArray()));
+            return;
+        }
         var line = plot.Add.ScatterLine(xs.ToArray(), ys.ToArray(), C(color));
         line.LinePattern = pattern;
         line.LineWidth = 2.2f;
@@ -262,7 +269,12 @@ public static class RunPlots
 
     private static void AddRatioLine(Plot plot, (double[] X, double[] Y) ratio, Func<double, double> map, string color, string label)
     {
-        if (ratio.X.Length < 2) return;
+        if (ratio.X.Length == 0) return;
+        if (ratio.X.Length == 1)
+        {
+            AddPoint(plot, ratio.X[0], map(ratio.Y[0]), color, MarkerShape.FilledCircle, label);
+            return;
+        }
         var line = plot.Add.ScatterLine(ratio.X, ratio.Y.Select(map).ToArray(), C(color));
         line.LineWidth = 2f;
         line.LegendText = label;
@@ -275,7 +287,14 @@ public static class RunPlots
         return PlotScales.Subject(report.Settings.Get("title"), report.Model.Id, report.Model.Potential);
     }
 
-    private static (double Min, double Max) Range(IEnumerable<double[]> series)
+    /// <summary>A lone sample (a spectrum of one wavenumber) drawn as a labelled marker instead of a line.</summary>
+    private static void AddPoint(Plot plot, double x, double y, string color, MarkerShape shape, string label)
+    {
+        var mk = plot.Add.Marker(x, y, shape, 9, C(color));
+        mk.LegendText = label;
+    }
+
+    internal static (double Min, double Max) Range(IEnumerable<double[]> series)
     {
         double lo = double.PositiveInfinity, hi = double.NegativeInfinity;
         foreach (var s in series)

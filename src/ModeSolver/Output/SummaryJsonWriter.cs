@@ -71,6 +71,7 @@ public static class SummaryJsonWriter
         Num(w, "rhs_evaluations_per_mode", p.RhsEvaluationsPerMode);
         w.WriteString("amplitude_method", r.AmplitudeMethod);
         WriteDerived(w, r.Derived);
+        ObservablesJson.Write(w, r.Observables);
 
         w.WriteStartObject("slow_roll");
         Estimate(w, "first_order", r.SlowRoll.FirstOrder);
@@ -163,7 +164,7 @@ public static class SummaryJsonWriter
     {
         if (s.IsNumber && double.TryParse(s.Value, System.Globalization.NumberStyles.Float, System.Globalization.CultureInfo.InvariantCulture, out double x) && double.IsFinite(x))
             w.WriteNumber(s.Key, x);
-        else if (s.Value is "true" or "false" && s.Key.EndsWith("palatini", StringComparison.Ordinal))
+        else if (s.Value is "true" or "false" && (s.Key.EndsWith("palatini", StringComparison.Ordinal) || s.Key.StartsWith("observables.", StringComparison.Ordinal)))
             w.WriteBoolean(s.Key, s.Value == "true");
         else
             w.WriteString(s.Key, s.Value);
@@ -206,13 +207,13 @@ public static class SummaryJsonWriter
     }
 
     // Utf8JsonWriter formats doubles with the shortest round-trippable representation; JSON has no NaN/Infinity.
-    private static void Num(Utf8JsonWriter w, string name, double v)
+    internal static void Num(Utf8JsonWriter w, string name, double v)
     {
         if (double.IsFinite(v)) w.WriteNumber(name, v);
         else w.WriteNull(name);
     }
 
-    private static void Num(Utf8JsonWriter w, double v)
+    internal static void Num(Utf8JsonWriter w, double v)
     {
         if (double.IsFinite(v)) w.WriteNumberValue(v);
         else w.WriteNullValue();

@@ -6,6 +6,7 @@ using ModeSolver.Decks;
 using ModeSolver.Diagnostics;
 using ModeSolver.Matching;
 using ModeSolver.Models;
+using ModeSolver.Observables;
 using ModeSolver.Output;
 using ModeSolver.Physics;
 using ModeSolver.Spectra;
@@ -203,6 +204,14 @@ public static class SpectrumPipeline
         var flags = Flags.Evaluate(pivotResults, pivotSlowRoll, spectrumSamples, srSpectra, background, flagSettings);
         Mark("slow-roll comparison");
 
+        ObservablesReport? observables = null;
+        if (settings.Observables.Any)
+        {
+            options.Stage?.Invoke("observables");
+            observables = ComputeObservables(settings.Observables, spectrumSamples, pivotResults, pivot);
+            Mark("observables");
+        }
+
         long rhs = 0;
         foreach (int r in spectrum.RhsEvaluations) rhs += r;
         var statistics = new RunStatistics(clock.Elapsed.TotalSeconds, stages.ToImmutable(), m, rhs,
@@ -210,7 +219,28 @@ public static class SpectrumPipeline
 
         return new RunReport(ModelInfoFor(settings, run.Theory, pivot.VScale), ReportSettingsFor(settings, flagSettings), pivotResults,
             pivotSlowRoll, background, spectrumSamples, srSpectra, table, flags, pivot.AmplitudeName, statistics,
-            [.. warnings]) { Derived = derived };
+            [.. warnings]) { Derived = derived, Observables = observables };
+    }
+
+    /// <summary>
+    /// The observables stage on the exact spectrum: distance to the data, peak summary, induced GWs and black holes as
+    /// switched on. The horizon exit of a wavenumber (the peak's) comes from the background's own exit lookup.
+    /// </summary>
+    public static ObservablesReport ComputeObservables(ObservablesSettings settings, SpectrumSamples spectrum, PivotResults pivotResults, PivotSolution pivot)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(pivot);
+        var bg = pivot.Background;
+        double NAtExit(double kMpc) => bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kMpc), out double n) ? n : double.NaN;
+        var source = ObservablesSource.From(spectrum, pivotResults, NAtExit, bg.NEnd);
+        try
+        {
+            return ObservablesStage.Compute(source, settings);
+        }
+        catch (ArgumentException e)
+        {
+            throw new PhysicsException(e.Message);
+        }
     }
 
     /// <summary>
@@ -391,6 +421,7 @@ public static class SpectrumPipeline
         Add("output.dir", s.Output.Directory);
         Add("output.formats", string.Join(",", s.Output.Formats));
         Add("output.table_h", Opt(s.Output.TableH), true);
+        foreach (var (key, value, number) in ObservablesKeys.Entries(s.Observables)) Add("observables." + key, value, number);
         return new ReportSettings(e.ToImmutable(), flags);
     }
 

@@ -58,30 +58,22 @@ public sealed record PrimordialSpectrum
     /// <summary>alpha_s at k (linear in ln k).</summary>
     public double InterpolateAlphaS(double k)
     {
-        int i = Locate(k, out double t, out _);
+        CheckRange(k);
+        if (K.Length == 1) return AlphaS[0];
+        int i = LogHermite.Interval(K, k, out double t, out _);
         return (1 - t) * AlphaS[i] + t * AlphaS[i + 1];
     }
 
-    private int Locate(double k, out double t, out double h)
+    private void CheckRange(double k)
     {
         if (!(k >= K[0] * (1 - 1e-12) && k <= K[^1] * (1 + 1e-12)))
             throw new ArgumentOutOfRangeException(nameof(k), k, $"k = {k:G6} lies outside the computed range [{K[0]:G6}, {K[^1]:G6}]");
-        if (K.Length == 1) { t = 0; h = 0; return 0; }
-        int lo = Array.BinarySearch(K, k);
-        if (lo < 0) lo = ~lo - 1;
-        lo = Math.Clamp(lo, 0, K.Length - 2);
-        h = Math.Log(K[lo + 1] / K[lo]);
-        t = Math.Clamp(Math.Log(k / K[lo]) / h, 0.0, 1.0);
-        return lo;
     }
 
     private double Hermite(double k, double[] f, double[] slope, double slopeOffset, bool log)
     {
+        CheckRange(k);
         if (K.Length == 1) return log ? Math.Log(f[0]) : f[0];
-        int i = Locate(k, out double t, out double h);
-        double f0 = log ? Math.Log(f[i]) : f[i], f1 = log ? Math.Log(f[i + 1]) : f[i + 1];
-        double d0 = (slope[i] - slopeOffset) * h, d1 = (slope[i + 1] - slopeOffset) * h;
-        double t2 = t * t, t3 = t2 * t;
-        return (2 * t3 - 3 * t2 + 1) * f0 + (t3 - 2 * t2 + t) * d0 + (-2 * t3 + 3 * t2) * f1 + (t3 - t2) * d1;
+        return LogHermite.Value(K, f, slope, slopeOffset, log, k);
     }
 }

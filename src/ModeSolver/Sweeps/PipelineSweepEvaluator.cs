@@ -110,16 +110,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     /// <summary>Builds the evaluator from the sweep deck at <paramref name="deckPath"/>.</summary>
     public static PipelineSweepEvaluator FromDeck(string deckPath)
     {
-        string text;
-        try
-        {
-            text = File.ReadAllText(deckPath);
-        }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            throw new SweepException($"{deckPath}: cannot read the deck: {SweepDeck.OneLine(e.Message)}");
-        }
-        return FromDeckText(text, deckPath);
+        return FromDeckText(SweepDeck.ReadText(deckPath), deckPath);
     }
 
     /// <summary>

@@ -29,6 +29,17 @@ public static class SweepDeck
     private static readonly string[] SweepKeys = ["axis", "zip", "families", "markers", "spectra", "log_r"];
     private static readonly string[] AxisKeys = ["key", "linear", "log", "values"];
 
+    /// <summary>
+    /// The text of a sweep deck, or of the deck copy in a sweep directory, with the limits of every deck
+    /// (<see cref="Decks.DeckReader.ReadText"/>: at most 1 MiB of UTF-8, an endless device or pipe refused).
+    /// </summary>
+    /// <exception cref="SweepException">unreadable, too large, or not UTF-8 (one line).</exception>
+    public static string ReadText(string path)
+    {
+        try { return Decks.DeckReader.ReadText(path); }
+        catch (Decks.DeckException e) { throw new SweepException(e.Message); }
+    }
+
     /// <summary>Parses the TOML text of a deck and reads its sweep table. <paramref name="source"/> names the deck in errors.</summary>
     public static SweepSpec ParseSpec(string deckText, string source = "deck")
     {

@@ -29,7 +29,7 @@ public static class SweepMerge
             var h = SweepJournal.ReadHeader(jpath) ?? throw new SweepException($"{jpath}: empty journal");
             if (fingerprint is null)
             {
-                deckText = File.ReadAllText(dpath);
+                deckText = SweepDeck.ReadText(dpath);
                 fingerprint = h.Fingerprint;
                 pointCount = h.PointCount;
                 shardCount = h.Shard.Count;

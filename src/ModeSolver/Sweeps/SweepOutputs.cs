@@ -29,7 +29,19 @@ public static class SweepFiles
 public static class SweepOutputs
 {
     /// <summary>The result columns of the CSV after the index and the swept keys.</summary>
-    public static readonly IReadOnlyList<string> ResultColumns = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "flags", "status", "message"];
+    public static readonly IReadOnlyList<string> ResultColumns = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "delta_chi2", "flags", "status", "message"];
+
+    /// <summary>
+    /// Delta chi^2 of a point's (n_s, r) in the Gaussian approximation of the data with its default values
+    /// (<see cref="Observables.DataDistance"/>; an approximation, not the likelihood).
+    /// </summary>
+    public static double DeltaChi2(SweepRecord r)
+    {
+        ArgumentNullException.ThrowIfNull(r);
+        return r.Ok ? Observables.DataDistance.DeltaChi2(r.Ns, r.R, DefaultData) : double.NaN;
+    }
+
+    private static readonly Observables.DataConstraints DefaultData = new();
 
     /// <summary>The end of every temporary name a sweep writes (leftovers of killed runs are recognised by it).</summary>
     public const string TemporaryExtension = ".sweep-tmp";
@@ -141,14 +153,14 @@ public static class SweepOutputs
         for (int j = 0; j < values.Length; j++) { w.Write(','); w.Write(spec.Axes[j].Labels is null ? F(values[j]) : Quote(spec.Axes[j].Text(values[j]))); }
         if (r.Ok)
         {
-            foreach (var v in new[] { r.Ns, r.R, r.AlphaS, r.Nt, r.As, r.NStar, r.VScale }) { w.Write(','); w.Write(F(v)); }
+            foreach (var v in new[] { r.Ns, r.R, r.AlphaS, r.Nt, r.As, r.NStar, r.VScale, DeltaChi2(r) }) { w.Write(','); w.Write(F(v)); }
             w.Write(',');
             w.Write(Quote(string.Join(';', r.Flags)));
             w.Write(",ok,");
         }
         else
         {
-            w.Write(",,,,,,,,,failed,");
+            w.Write(",,,,,,,,,,failed,");
             w.Write(Quote(r.Message));
         }
         w.Write('\n');
@@ -174,7 +186,7 @@ public static class SweepOutputs
     {
         public readonly long[] Index = new long[RowBlock];
         public readonly double[][] Settings;
-        public readonly double[][] Results = new double[7][];
+        public readonly double[][] Results = new double[8][];
         public readonly string[] Status = new string[RowBlock], Message = new string[RowBlock], Flags = new string[RowBlock];
         public int Count;
 
@@ -197,6 +209,7 @@ public static class SweepOutputs
             Results[4][i] = r.Ok ? r.As : double.NaN;
             Results[5][i] = r.Ok ? r.NStar : double.NaN;
             Results[6][i] = r.Ok ? r.VScale : double.NaN;
+            Results[7][i] = DeltaChi2(r);
             Status[i] = r.Ok ? "ok" : "failed";
             Message[i] = r.Message;
             Flags[i] = r.Flags.Count == 0 ? "" : string.Join(';', r.Flags);
@@ -207,13 +220,13 @@ public static class SweepOutputs
 
     /// <summary>
     /// The HDF5 layout: root attributes (format, fingerprint, keys, counts), /grid/&lt;key&gt; (each axis' values),
-    /// /points/index, /points/settings/&lt;key&gt;, /points/{n_s, r, alpha_s, n_t, A_s, N_star, V_scale} (NaN for
+    /// /points/index, /points/settings/&lt;key&gt;, /points/{n_s, r, alpha_s, n_t, A_s, N_star, V_scale, delta_chi2} (NaN for
     /// failed points), /points/{status, message, flags} (strings), and /spectra/&lt;index, 8 digits&gt;/{k, P_s, P_t}.
     /// The /points datasets are declared with their final length and filled block by block.
     /// </summary>
     private sealed class Hdf5Layout
     {
-        private static readonly string[] ResultNames = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale"];
+        private static readonly string[] ResultNames = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "delta_chi2"];
         private readonly H5Dataset<long[]> _index;
         private readonly H5Dataset<double[]>[] _settings, _results;
         private readonly H5Dataset<string[]> _status, _message, _flags;

@@ -18,6 +18,8 @@ public sealed class SweepPlotOptions
     public double RUpper95 { get; init; } = 0.036;
     /// <summary>Next-generation B-mode target (common practice).</summary>
     public double TargetR { get; init; } = 1e-3;
+    /// <summary>Draw the 1 and 2 sigma contours of the Gaussian Delta chi^2 in (n_s, r) (<see cref="Observables.DataDistance"/>).</summary>
+    public bool ShowContours { get; init; } = true;
     /// <summary>Image width in pixels.</summary>
     public int Width { get; init; } = 1300;
     /// <summary>Image height in pixels.</summary>
@@ -122,11 +124,14 @@ public static class SweepPlot
             target.EnableAutoscale = false;
         }
 
+        if (options.ShowContours) AddContours(plot, options, log);
+
         var markShapes = new Dictionary<double, MarkerShape>();
         if (mark >= 0)
             for (int i = 0; i < spec.Axes[mark].Values.Count; i++)
                 markShapes.TryAdd(spec.Axes[mark].Values[i], Shapes[markShapes.Count % Shapes.Length]);
         double xmin = c - 2.5 * s, xmax = c + 2.5 * s, ymin = double.PositiveInfinity, ymax = yBound;
+        if (options.ShowContours) ymax = Math.Max(ymax, log ? Math.Log10(ContourTop(options)) : ContourTop(options));
         var ordered = lines.Keys.OrderBy(k => lineOrder[k]).ToList();
         // Many families: colours run along a colour map in line order, and the legend names an evenly spread
         // selection of them (first and last included) plus one entry saying how many lines there are.
@@ -171,7 +176,7 @@ public static class SweepPlot
             foreach (var (v, shape) in markShapes)
             {
                 var legendOnly = plot.Add.Markers(new[] { double.NaN }, new[] { double.NaN }, shape, 8, ink);
-                legendOnly.LegendText = $"{spec.Keys[mark]} = {G(v)}";
+                legendOnly.LegendText = $"{spec.Keys[mark]} = {spec.Axes[mark].Text(v)}";
             }
 
         double dx = (xmax - xmin) * 0.05;
@@ -225,6 +230,50 @@ public static class SweepPlot
 
     // Both ends and the middle of a line of n points.
     private static IEnumerable<int> PointsToLabel(int n) => n <= 0 ? [] : new SortedSet<int> { 0, n / 2, n - 1 };
+
+    /// <summary>
+    /// The n-sigma contours (n = 1, 2) of Delta chi^2 = ((n_s - c)/sigma)^2 + (r/sigma_r)^2 for two degrees of freedom,
+    /// sigma_r = half the 95% bound: half-ellipses over r &gt;= 0.
+    /// </summary>
+    internal static List<(double[] Ns, double[] R)> Contours(SweepPlotOptions options)
+    {
+        var data = new Observables.DataConstraints(Ns: options.NsCentre, SigmaNs: options.NsSigma, SigmaR: options.RUpper95 / 2);
+        var list = new List<(double[], double[])>();
+        foreach (int n in new[] { 1, 2 })
+        {
+            double radius = Math.Sqrt(Observables.DataDistance.ContourLevel(n, 2));
+            // Angles from just above 0 to just below pi (r > 0 for the log axis), geometric towards both ends so that
+            // on a log axis the contour runs down to r ~ 1e-9 instead of stopping short.
+            var angles = new List<double>();
+            for (int j = 36; j > 0; j--) angles.Add(0.1 * Math.Pow(10, -j / 4.0));
+            for (int i = 0; i <= 120; i++) angles.Add(0.1 + (Math.PI - 0.2) * i / 120);
+            for (int j = 1; j <= 36; j++) angles.Add(Math.PI - 0.1 * Math.Pow(10, -j / 4.0));
+            var x = new double[angles.Count]; var y = new double[angles.Count];
+            for (int i = 0; i < x.Length; i++)
+            {
+                x[i] = data.Ns + data.SigmaNs * radius * Math.Cos(angles[i]);
+                y[i] = data.SigmaR * radius * Math.Sin(angles[i]);
+            }
+            list.Add((x, y));
+        }
+        return list;
+    }
+
+    private static double ContourTop(SweepPlotOptions options) => options.RUpper95 / 2 * Math.Sqrt(Observables.DataDistance.ContourLevel(2, 2));
+
+    private static void AddContours(Plot plot, SweepPlotOptions options, bool log)
+    {
+        var contours = Contours(options);
+        for (int n = 0; n < contours.Count; n++)
+        {
+            var (x, y) = contours[n];
+            var ys = log ? y.Select(Math.Log10).ToArray() : y;
+            var line = plot.Add.ScatterLine(x, ys, Color.FromHex(SweepPalette.Ink).WithAlpha(n == 0 ? 0.8 : 0.5));
+            line.LinePattern = n == 0 ? LinePattern.Solid : LinePattern.Dashed;
+            line.LineWidth = 1.2f;
+            line.LegendText = $"{n + 1}σ contour of the Gaussian Δχ² in (n_s, r), 2 dof (an approximation)";
+        }
+    }
 
     private static string G(double x) => x.ToString("G6", CultureInfo.InvariantCulture);
 }

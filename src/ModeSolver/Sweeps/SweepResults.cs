@@ -8,7 +8,7 @@ public static class SweepResults
     {
         string jpath = Path.Combine(directory, SweepFiles.Journal), dpath = Path.Combine(directory, SweepFiles.Deck);
         if (!File.Exists(jpath) || !File.Exists(dpath)) throw new SweepException($"{directory}: not a sweep output directory (no {SweepFiles.Journal} or {SweepFiles.Deck})");
-        var spec = SweepDeck.ParseSpec(File.ReadAllText(dpath), dpath);
+        var spec = SweepDeck.ParseSpec(SweepDeck.ReadText(dpath), dpath);
         var (_, records) = SweepJournal.Read(jpath, out _);
         records.Sort((a, b) => a.Index.CompareTo(b.Index));
         return (spec, records);
@@ -19,7 +19,7 @@ public static class SweepResults
     {
         string jpath = Path.Combine(directory, SweepFiles.Journal), dpath = Path.Combine(directory, SweepFiles.Deck);
         if (!File.Exists(jpath) || !File.Exists(dpath)) throw new SweepException($"{directory}: not a sweep output directory (no {SweepFiles.Journal} or {SweepFiles.Deck})");
-        var spec = SweepDeck.ParseSpec(File.ReadAllText(dpath), dpath);
+        var spec = SweepDeck.ParseSpec(SweepDeck.ReadText(dpath), dpath);
         return (spec, () => SweepJournal.Records(jpath));
     }
 }

@@ -9,28 +9,7 @@ using PureHDF;
 namespace ModeSolver.Tests.EndToEnd;
 
 /// <summary>One full `modesolver spectrum` run of the plateau demo (24 wavenumbers), shared by the file checks.</summary>
-public sealed class PlateauDemoRun : IDisposable
-{
-    public PlateauDemoRun()
-    {
-        Root = CliRunner.TempDir("plateau");
-        Dir = Path.Combine(Root, "out");
-        (Code, Out, Err) = CliRunner.Run("spectrum", DeckTests.RepoFile("runs/plateau-demo.toml"), "--k-count", "24", "--out", Dir);
-    }
-
-    public string Root { get; }
-    public string Dir { get; }
-    public int Code { get; }
-    public string Out { get; }
-    public string Err { get; }
-
-    public string File(string name) => Path.Combine(Dir, name);
-
-    public void Dispose()
-    {
-        if (Directory.Exists(Root)) Directory.Delete(Root, true);
-    }
-}
+public sealed class PlateauDemoRun() : CliDeckRun("plateau", "runs/plateau-demo.toml", "--k-count", "24");
 
 [Collection("ConsoleCapture")]
 public class SpectrumCommandTests : IClassFixture<PlateauDemoRun>

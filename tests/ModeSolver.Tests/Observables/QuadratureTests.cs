@@ -28,4 +28,14 @@ public class QuadratureTests
         Assert.True(r.Converged);
         Assert.True(Math.Abs(r.Value - 2) <= r.Error && r.Error < 1e-9, $"{r.Value} +- {r.Error}");
     }
+
+    [Fact]
+    public void ExhaustedBudgetIsReportedAsNotConverged()
+    {
+        // int_0^1 x^(-1/2) dx = 2 (elementary) to a relative tolerance of 1e-14 needs far more than 5 intervals.
+        var r = AdaptiveQuadrature.Integrate(x => 1 / Math.Sqrt(x), 0, 1, [], 1e-14, 0, maxIntervals: 5);
+        Assert.False(r.Converged);
+        Assert.True(r.Error > 1e-14 * Math.Abs(r.Value), $"error {r.Error}");
+        Assert.True(Math.Abs(r.Value - 2) <= r.Error, $"{r.Value} +- {r.Error}");
+    }
 }

@@ -15,7 +15,7 @@ internal static class TestSpectra
     public static ObservablesSource FromLog(Func<double, double> lnP, Func<double, double> slope, double kMin, double kMax, int n,
         double relError = 0, PivotResults? pivot = null)
     {
-        var k = new double[n]; var p = new double[n]; var ns = new double[n]; var err = new double[n]; var exit = new double[n];
+        var k = new double[n]; var p = new double[n]; var ns = new double[n]; var err = new double[n];
         for (int i = 0; i < n; i++)
         {
             double x = Math.Log(kMin) + (Math.Log(kMax) - Math.Log(kMin)) * i / (n - 1);
@@ -23,9 +23,8 @@ internal static class TestSpectra
             p[i] = Math.Exp(lnP(x));
             ns[i] = 1 + slope(x);
             err[i] = relError;
-            exit[i] = 10 + x; // demo mapping N = 10 + ln k (not physics)
         }
-        return new ObservablesSource([.. k], [.. p], [.. ns], [.. err], [.. exit], 80.0, pivot ?? Pivot());
+        return new ObservablesSource([.. k], [.. p], [.. ns], [.. err], kk => 10 + Math.Log(kk), 80.0, pivot ?? Pivot()); // exit N = 10 + ln k: a stand-in, not physics
     }
 
     /// <summary>P_s = A exp(-ln^2(k/kp) / (2 Delta^2)) / (sqrt(2 pi) Delta): A delta(ln(k/kp)) as Delta -> 0. Sampled over +-12 Delta.</summary>
