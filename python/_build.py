@@ -26,7 +26,8 @@ def _files():
     for dirpath, dirnames, filenames in os.walk(root):
         dirnames[:] = [d for d in dirnames if d != "__pycache__"]
         for name in sorted(filenames):
-            if name.endswith((".py", ".so", ".h")):
+            # Only the library itself: publishing also copies native files of packages it does not load.
+            if name.endswith(".py") or name in ("libmodesolver.so", "modesolver.h"):
                 full = os.path.join(dirpath, name)
                 yield full, os.path.relpath(full, HERE).replace(os.sep, "/")
 

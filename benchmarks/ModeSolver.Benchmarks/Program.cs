@@ -5,10 +5,17 @@ using ModeSolver.Pipeline;
 
 // `--memory-sweep N`: a pivot-only sweep of N models in parallel, for peak memory (run under /usr/bin/time -v).
 // `--profile`: Stopwatch timings (medians) of the spectrum pipeline, its stages and the pivot sweep, with work counts.
-// `--sweep-scale N [--machinery] [--threads T] [--out DIR]`: a pivot-only sweep of N points, peak memory and points/s.
+// `--sweep-scale N [--machinery] [--spectra M] [--threads T] [--out DIR]`: a pivot-only sweep of N points, peak memory and points/s
+// (under mpirun: one line per rank).
 // `--warm-deck DECK [REPS]`: warm median of SpectrumPipeline.Run on a deck, one line (for benchmarks/baseline/compare.py).
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
+// `--error-honesty [CASE] [--all]`: per-k error estimate against a 1000x tighter re-solve on the hard models (docs/modes.md).
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
+if (args.Length >= 1 && args[0] == "--error-honesty")
+{
+    ModeSolver.Benchmarks.Perturbations.ErrorHonesty.Run(args);
+    return;
+}
 if (args.Length >= 2 && args[0] == "--sweep-scale")
 {
     ModeSolver.Benchmarks.Sweeps.SweepScaleBenchmark.Run(args);

@@ -28,7 +28,9 @@ with modesolver.Run(deck, threads=1) as run:
     t1 = time.perf_counter()
     pivot = run.results()
     print(f"model: {deck}")
-    print(f"n_s = {pivot['n_s']:.6f}  r = {pivot['r']:.4e}  A_s = {pivot['A_s']:.4e}  N_* = {pivot['N_star']:.3f}")
+    err = run.errors()                                     # estimated absolute errors of the pivot values
+    print(f"n_s = {pivot['n_s']:.6f} +- {err['n_s']:.1e}  r = {pivot['r']:.4e} +- {err['r']:.1e}  "
+          f"A_s = {pivot['A_s']:.4e}  N_* = {pivot['N_star']:.3f}  (tolerance met: {run.tolerance_met})")
     print(f"{k.size} k from {k[0]:.1e} to {k[-1]:.1e} /Mpc in {1e3 * (t1 - t0):.1f} ms (200 modes, one thread)")
     for i in np.linspace(0, k.size - 1, 6).astype(int):
         print(f"  k = {k[i]:.3e} /Mpc   P_s = {p_s[i]:.5e}   P_t = {p_t[i]:.5e}")

@@ -57,6 +57,8 @@ def _declare(lib):
         "ms_run_pivot": (i, [run]),
         "ms_run_spectrum": (i, [run]),
         "ms_run_value": (i, [run, cstr, dptr]),
+        "ms_run_value_error": (i, [run, cstr, dptr]),
+        "ms_run_tolerance_met": (i, [run, ctypes.POINTER(i)]),
         "ms_run_spectrum_size": (i, [run, ctypes.POINTER(size)]),
         "ms_run_spectrum_copy": (i, [run, dptr, dptr, dptr, dptr, size]),
         "ms_run_spectrum_at": (i, [run, dptr, size, dptr, dptr]),

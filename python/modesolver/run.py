@@ -70,6 +70,10 @@ VALUE_NAMES = ("A_s", "n_s", "r", "alpha_s", "n_t", "N_star", "k_pivot", "phi_st
                "V_scale", "N_total", "N_reh", "max_rel_error", "rhs_per_mode")
 
 
+#: Pivot values with an error estimate (:meth:`Run.errors`), as summary.json's "errors" object.
+ERROR_NAMES = ("A_s", "n_s", "alpha_s", "r", "n_t")
+
+
 def _doubles(a):
     return a.ctypes.data_as(ctypes.POINTER(ctypes.c_double))
 
@@ -187,6 +191,25 @@ class Run:
     def results(self):
         """All named results of the last run as a dict of floats."""
         return {name: self.value(name) for name in VALUE_NAMES}
+
+    def errors(self):
+        """The estimated absolute error of each exact pivot value of the last run, in the value's units, as a dict
+        (keys :data:`ERROR_NAMES`; NaN when not estimated): read ``run.n_s`` as ``n_s +- errors()["n_s"]``."""
+        out = ctypes.c_double()
+        h = self._handle()
+        result = {}
+        for name in ERROR_NAMES:
+            self._check(self._lib.ms_run_value_error(h, name.encode(), ctypes.byref(out)))
+            result[name] = out.value
+        return result
+
+    @property
+    def tolerance_met(self):
+        """True when the last run met the requested tolerance (max_rel_error <= modes.tolerance), as summary.json's
+        ``tolerance_met``; when False after :meth:`spectrum`, the run's :attr:`warnings` say so."""
+        met = ctypes.c_int()
+        self._check(self._lib.ms_run_tolerance_met(self._handle(), ctypes.byref(met)))
+        return bool(met.value)
 
     def samples(self):
         """The last spectrum run's own samples: (k [1/Mpc], P_s, P_t, estimated relative error of P_s) as arrays."""

@@ -54,6 +54,30 @@ class RunTests(unittest.TestCase):
             self.assertEqual(p[name], s[name], name)
         self.assertIsInstance(p["n_s"], float)
 
+    def test_errors_and_tolerance_met(self):
+        with modesolver.Run(text=SMALL, threads=1) as run:
+            p = run.pivot()
+            pe, pmet = run.errors(), run.tolerance_met
+            run.spectrum()
+            se, smet = run.errors(), run.tolerance_met
+        self.assertEqual(tuple(pe), modesolver.ERROR_NAMES)
+        # Both runs solve the same exact pivot mode, so the estimates agree exactly.
+        self.assertEqual(pe, se)
+        for name, err in pe.items():
+            self.assertTrue(np.isfinite(err) and err > 0, f"{name}: {err}")
+        # An absolute error of A_s far below A_s, of n_s far below 1 - n_s (the deck's tolerance is the default 1e-5).
+        self.assertLess(pe["A_s"] / p["A_s"], 1e-4)
+        self.assertLess(pe["n_s"], 1e-3 * (1 - p["n_s"]))
+        self.assertTrue(pmet and smet)
+        # A tolerance tighter than the modes reach: tolerance_met false, and the spectrum run warns.
+        with modesolver.Run(text=SMALL, threads=1, tolerance=1e-12, count=4) as run:
+            run.pivot()
+            self.assertGreater(run.max_rel_error, 1e-12)
+            self.assertFalse(run.tolerance_met)
+            run.spectrum()
+            self.assertFalse(run.tolerance_met)
+            self.assertTrue(any("tolerance_met: false" in w for w in run.warnings), run.warnings)
+
     def test_formula_model_equals_the_catalogue_model(self):
         # The plateau demo's own commented line writes the e-model out: the same potential by formula and by id.
         formula = "V0 * (1 - exp(-sqrt(2 / (3 * alpha)) * phi))^2"
@@ -147,6 +171,10 @@ class ErrorTests(unittest.TestCase):
         with modesolver.Run(text=SMALL) as run:
             with self.assertRaises(modesolver.UsageError):
                 run.spectra_at([0.05])
+            with self.assertRaises(modesolver.UsageError):
+                run.errors()
+            with self.assertRaises(modesolver.UsageError):
+                run.tolerance_met
             run.spectrum()
             with self.assertRaises(modesolver.InputError) as cm:
                 run.spectra_at([10.0])
@@ -168,6 +196,10 @@ class PackagingTests(unittest.TestCase):
         self.assertIn("modesolver/run.py", names)
         self.assertIn("modesolver/__init__.py", names)
         self.assertIn("modesolver/run.py,sha256=", record)
+        # Native files other than the library (publishing copies some beside it) stay out of the wheel.
+        self.assertEqual([n for n in names if n.endswith(".so")],
+                         ["modesolver/lib/libmodesolver.so"] if os.path.exists(
+                             os.path.join(PYTHON_DIR, "modesolver", "lib", "libmodesolver.so")) else [])
 
     def test_the_example_runs(self):
         env = dict(os.environ)

@@ -69,6 +69,20 @@ internal static unsafe class Exports
         *value = r.Value(Text(name, "name"));
     });
 
+    [UnmanagedCallersOnly(EntryPoint = "ms_run_value_error")]
+    public static int MsRunValueError(nint run, byte* name, double* error) => With(run, r =>
+    {
+        if (error is null) throw new UsageException("error is a null pointer");
+        *error = r.ValueError(Text(name, "name"));
+    });
+
+    [UnmanagedCallersOnly(EntryPoint = "ms_run_tolerance_met")]
+    public static int MsRunToleranceMet(nint run, int* met) => With(run, r =>
+    {
+        if (met is null) throw new UsageException("met is a null pointer");
+        *met = r.ToleranceMet() ? 1 : 0;
+    });
+
     [UnmanagedCallersOnly(EntryPoint = "ms_run_spectrum_size")]
     public static int MsRunSpectrumSize(nint run, nuint* size) => With(run, r =>
     {

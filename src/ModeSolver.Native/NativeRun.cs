@@ -151,6 +151,32 @@ internal sealed unsafe class NativeRun : IDisposable
         throw new UsageException($"no result yet: call ms_run_pivot or ms_run_spectrum before asking for {name}");
     }
 
+    /// <summary>
+    /// The estimated absolute error of a pivot value of the last run (A_s, n_s, alpha_s, r, n_t; summary.json's
+    /// <c>errors</c>), NaN when not estimated.
+    /// </summary>
+    public double ValueError(string name)
+    {
+        var e = _report?.Pivot.Errors ?? _pivot?.Exact.Errors
+            ?? throw new UsageException($"no result yet: call ms_run_pivot or ms_run_spectrum before asking for the error of {name}");
+        return name switch
+        {
+            "A_s" => e.As, "n_s" => e.Ns, "alpha_s" => e.AlphaS, "r" => e.R, "n_t" => e.Nt,
+            _ => throw new UsageException($"'{name}' has no error estimate (valid: A_s, n_s, alpha_s, r, n_t)"),
+        };
+    }
+
+    /// <summary>
+    /// Whether the last run met the requested tolerance (summary.json's <c>tolerance_met</c>): max_rel_error at most
+    /// modes.tolerance (after a pivot-only run, the pivot mode's estimate).
+    /// </summary>
+    public bool ToleranceMet()
+    {
+        if (_report is { } r) return r.Pivot.ToleranceMet;
+        if (_pivot is { } q) return q.Exact.ErrorEstimate <= q.Settings.KRange.Tolerance;
+        throw new UsageException("no result yet: call ms_run_pivot or ms_run_spectrum before asking whether the tolerance was met");
+    }
+
     /// <summary>Number of spectrum samples of the last spectrum run.</summary>
     public int SpectrumSize => Report("the spectrum size").Spectrum.K.Length;
 

@@ -110,6 +110,17 @@ int ms_run_spectrum(ms_run *run);
  * sample and the pivot after ms_run_spectrum). MS_ERR_USAGE for an unknown name or when there is no result. */
 int ms_run_value(ms_run *run, const char *name, double *value);
 
+/* The estimated absolute error of a pivot value, in the value's own units (summary.json's "errors" object), so that
+ * the value reads "value +- error". Names: A_s, n_s, alpha_s, r, n_t. NaN when not estimated. The same after
+ * ms_run_pivot and ms_run_spectrum (both solve the same exact pivot mode). MS_ERR_USAGE for another name or when
+ * there is no result. */
+int ms_run_value_error(ms_run *run, const char *name, double *error);
+
+/* *met = 1 when the last run met the requested tolerance (max_rel_error <= modes.tolerance; summary.json's
+ * "tolerance_met"), else 0 (after ms_run_spectrum a warning then says so, as the command line prints). MS_ERR_USAGE
+ * when there is no result. */
+int ms_run_tolerance_met(ms_run *run, int *met);
+
 /* Number of spectrum samples of the last ms_run_spectrum (the deck's k, plus the pivot when inside the range). */
 int ms_run_spectrum_size(ms_run *run, size_t *size);
 

@@ -1,8 +1,10 @@
 /*
- * check_values DECK NAME=VALUE... [samples=N] [flags=N] [model.parameters.P=DECK_VALUE]
+ * check_values DECK NAME=VALUE... [error.NAME=VALUE...] [tolerance_met=0|1] [samples=N] [flags=N]
+ *              [model.parameters.P=DECK_VALUE]
  *
  * Runs the whole pipeline on DECK through libmodesolver.so and checks each named result against the expected value
- * (the test passes those read from the command line's summary.json for the same deck) to a relative 1e-9, the
+ * (the test passes those read from the command line's summary.json for the same deck) to a relative 1e-9, so too
+ * the error estimate of each pivot value (error.n_s: summary.json's errors.n_s), whether the tolerance was met, the
  * number of spectrum samples and of flags. With model.parameters.P=DECK_VALUE it then checks that a sampler's
  * change-and-rerun is clean: P set to 1.1 times its deck value changes n_s, and set back gives bit-identical
  * results, without reloading the deck. Exit 0 when all agree.
@@ -64,8 +66,15 @@ int main(int argc, char **argv) {
             if ((double)n != expected) { snprintf(buf, sizeof buf, "%zu, expected %.0f", n, expected); fail("flags", buf); }
             continue;
         }
+        if (strcmp(name, "tolerance_met") == 0) {
+            int met = -1;
+            call(run, ms_run_tolerance_met(run, &met), "tolerance_met");
+            if ((double)met != expected) { snprintf(buf, sizeof buf, "%d, expected %.0f", met, expected); fail("tolerance_met", buf); }
+            continue;
+        }
         double got = NAN;
-        if (call(run, ms_run_value(run, name, &got), name)) continue;
+        int is_error = strncmp(name, "error.", 6) == 0;
+        if (call(run, is_error ? ms_run_value_error(run, name + 6, &got) : ms_run_value(run, name, &got), name)) continue;
         double rel = fabs(got - expected) / fmax(fabs(expected), 1e-300);
         printf("%-16s library %.17g  summary.json %.17g  rel %.2e\n", name, got, expected, rel);
         if (!(rel <= 1e-9) && !(isnan(got) && isnan(expected))) {

@@ -107,6 +107,7 @@ public static class RunPlots
                 mk.LegendText = "A_s at pivot";
             }
         }
+        MarkUnreliable(top, s);
         double pad = Math.Max(0.05 * (yMax - yMin), 0.05);
         // Below the lowest curve (often P_t, flat) a margin of at least a third of a decade keeps it off the axis edge.
         double below = Math.Max(pad, 1.0 / 3);
@@ -221,6 +222,33 @@ public static class RunPlots
         p.Legend.BackgroundColor = Colors.White.WithAlpha(0.85);
         p.Legend.OutlineColor = C(PlotPalette.Mist);
         return p;
+    }
+
+    /// <summary>
+    /// Shades the k ranges whose estimated error is above the tolerance or not a bound (one legend entry), so that a
+    /// curve drawn there is read as unreliable rather than as structure.
+    /// </summary>
+    private static void MarkUnreliable(Plot plot, SpectrumSamples s)
+    {
+        bool labelled = false;
+        int n = s.K.Length;
+        for (int i = 0; i < n; i++)
+        {
+            if (!s.Unreliable(i)) continue;
+            int j = i;
+            while (j + 1 < n && s.Unreliable(j + 1)) j++;
+            // Half-way to the neighbouring samples in ln k, so that a single sample still shows.
+            double lo = i > 0 ? 0.5 * (Math.Log10(s.K[i - 1]) + Math.Log10(s.K[i])) : Math.Log10(s.K[i]);
+            double hi = j + 1 < n ? 0.5 * (Math.Log10(s.K[j]) + Math.Log10(s.K[j + 1])) : Math.Log10(s.K[j]);
+            var span = plot.Add.HorizontalSpan(lo, hi, C(PlotPalette.Plum).WithAlpha(0.18));
+            span.LineColor = Colors.Transparent;
+            if (!labelled)
+            {
+                span.LegendText = string.Create(Inv, $"error above tolerance {s.Tolerance:0.#e+0} or not bounded");
+                labelled = true;
+            }
+            i = j;
+        }
     }
 
     internal static void AddLogLine(Plot plot, List<(double[] X, double[] Y)> sink, ReadOnlySpan<double> x, ReadOnlySpan<double> y,

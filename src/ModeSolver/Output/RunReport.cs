@@ -223,7 +223,18 @@ public sealed record SpectrumSamples(
     ImmutableArray<double> Ns,
     ImmutableArray<double> Nt,
     ImmutableArray<double> AlphaS,
-    ImmutableArray<double> RelError);
+    ImmutableArray<double> RelError)
+{
+    /// <summary>The requested relative tolerance (NaN when unknown): plots mark the k where <see cref="RelError"/> exceeds it.</summary>
+    public double Tolerance { get; init; } = double.NaN;
+
+    /// <summary>False at the k where <see cref="RelError"/> is not a bound (empty: bounded everywhere).</summary>
+    public ImmutableArray<bool> ErrorBounded { get; init; } = ImmutableArray<bool>.Empty;
+
+    /// <summary>True at sample <paramref name="i"/> when its error is above the tolerance or not bounded.</summary>
+    public bool Unreliable(int i) =>
+        (!ErrorBounded.IsDefaultOrEmpty && !ErrorBounded[i]) || (double.IsFinite(Tolerance) && !(RelError[i] <= Tolerance));
+}
 
 /// <summary>Slow-roll spectra on the k of <see cref="SpectrumSamples"/> (each evaluated at that mode's horizon exit).</summary>
 public sealed record SlowRollSpectra(

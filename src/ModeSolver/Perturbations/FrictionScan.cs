@@ -24,6 +24,7 @@ public sealed class FrictionScan
     private readonly double[] _lnAH; // ln(aH) at unit V scale, so that one table serves every rescaled view
     private readonly double _lnSqrtScale;
     private readonly double[] _logDrift;
+    private readonly double[] _sourceMax; // suffix maximum of ln G - 2 ln(aH) (unit V scale): the later sourced growth
     private readonly object _gate = new();
     private int _lo; // lowest grid index computed so far (entries at and above it are final)
 
@@ -42,6 +43,7 @@ public sealed class FrictionScan
         _nuT = new double[m];
         _lnAH = new double[m];
         _logDrift = new double[m - 1];
+        _sourceMax = new double[m];
         _lo = m;
     }
 
@@ -84,10 +86,11 @@ public sealed class FrictionScan
                 _nuS[i] = ModeIntegrator.ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
                 _nuT[i] = ModeIntegrator.TensorIndexOf(p.Epsilon1);
                 _lnAH[i] = n + Math.Log(p.H) - _lnSqrtScale;
-                if (i == m - 1) { _logG[i] = 0.0; continue; }
+                if (i == m - 1) { _logG[i] = 0.0; _sourceMax[i] = -2.0 * _lnAH[i]; continue; }
                 // The smaller end value of F over the cell: conservative.
                 double fc = Math.Min(_f[i], _f[i + 1]);
                 _logG[i] = Math.Max(0.0, _logG[i + 1] - fc * _dn);
+                _sourceMax[i] = Math.Max(_sourceMax[i + 1], _logG[i] - 2.0 * _lnAH[i]);
                 // Per cell: ln(|d nu / dN| (aH)^3), with the later (larger) aH of the cell: conservative. A mode k has
                 // |d nu/dN| / (k/aH)^3 = exp(logDrift - 3 ln k) there. Cells holding a non-smooth point are left out
                 // (-inf): modes are started before those anyway.
@@ -112,6 +115,111 @@ public sealed class FrictionScan
         if (i < Volatile.Read(ref _lo)) ExtendTo(Math.Max(0, Math.Min(i, Volatile.Read(ref _lo) - 200)));
         if (u <= 0) return _logG[0];
         return Math.Max(_logG[i], _logG[i + 1]);
+    }
+
+    /// <summary>Cells faster than this change of the local index per e-fold count as a feature (slow roll drifts at ~1e-3).</summary>
+    internal const double FastDrift = 0.1;
+
+    private (double N, double LnAH, double DeltaU)[]? _fast;
+
+    /// <summary>
+    /// First-order bound on what fast features before <paramref name="nStart"/> excited in mode ln k = <paramref name="lnK"/>
+    /// (unit V scale) while it was inside the horizon, relative to its amplitude: the sum of |Delta U| / (2 (k/aH)^2) over
+    /// the cells where the local index changes faster than <see cref="FastDrift"/> per e-fold (|beta| &lt;= int |d ln omega|/2
+    /// with omega^2 = k^2 (1 - U (aH/k)^2); no credit for the oscillation that suppresses it), plus |Delta f| / (k/aH) at
+    /// each non-smooth point (a jump f of the friction kicks zeta'' by -Delta f zeta'). Local data started after such a
+    /// feature miss this excitation; a mode started before it integrates it and gets nothing here.
+    /// </summary>
+    public double FeatureExcitationBefore(double nStart, double lnK)
+    {
+        var fast = FastCells();
+        double sum = 0;
+        foreach (var (n, lnAH, du) in fast)
+        {
+            if (!(n < nStart)) continue;
+            double lnX = lnK - lnAH;
+            if (lnX <= 0) continue;
+            sum += du >= 0 ? du * Math.Exp(-2.0 * lnX) : -du * Math.Exp(-lnX);
+        }
+        return sum;
+    }
+
+    /// <summary>The earliest fast cell (not a non-smooth point) in [<paramref name="nFrom"/>, <paramref name="nTo"/>); NaN when none.</summary>
+    public double FirstFastCell(double nFrom, double nTo)
+    {
+        foreach (var (n, _, du) in FastCells())
+            if (du >= 0 && n >= nFrom && n < nTo) return n;
+        return double.NaN;
+    }
+
+    private (double N, double LnAH, double DeltaU)[] FastCells()
+    {
+        var fast = _fast;
+        if (fast is null)
+        {
+            if (Volatile.Read(ref _lo) > 0) ExtendTo(0);
+            var list = new List<(double, double, double)>();
+            var kinks = _background.NonSmoothTimes;
+            for (int i = 0; i + 1 < _nuS.Length; i++)
+            {
+                if (double.IsNegativeInfinity(_logDrift[i]) && HasKink(i, kinks)) continue;
+                double dS = Math.Abs(_nuS[i + 1] * _nuS[i + 1] - _nuS[i] * _nuS[i]), dT = Math.Abs(_nuT[i + 1] * _nuT[i + 1] - _nuT[i] * _nuT[i]);
+                double dNu = Math.Max(Math.Abs(_nuS[i + 1] - _nuS[i]), Math.Abs(_nuT[i + 1] - _nuT[i]));
+                if (dNu > FastDrift * _dn) list.Add((_n0 + i * _dn, Math.Min(_lnAH[i], _lnAH[i + 1]), 0.5 * Math.Max(dS, dT)));
+            }
+            for (int j = 0; j < kinks.Count; j++)
+            {
+                double t = kinks[j];
+                if (!(t > _background.NStart && t < _nEnd)) continue;
+                double h = 1e-9 * Math.Max(1.0, Math.Abs(t));
+                var a = _background.At(t - h);
+                var b = _background.At(t + h);
+                double df = Math.Abs((b.Epsilon2 - b.Epsilon1) - (a.Epsilon2 - a.Epsilon1));
+                // Marked with a negative N-slot convention: DeltaU < 0 carries |Delta f| (weighted by 1/x, not 1/x^2).
+                list.Add((t, t + Math.Log(a.H) - _lnSqrtScale, -df));
+            }
+            list.Sort((a, b) => a.Item1.CompareTo(b.Item1));
+            fast = list.ToArray();
+            Interlocked.CompareExchange(ref _fast, fast, null);
+            fast = _fast!;
+        }
+        return fast;
+    }
+
+    private bool HasKink(int i, IReadOnlyList<double> kinks)
+    {
+        double a = _n0 + i * _dn, b = a + _dn;
+        for (int j = 0; j < kinks.Count; j++)
+            if (kinks[j] >= a - 1e-12 && kinks[j] <= b + 1e-12) return true;
+        return false;
+    }
+
+    /// <summary>
+    /// ln of the largest (k/aH)^2 G over N2 in [<paramref name="n"/>, NEnd] for the mode ln k = <paramref name="lnK"/>
+    /// (at unit V scale, as in <see cref="FirstDriftAbove"/>): how much the source (k/aH)^2 zeta of the zeta equation
+    /// can still move a super-horizon zeta, relative to zeta, once later growth (ultra-slow roll) amplifies it. A mode
+    /// frozen at N ignores every later change, so the stop needs this below the tolerance, not only (k/aH)^2 G at N.
+    /// </summary>
+    public double LogSourcedGrowthAfter(double n, double lnK)
+    {
+        double u = (n - _n0) / _dn;
+        int i = u <= 0 ? 0 : (int)Math.Min(u, _sourceMax.Length - 1);
+        if (i < Volatile.Read(ref _lo)) ExtendTo(i);
+        return 2.0 * lnK + _sourceMax[i];
+    }
+
+    /// <summary>
+    /// The largest ln G(N2) over N2 in [<paramref name="n"/>, NEnd]: how much a seed of zeta' made at any later time can
+    /// still grow (the grid values, conservative like <see cref="LogGrowthAfter"/>).
+    /// </summary>
+    public double MaxLogGrowthAfter(double n)
+    {
+        double u = (n - _n0) / _dn;
+        int i = u <= 0 ? 0 : (int)Math.Min(u, _logG.Length - 1);
+        if (i < Volatile.Read(ref _lo)) ExtendTo(i);
+        double max = 0.0;
+        for (int j = i; j < _logG.Length; j++) max = Math.Max(max, _logG[j]);
+        return max;
     }
 
     /// <summary>

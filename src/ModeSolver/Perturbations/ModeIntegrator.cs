@@ -62,6 +62,7 @@ public sealed class ModeIntegrator
     public ModeResult Solve(IBackground background, double k, ModeSettings settings, FrictionScan? scan = null)
     {
         Setup(background, k, settings);
+        scan ??= background is BackgroundSolution ? FrictionScan.FromStart(background) : null;
         double xs = settings.EffectiveStartDepth;
         double xStop = settings.EffectiveStopDepth;
         double nEnd = background.NEnd;
@@ -75,10 +76,14 @@ public sealed class ModeIntegrator
         _frozen = false;
         _stopCorrection = 0;
         _nStopCandidate = DepthTime(xStop, n0);
+        _nExit = DepthTime(1.0, n0);
+        _maxZeta2 = 0;
+        double stepTol = settings.Tolerance * settings.StepToleranceRatio;
         var options = new OdeOptions
         {
-            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio,
-            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            RelativeTolerance = stepTol,
+            AbsoluteTolerance = stepTol,
+            AbsoluteToleranceVector = AbsoluteTolerances(stepTol, n0, scan),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
             Observer = _observer,
@@ -97,8 +102,61 @@ public sealed class ModeIntegrator
         }
         if (_frozen) ApplyFreeze();
         double xf = Math.Exp(_lnK - n) / background.At(n).H;
-        double err = IntegratorErrorFactor * options.RelativeTolerance + 0.1 * _stopCorrection + InitialDataError(n0, xs, settings.InitialData) + _deepError;
+        double missed = settings.InitialData == InitialDataKind.LocalIndexHankel && _scan is not null
+            ? _scan.FeatureExcitationBefore(n0 - 1e-9, _lnK - 0.5 * Math.Log(_bg.VScale)) : 0.0;
+        // Beyond this the first-order bound on the missed excitation is no bound (|beta| is no longer small).
+        _startInFeature = missed > MissedExcitationLimit;
+        double err = (IntegratorErrorFactor * options.RelativeTolerance + InitialDataError(n0, xs, settings.InitialData) + _deepError + missed) * Cancellation()
+                     + 0.1 * _stopCorrection;
         return Results(k, n0, n, xs, xf, _frozen, err);
+    }
+
+    // True when the missed excitation of earlier fast features is too large for its first-order bound.
+    private bool _startInFeature;
+
+    /// <summary>Largest missed feature excitation (relative) whose first-order bound is still reported as a bound.</summary>
+    internal const double MissedExcitationLimit = 0.1;
+
+    // Largest |zeta|^2 (carried units) at the accepted steps after horizon exit, and the N of exit (k/aH = 1).
+    private double _maxZeta2, _nExit;
+
+    /// <summary>
+    /// How much the final relative accuracy of P_s is worse than that of the state during the run: max |zeta| after
+    /// horizon exit over the final |zeta|, squared for P (at least 1). The step control keeps errors relative to the
+    /// state's size; where zeta then largely cancels outside the horizon (the dip before an ultra-slow-roll peak, where
+    /// P_s falls by many decades), an error of the earlier size remains and is that much larger relative to what is left.
+    /// </summary>
+    private double Cancellation()
+    {
+        if (!_scalar) return 1.0;
+        double final2 = _y[0] * _y[0] + _y[1] * _y[1];
+        double a = _maxZeta2 / final2;
+        return double.IsFinite(a) && a > 1 ? a : 1.0;
+    }
+
+    /// <summary>
+    /// Absolute tolerances of the carried state: <paramref name="stepTol"/> for values, and for the N-derivatives of the
+    /// scalar blocks (zeta', W1', Y2') that divided by the largest growth G that a super-horizon zeta' seeded at any time
+    /// of the mode's run can still undergo (<see cref="FrictionScan.MaxLogGrowthAfter"/>). Outside the horizon zeta' ~ (k/aH)^2 zeta is tiny, so an absolute error the step
+    /// control allows in it is a seed of the mode that an ultra-slow-roll phase (friction 3 - e1 + e2 &lt; 0) amplifies
+    /// by G and feeds into zeta: measured on a Gaussian dip with G ~ 1e6, modes that had left the horizon 12 e-folds
+    /// before it came out 1e-3 off at tolerance 3e-7 (and 2e-5 off at 1e-10) until this tolerance was divided by G.
+    /// </summary>
+    private double[] AbsoluteTolerances(double stepTol, double n0, FrictionScan? scan)
+    {
+        var atol = new double[_dim];
+        Array.Fill(atol, stepTol);
+        if (!_scalar) return atol;
+        scan ??= _bg is BackgroundSolution ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n0);
+        _scan = scan;
+        double g = Math.Exp(scan.MaxLogGrowthAfter(n0));
+        double primes = double.IsFinite(g) && g > 1 ? stepTol / g : stepTol;
+        for (int j = 0; j < (_derivs ? 3 : 1); j++)
+        {
+            atol[4 * j + 2] = primes;
+            atol[4 * j + 3] = primes;
+        }
+        return atol;
     }
 
     /// <summary>
@@ -230,12 +288,14 @@ public sealed class ModeIntegrator
     /// <summary>Step observer: after x &lt;= stop depth, tests the freeze-out criterion (one extra right-hand side per test, counted).</summary>
     private bool Observe(double n, ReadOnlySpan<double> y)
     {
+        if (_scalar && n >= _nExit) _maxZeta2 = Math.Max(_maxZeta2, y[0] * y[0] + y[1] * y[1]);
         if (n < _nStopCandidate) return false;
         y.CopyTo(_y);
         var p = _bg.At(n);
         double x = Math.Exp(_lnK - n) / p.H;
         _scan ??= _bg is BackgroundSolution ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n);
         if (!(x * x * Math.Exp(_scan.LogGrowthAfter(n)) <= _stopTol)) return false;
+        if (!(_scan.LogSourcedGrowthAfter(n, _lnK - 0.5 * Math.Log(_bg.VScale)) <= Math.Log(_stopTol))) return false;
         Rhs(n, _y, _k1);
         if (!TryFreeze(_stopTol, out _stopCorrection)) return false;
         _frozen = true;
@@ -335,6 +395,14 @@ public sealed class ModeIntegrator
         {
             double nLimit = DepthTime(MaxKinkDepth, nA);
             double tBad = FirstDriftBefore(nLimit, n, tol, scan);
+            // The same for a fast feature whose missed excitation (FeatureExcitationBefore: first order, no credit for
+            // the oscillation) would exceed the tolerance, where the drift estimate credits the oscillation too much.
+            double lnKUnit = _lnK - 0.5 * Math.Log(_bg.VScale);
+            if (scan is not null && scan.NFrom <= nLimit && scan.FeatureExcitationBefore(n, lnKUnit) > tol)
+            {
+                double tFast = scan.FirstFastCell(nLimit, n);
+                if (!double.IsNaN(tFast) && (double.IsNaN(tBad) || tFast < tBad)) tBad = tFast;
+            }
             if (!double.IsNaN(tBad))
             {
                 n = Math.Max(nA, tBad - FeatureMargin);
@@ -820,7 +888,7 @@ public sealed class ModeIntegrator
             double ln = ScaleSubtractedBlocks.LogDerivatives(_y.AsSpan(_tOff, _blockT), frozen, _derivs, 3.0 - p.Epsilon1, x2, _s1T, _s2T, out nt, out alphaT);
             pt = Math.Exp(lnK3 + ln - 2.0 * Math.Log(_scaleT) + 2.0 * _lnRef) / (Math.PI * Math.PI);
         }
-        return new ModeResult(k, ps, pt, nsm1, alpha, nt, n0, nf, xs, xf, frozen, _rhsCount, _steps, err) { AlphaT = alphaT };
+        return new ModeResult(k, ps, pt, nsm1, alpha, nt, n0, nf, xs, xf, frozen, _rhsCount, _steps, err) { AlphaT = alphaT, StartedInFeature = _startInFeature };
     }
 }
 

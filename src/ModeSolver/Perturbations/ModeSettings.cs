@@ -98,4 +98,9 @@ public sealed record ModeResult(
     public double AlphaT { get; init; } = double.NaN;
     /// <summary>n_s = 1 + d ln P_s / d ln k.</summary>
     public double Ns => 1.0 + NsMinusOne;
+    /// <summary>
+    /// True when the mode started after (part of) a fast feature it was inside the horizon for, and the first-order bound
+    /// on the excitation it missed exceeds 0.1: <see cref="ErrorEstimate"/> is then not a bound.
+    /// </summary>
+    public bool StartedInFeature { get; init; }
 }

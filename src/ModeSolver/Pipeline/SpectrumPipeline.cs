@@ -179,6 +179,7 @@ public static class SpectrumPipeline
         }
 
         var exact = run.Exact;
+        string? unbounded = UnboundedWarning(spectrum, kMpc);
         var pivotResults = new PivotResults(
             Ns: exact.Ns, AlphaS: exact.AlphaS, R: exact.R, Nt: exact.Nt, As: exact.Ps, KPivot: pivot.KPivot,
             NStar: pivot.NStar, PhiStar: pivot.PhiStar, HStar: pivot.HStar, EnergyScaleGeV: pivot.VStarQuarterGeV,
@@ -187,16 +188,21 @@ public static class SpectrumPipeline
             RhsEvaluationsPerMode: spectrum.MeanRhsEvaluationsPerMode)
         {
             Errors = exact.Errors,
-            ToleranceMet = Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) <= kr.Tolerance,
+            ToleranceMet = Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) <= kr.Tolerance && unbounded is null,
         };
 
-        if (!pivotResults.ToleranceMet) warnings.Add(ToleranceWarning(spectrum, kMpc, exact.ErrorEstimate, kr.Tolerance));
+        if (Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) > kr.Tolerance) warnings.Add(ToleranceWarning(spectrum, kMpc, exact.ErrorEstimate, kr.Tolerance));
+        if (unbounded is not null) warnings.Add(unbounded);
         var srSet = run.SlowRoll;
         var pivotSlowRoll = new PivotSlowRoll(Estimate(srSet.FirstOrder), Estimate(srSet.SecondOrder), Estimate(srSet.Potential));
 
         var background = SampleBackground(bg, pivot, kr, options.BackgroundSamples);
         var spectrumSamples = new SpectrumSamples(Imm(kMpc), Imm(spectrum.Ps), Imm(spectrum.Pt), Imm(spectrum.R),
-            Imm(spectrum.Ns), Imm(spectrum.Nt), Imm(spectrum.AlphaS), Imm(spectrum.ErrorEstimate));
+            Imm(spectrum.Ns), Imm(spectrum.Nt), Imm(spectrum.AlphaS), Imm(spectrum.ErrorEstimate))
+        {
+            Tolerance = kr.Tolerance,
+            ErrorBounded = spectrum.ErrorBounded.Length == m ? ImmutableArray.Create(spectrum.ErrorBounded) : ImmutableArray<bool>.Empty,
+        };
         var srSpectra = new SlowRollSpectra(Imm(kMpc), Imm(ps1), Imm(pt1), Imm(ps2), Imm(pt2), Imm(ns1), Imm(ns2));
         var table = Table(spectrum, pivot, kr, options.TablePointsPerDecade) with { H = settings.Output.TableH };
         if (Flags.PerturbativityWarning(spectrumSamples) is string nonPerturbative) warnings.Add(nonPerturbative);
@@ -333,6 +339,26 @@ public static class SpectrumPipeline
         double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
         return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd, pivot.NPivot,
             windowStart, windowEnd, [.. bg.EndCrossings]);
+    }
+
+    /// <summary>
+    /// The one warning line naming the k range whose error estimate is not a bound (modes that start after a fast feature
+    /// that excited them too strongly for the first-order bound), or null when every estimate is one.
+    /// </summary>
+    private static string? UnboundedWarning(PrimordialSpectrum spectrum, double[] kMpc)
+    {
+        int first = -1, last = -1, count = 0;
+        for (int i = 0; i < spectrum.ErrorBounded.Length; i++)
+        {
+            if (spectrum.ErrorBounded[i]) continue;
+            if (first < 0) first = i;
+            last = i;
+            count++;
+        }
+        if (first < 0) return null;
+        return string.Format(CultureInfo.InvariantCulture,
+            "the error estimate is not a bound at {0} of {1} wavenumbers in k = {2:G4} .. {3:G4} /Mpc: those modes start after a fast feature of the background that excited them by more than {4} (a first-order bound) while they were inside the horizon (tolerance_met: false)",
+            count, spectrum.Count, kMpc[first], kMpc[last], Perturbations.ModeIntegrator.MissedExcitationLimit);
     }
 
     /// <summary>The one warning line of a run whose estimated error exceeds the requested tolerance.</summary>

@@ -25,6 +25,12 @@ public sealed record PrimordialSpectrum
     public required double[] AlphaT { get; init; }
     /// <summary>Estimated relative error of P at each sample.</summary>
     public required double[] ErrorEstimate { get; init; }
+    /// <summary>
+    /// False where <see cref="ErrorEstimate"/> is not a bound: the mode started after a fast feature whose missed excitation
+    /// is too large for its first-order bound (<see cref="Perturbations.ModeResult.StartedInFeature"/>).
+    /// Empty means all bounded.
+    /// </summary>
+    public bool[] ErrorBounded { get; init; } = [];
     /// <summary>Right-hand-side evaluations of each mode.</summary>
     public required int[] RhsEvaluations { get; init; }
     /// <summary>True where the mode froze before the end of inflation; false where it was read off at NEnd.</summary>

@@ -48,23 +48,42 @@ public static class SpectrumSolver
             }
         }
 
-        // Error checks: spread samples and every extra k, re-run 10x tighter (deeper start, smaller steps).
+        // Error checks, re-run 10x tighter (deeper start, smaller steps): spread samples, every extra k, and every mode
+        // whose a-priori estimate is not to be trusted on its own: started deeper than the default depth (a fast
+        // feature or a quickly changing index), or estimated above the mode tolerance (zeta largely cancels after exit).
         var checkIdx = new SortedSet<int>();
         int m = samples.Count;
         for (int c = 0; c < settings.ErrorChecks && m > 0; c++)
             checkIdx.Add(settings.ErrorChecks == 1 ? m / 2 : (int)Math.Round((double)c * (m - 1) / (settings.ErrorChecks - 1)));
         foreach (double ek in settings.ExtraK)
             checkIdx.Add(Nearest(samples, ek));
-        var checkK = checkIdx.Select(i => samples[i].K).ToArray();
+        var ownCheck = new bool[m];
+        for (int i = 0; i < m; i++)
+        {
+            var s0 = samples[i];
+            ownCheck[i] = s0.StartDepth > 1.01 * modeSettings.EffectiveStartDepth || s0.ErrorEstimate > modeSettings.Tolerance;
+            if (ownCheck[i]) checkIdx.Add(i);
+        }
+        var checkList = checkIdx.ToArray();
+        var checkK = checkList.Select(i => samples[i].K).ToArray();
         var tight = SolveAll(background, checkK, settings.ModeSettings(0.1), scan, settings.DegreeOfParallelism);
         var checkDev = new double[checkK.Length];
+        var ownDev = new double[m];
+        Array.Fill(ownDev, double.NaN);
         for (int c = 0; c < checkK.Length; c++)
         {
-            var a = samples[Nearest(samples, checkK[c])];
+            var a = samples[checkList[c]];
             checkDev[c] = Math.Max(RelDiff(a.Ps, tight[c].Ps), RelDiff(a.Pt, tight[c].Pt));
+            ownDev[checkList[c]] = checkDev[c];
         }
+        // The spread checks alone stand for the samples without a check of their own.
+        var spread = new List<int>();
+        for (int c = 0; c < checkList.Length; c++)
+            if (!ownCheck[checkList[c]]) spread.Add(c);
+        var spreadK = spread.Select(c => checkK[c]).ToArray();
+        var spreadDev = spread.Select(c => checkDev[c]).ToArray();
 
-        return Assemble(samples, checkK, checkDev, settings.Tolerance);
+        return Assemble(samples, ownDev, spreadK, spreadDev, checkK, checkDev, settings.Tolerance);
     }
 
     /// <summary>The k range (background units) the background can serve with these settings: (smallest, largest).</summary>
@@ -148,12 +167,13 @@ public static class SpectrumSolver
         return new List<ModeResult>(results);
     }
 
-    private static PrimordialSpectrum Assemble(List<ModeResult> s, double[] checkK, double[] checkDev, double tol)
+    private static PrimordialSpectrum Assemble(List<ModeResult> s, double[] ownDev, double[] spreadK, double[] spreadDev,
+        double[] checkK, double[] checkDev, double tol)
     {
         int n = s.Count;
         var k = new double[n]; var ps = new double[n]; var pt = new double[n]; var r = new double[n];
         var ns = new double[n]; var nt = new double[n]; var al = new double[n]; var at = new double[n];
-        var err = new double[n]; var rhs = new int[n]; var frozen = new bool[n];
+        var err = new double[n]; var rhs = new int[n]; var frozen = new bool[n]; var bounded = new bool[n];
         double maxErr = 0, sumRhs = 0;
         int maxRhs = 0;
         for (int i = 0; i < n; i++)
@@ -161,16 +181,19 @@ public static class SpectrumSolver
             var m = s[i];
             k[i] = m.K; ps[i] = m.Ps; pt[i] = m.Pt; r[i] = m.Pt / m.Ps; ns[i] = m.Ns; nt[i] = m.Nt;
             al[i] = m.AlphaS; at[i] = m.AlphaT; rhs[i] = m.RhsEvaluations; frozen[i] = m.FrozenBeforeEnd;
-            // The per-mode estimate, but never below twice the deviation measured at the nearest check.
+            // The per-mode estimate, but never below twice the deviation measured at its own check, or, without one,
+            // at the nearest spread check.
             double measured = 0;
-            if (checkK.Length > 0)
+            if (!double.IsNaN(ownDev[i])) measured = 2.0 * ownDev[i];
+            else if (spreadK.Length > 0)
             {
                 int c = 0;
-                for (int j = 1; j < checkK.Length; j++)
-                    if (Math.Abs(Math.Log(checkK[j] / m.K)) < Math.Abs(Math.Log(checkK[c] / m.K))) c = j;
-                measured = 2.0 * checkDev[c];
+                for (int j = 1; j < spreadK.Length; j++)
+                    if (Math.Abs(Math.Log(spreadK[j] / m.K)) < Math.Abs(Math.Log(spreadK[c] / m.K))) c = j;
+                measured = 2.0 * spreadDev[c];
             }
             err[i] = Math.Max(m.ErrorEstimate, measured);
+            bounded[i] = !m.StartedInFeature;
             maxErr = Math.Max(maxErr, err[i]);
             sumRhs += m.RhsEvaluations;
             maxRhs = Math.Max(maxRhs, m.RhsEvaluations);
@@ -178,7 +201,7 @@ public static class SpectrumSolver
         return new PrimordialSpectrum
         {
             K = k, Ps = ps, Pt = pt, R = r, Ns = ns, Nt = nt, AlphaS = al, AlphaT = at, ErrorEstimate = err,
-            RhsEvaluations = rhs, FrozenBeforeEnd = frozen, CheckK = checkK, CheckDeviation = checkDev,
+            RhsEvaluations = rhs, FrozenBeforeEnd = frozen, ErrorBounded = bounded, CheckK = checkK, CheckDeviation = checkDev,
             MaxRelativeError = maxErr, MeanRhsEvaluationsPerMode = n > 0 ? sumRhs / n : 0, MaxRhsEvaluationsPerMode = maxRhs,
             Tolerance = tol,
         };

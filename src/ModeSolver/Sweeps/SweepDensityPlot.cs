@@ -32,7 +32,7 @@ public static class SweepDensityPlot
         {
             if (!Plottable(r, options.LogR)) continue;
             if (small.Count == LineLimit) { large = true; break; }
-            small.Add(r);
+            small.Add(r.WithoutSpectrum()); // the plot needs n_s and r only: spectra are not held
         }
         if (!large)
         {
@@ -78,13 +78,14 @@ public static class SweepDensityPlot
         // no per-value legend or marker table of a long axis is built).
         var standIn = new SweepSpec([SweepAxis.List("point", [0.0])]);
         var plot = SweepPlot.Build(standIn, [], options);
-        string what = $"n_s and r: density of {n} points (sweep over {string.Join(", ", spec.Keys)})";
+        // The colour scale is named in the title: a colour-bar label would overlap its tick labels.
+        string what = $"n_s and r: density of {n} points (sweep over {string.Join(", ", spec.Keys)})\ncolour: log10 of the points per cell";
         plot.Title(string.IsNullOrWhiteSpace(options.Subject) ? what : $"{options.Subject}: {what}");
         var map = plot.Add.Heatmap(counts);
         map.Extent = new CoordinateRect(xmin, xmax, ymin, ymax);
         map.Colormap = new ScottPlot.Colormaps.Viridis();
         map.NaNCellColor = Colors.Transparent;
-        plot.Add.ColorBar(map, Edge.Right).Label = "log10 points per cell";
+        plot.Add.ColorBar(map, Edge.Right);
 
         double c = options.NsCentre, s = options.NsSigma;
         double x0 = Math.Min(xmin, c - 2.5 * s), x1 = Math.Max(xmax, c + 2.5 * s), dx = (x1 - x0) * 0.05;

@@ -65,8 +65,8 @@ public static class SweepOutputs
         string csvTmp = TemporaryName(csvPath), h5Tmp = TemporaryName(h5Path);
         try
         {
-            var spectra = spec.Spectra ? SpectraGroup(sorted()) : null;
-            var layout = new Hdf5Layout(spec, fingerprint, count, failed, spectra);
+            var spectra = spec.Spectra ? new SpectraLayout(sorted()) : null;
+            var layout = new Hdf5Layout(spec, fingerprint, count, failed, spectra?.Group);
             using (var csv = new StreamWriter(csvTmp, false, new UTF8Encoding(false), 1 << 16))
             using (var h5 = layout.File.BeginWrite(h5Tmp))
             {
@@ -80,6 +80,7 @@ public static class SweepOutputs
                     spec.GetValues(r.Index, values);
                     WriteCsvRow(csv, spec, values, r);
                     block.Add(r, values);
+                    spectra?.Write(h5, r);
                     if (block.Count == RowBlock) { layout.WriteBlock(h5, block, written); written += block.Count; block.Clear(); }
                 }
                 if (block.Count > 0) { layout.WriteBlock(h5, block, written); written += block.Count; }
@@ -166,19 +167,55 @@ public static class SweepOutputs
         w.Write('\n');
     }
 
-    private static H5Group SpectraGroup(IEnumerable<SweepRecord> sorted)
+    /// <summary>
+    /// The /spectra group, streamed: a first pass over the records declares each point's k, P_s, P_t datasets by
+    /// length only; the second pass (the row loop) writes each point's arrays as it goes, so no spectrum is held in
+    /// memory beyond the one being written (the declared datasets cost a few hundred bytes per point).
+    /// </summary>
+    private sealed class SpectraLayout
     {
-        // Spectra sweeps keep the per-point spectrum groups in memory while the file is written (a documented limit).
-        var spectra = new H5Group();
-        foreach (var r in sorted)
+        private readonly List<(long Index, H5Dataset<double[]>? K, H5Dataset<double[]>? Ps, H5Dataset<double[]>? Pt)> _points = [];
+        private int _next;
+
+        public SpectraLayout(IEnumerable<SweepRecord> sorted)
         {
-            if (r.K is null) continue;
-            var g = new H5Group { ["k"] = r.K };
-            if (r.Ps is not null) g["P_s"] = r.Ps;
-            if (r.Pt is not null) g["P_t"] = r.Pt;
-            spectra[r.Index.ToString("D8", CultureInfo.InvariantCulture)] = g;
+            foreach (var r in sorted)
+            {
+                if (r.K is null) continue;
+                var g = new H5Group();
+                var k = Declare(g, "k", r.K);
+                var ps = r.Ps is null ? null : Declare(g, "P_s", r.Ps);
+                var pt = r.Pt is null ? null : Declare(g, "P_t", r.Pt);
+                Group[r.Index.ToString("D8", CultureInfo.InvariantCulture)] = g;
+                _points.Add((r.Index, k, ps, pt));
+            }
         }
-        return spectra;
+
+        public H5Group Group { get; } = new();
+
+        /// <summary>Writes the arrays of <paramref name="r"/> (records must come in the order of the first pass).</summary>
+        public void Write(H5NativeWriter w, SweepRecord r)
+        {
+            if (r.K is null) return;
+            var (index, k, ps, pt) = _points[_next++];
+            if (index != r.Index) throw new InvalidOperationException($"sweep outputs: spectrum of point {r.Index} where {index} was declared");
+            if (k is not null) w.Write(k, r.K);
+            if (ps is not null) w.Write(ps, r.Ps!);
+            if (pt is not null) w.Write(pt, r.Pt!);
+        }
+
+        /// <summary>A dataset of the array's length, written later; an empty array is stored as it is (null returned).</summary>
+        private static H5Dataset<double[]>? Declare(H5Group g, string name, double[] data)
+        {
+            if (data.Length == 0)
+            {
+                g[name] = data;
+                return null;
+            }
+            var ds = new H5Dataset<double[]>(fileDims: [(ulong)data.Length]);
+            g[name] = ds;
+            return ds;
+        }
     }
 
     /// <summary>A block of HDF5 rows (column buffers, reused).</summary>

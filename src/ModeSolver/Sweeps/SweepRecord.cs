@@ -47,6 +47,12 @@ public sealed class SweepRecord
         };
     }
 
+    /// <summary>This record without its spectrum arrays (itself when it has none), for what keeps many records.</summary>
+    public SweepRecord WithoutSpectrum() => K is null && Ps is null && Pt is null ? this : new SweepRecord
+    {
+        Index = Index, Ok = Ok, Message = Message, Ns = Ns, R = R, AlphaS = AlphaS, Nt = Nt, As = As, NStar = NStar, VScale = VScale, Flags = Flags,
+    };
+
     /// <summary>A failed point.</summary>
     public static SweepRecord Failure(long index, string reason) =>
         new() { Index = index, Ok = false, Message = SweepDeck.OneLine(reason.Length == 0 ? "failed" : reason) };

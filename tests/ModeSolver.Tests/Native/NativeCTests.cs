@@ -42,6 +42,11 @@ public class NativeCTests
             foreach (var (key, name) in Values)
                 if (root.GetProperty(key).ValueKind == JsonValueKind.Number)
                     args.Add(name + "=" + root.GetProperty(key).GetDouble().ToString("R", CultureInfo.InvariantCulture));
+            foreach (var q in root.GetProperty("errors").EnumerateObject())
+                if (q.Value.ValueKind == JsonValueKind.Number)
+                    args.Add("error." + q.Name + "=" + q.Value.GetDouble().ToString("R", CultureInfo.InvariantCulture));
+            Assert.Equal(5, args.Count(a => a.StartsWith("error.", StringComparison.Ordinal)));
+            args.Add("tolerance_met=" + (root.GetProperty("tolerance_met").GetBoolean() ? "1" : "0"));
             args.Add("samples=" + root.GetProperty("statistics").GetProperty("modes").GetInt32().ToString(CultureInfo.InvariantCulture));
             args.Add("flags=" + root.GetProperty("flags").GetArrayLength().ToString(CultureInfo.InvariantCulture));
             double deckValue = root.GetProperty("model").GetProperty("parameters").GetProperty(parameter).GetDouble();

@@ -174,6 +174,16 @@ public class SweepRunnerTests
         Assert.Equal([0.001, 0.01, 0.05, 0.1], k);
         Assert.Equal(2.1e-9, ps[2]);
         Assert.False(h5.Group("spectra").LinkExists("00000007")); // the failed point has none
+        // Streamed point by point: every point's arrays sit in its own group, equal to its journal line.
+        var (_, records) = SweepResults.Load(dir);
+        Assert.Equal(14, records.Count(r => r.Ok));
+        foreach (var r in records.Where(r => r.Ok))
+        {
+            var g = h5.Group("spectra").Group(r.Index.ToString("D8", System.Globalization.CultureInfo.InvariantCulture));
+            Assert.Equal(r.K, g.Dataset("k").Read<double[]>());
+            Assert.Equal(r.Ps, g.Dataset("P_s").Read<double[]>());
+            Assert.Equal(r.Pt, g.Dataset("P_t").Read<double[]>());
+        }
     }
 
     [Fact]
