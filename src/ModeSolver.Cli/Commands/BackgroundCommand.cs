@@ -70,7 +70,7 @@ public static class BackgroundCommand
         Line("end of inflation", bg.EndedAtPhiEnd
             ? string.Format(inv, "phi_end = {0:G8} (set by hand)", settings.Model.PhiEnd)
             : string.Format(inv, "epsilon_1 = 1 at phi = {0:G10} (crossings at N = {1})", bg.At(bg.NEnd).Phi,
-                string.Join(", ", bg.EndCrossings.Select(n => n.ToString("F4", inv)))));
+                string.Join(", ", bg.EndCrossings.Select(n => (n - bg.NStart).ToString("F4", inv)))));
         Line("k_pivot [1/Mpc]", p.KPivot.ToString("G6", inv));
         Line("N_*", string.Format(inv, "{0:F6}{1}", p.NStar, settings.Pivot.Efolds is null ? string.Format(inv, "  (from reheating: N_reh = {0:F3})", p.NReh) : "  (given)"));
         Line("phi_*", p.PhiStar.ToString("G10", inv));
@@ -99,6 +99,7 @@ public static class BackgroundCommand
         output.WriteLine(string.Format(inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "exact (one mode)", e.Ps, e.Ns, e.R, e.AlphaS, e.Nt));
         foreach (var sr in new[] { run.SlowRoll.SecondOrder, run.SlowRoll.FirstOrder, run.SlowRoll.Potential })
             output.WriteLine(string.Format(inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "slow roll, " + sr.Order, sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt));
+        if (bg.ContinuationNote is string stopped) error.WriteLine("modesolver: warning: " + TextSafety.Printable(stopped));
         return 0;
     }
 }

@@ -14,7 +14,7 @@ public sealed record BackgroundSettings
     /// <summary>Relative tolerance of the integration (absolute tolerance is a hundredth of it).</summary>
     public double Tolerance { get; init; } = 1e-10;
 
-    /// <summary>Give up ("inflation never ends") when no end is found within this many e-folds.</summary>
+    /// <summary>Give up when no end is found within this many e-folds (the largest background computed; not a deck key).</summary>
     public double MaxEFolds { get; init; } = 5000;
 
     /// <summary>E-folds to continue after the end of inflation (through the first oscillations). 0 stops at the end.</summary>

@@ -12,7 +12,8 @@ namespace ModeSolver.Background;
 internal sealed record BackgroundSegment(double Start, double Stop, OdeSolution Solution, bool Regular);
 
 /// <summary>
-/// The exact background of an inflaton theory in e-folds (origin N = 0 at the start), with dense output.
+/// The exact background of an inflaton theory in e-folds (N = 0 at the start, or at the end of inflation for long
+/// backgrounds: see <see cref="Origin"/>), with dense output.
 /// The shape (phi(N), e_n(N)) does not depend on the scale of V; <see cref="WithVScale"/> gives a rescaled view
 /// sharing the same storage, in which only H (and V) change.
 /// </summary>
@@ -27,6 +28,8 @@ public sealed class BackgroundSolution : IBackground
         public required BackgroundSegment[] Segments { get; init; }
         public required double[] SegmentStarts { get; init; }
         public required double NEnd { get; init; }
+        public required double Origin { get; init; }
+        public required string? ContinuationNote { get; init; }
         public required double[] EndCrossings { get; init; }
         public required double[] RisingCrossings { get; init; }
         public required double[] NonSmoothTimes { get; init; }
@@ -84,6 +87,12 @@ public sealed class BackgroundSolution : IBackground
     /// <inheritdoc/>
     public IReadOnlyList<double> NonSmoothTimes => _shared.NonSmoothTimes;
 
+    /// <summary>
+    /// Null when the continuation after the end of inflation ran as planned; otherwise the one warning line saying where
+    /// and why it stopped (the background then ends there, <see cref="NStop"/>).
+    /// </summary>
+    public string? ContinuationNote => _shared.ContinuationNote;
+
     /// <summary>True when inflation was ended by <see cref="BackgroundSettings.PhiEnd"/> rather than by epsilon_1 = 1.</summary>
     public bool EndedAtPhiEnd => _shared.EndedAtPhiEnd;
 
@@ -101,9 +110,32 @@ public sealed class BackgroundSolution : IBackground
         return new BackgroundSolution(_shared, scale);
     }
 
+    /// <summary>
+    /// Backgrounds whose end of inflation lies more than this many e-folds after the start measure N from the end of
+    /// inflation instead (N_end = 0), so that k = aH = e^N H stays a finite double near the pivot whatever the length
+    /// of inflation (e^N overflows past N of about 709). Shorter backgrounds keep N = 0 at the start.
+    /// </summary>
+    public const double LongBackgroundEFolds = 300;
+
+    /// <summary>
+    /// E-folds from the start of the integration to this background's N = 0: 0 (N counted from the start) or, for a
+    /// background longer than <see cref="LongBackgroundEFolds"/>, N_total (N counted from the end of inflation).
+    /// User-facing e-fold values are N - <see cref="NStart"/>, e-folds since the start, either way.
+    /// </summary>
+    public double Origin => _shared.Origin;
+
     internal static BackgroundSolution Create(IInflatonTheory theory, List<BackgroundSegment> segments, double nEnd,
-        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd)
+        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd, string? continuationNote)
     {
+        double origin = nEnd > LongBackgroundEFolds ? nEnd : 0.0;
+        if (origin != 0)
+        {
+            segments = segments.ConvertAll(g => g with { Start = g.Start - origin, Stop = g.Stop - origin });
+            crossings = crossings.ConvertAll(c => c - origin);
+            rising = rising.ConvertAll(c => c - origin);
+            nonSmooth = nonSmooth.ConvertAll(c => c - origin);
+            nEnd = 0.0;
+        }
         var segs = segments.ToArray();
         var starts = new double[segs.Length];
         for (int i = 0; i < segs.Length; i++) starts[i] = segs[i].Start;
@@ -114,7 +146,7 @@ public sealed class BackgroundSolution : IBackground
             var times = s.Solution.StepTimes;
             for (int j = 0; j < times.Length; j++)
             {
-                double t = times[j];
+                double t = times[j] - origin;
                 if (gridN.Count > 0 && t <= gridN[^1]) continue;
                 gridN.Add(t);
             }
@@ -129,7 +161,7 @@ public sealed class BackgroundSolution : IBackground
 
         var shared0 = new Shared
         {
-            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd,
+            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd, Origin = origin, ContinuationNote = continuationNote,
             EndCrossings = crossings.ToArray(), RisingCrossings = rising.ToArray(), NonSmoothTimes = nonSmooth.ToArray(),
             EndedAtPhiEnd = endedAtPhiEnd, GridN = gridN.ToArray(), GridPhi = new double[gridN.Count],
             GridEndIndex = endIndex, SuffixMinLnAH = new double[endIndex + 1],
@@ -171,7 +203,7 @@ public sealed class BackgroundSolution : IBackground
         }
         var seg = _shared.Segments[SegmentIndex(n)];
         Span<double> y = stackalloc double[3];
-        double t = Math.Min(n, seg.Stop);
+        double t = Math.Min(n, seg.Stop) + _shared.Origin; // the segment's solution runs in e-folds since the start
         var theory = _shared.Theory;
         if (seg.Regular)
         {
@@ -250,9 +282,14 @@ public sealed class BackgroundSolution : IBackground
     /// </summary>
     public (double KMin, double KMax) KRange(double startDepth, double endDepth)
     {
+        var (lnMin, lnMax) = LnKRange(startDepth, endDepth);
+        return (Math.Exp(lnMin), Math.Exp(lnMax));
+    }
+
+    /// <summary>The logarithms of <see cref="KRange"/> (finite even where k itself under- or overflows a double).</summary>
+    public (double LnKMin, double LnKMax) LnKRange(double startDepth, double endDepth)
+    {
         var suf = _shared.SuffixMinLnAH;
-        double kMin = startDepth * Math.Exp(suf[0] + _halfLnScale);
-        double kMax = endDepth * Math.Exp(suf[_shared.GridEndIndex] + _halfLnScale);
-        return (kMin, kMax);
+        return (Math.Log(startDepth) + suf[0] + _halfLnScale, Math.Log(endDepth) + suf[_shared.GridEndIndex] + _halfLnScale);
     }
 }

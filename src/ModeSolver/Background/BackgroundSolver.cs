@@ -1,3 +1,4 @@
+using System.Globalization;
 using ModeSolver.Integrators;
 using ModeSolver.Models;
 using ModeSolver.Physics;
@@ -77,7 +78,11 @@ public static class BackgroundSolver
             _inflation = inflation;
             _reheating = reheating;
             _constrained = (t, y, d) => BackgroundEquations.Constrained(theory, Side(y[0]), y, d);
-            _regular = (t, y, d) => BackgroundEquations.Regular(theory, Side(y[0]), y, d);
+            // After the end the field is back where double arithmetic resolves the slope: the continuation evaluates a
+            // double-double Jordan-frame map in plain double (its many fast oscillations would otherwise dominate the run).
+            _after = theory is JordanFrameTheory { IsExtendedPrecision: true } j ? j.WithPlainPrecision() : theory;
+            var after = _after;
+            _regular = (t, y, d) => BackgroundEquations.Regular(after, Side(y[0]), y, d);
         }
 
         // When a segment starts exactly on a kink, V and K are evaluated one ulp to the side the field moves to,
@@ -94,7 +99,11 @@ public static class BackgroundSolver
             _kinkDirection = dphi;
         }
 
+        private readonly IInflatonTheory _after;
+
         private double E1(ReadOnlySpan<double> y) => 0.5 * _theory.Kinetic(y[0]).Value * y[1] * y[1];
+
+        private double E1After(ReadOnlySpan<double> y) => 0.5 * _after.Kinetic(y[0]).Value * y[1] * y[1];
 
         private void AddKinkEvents(List<EventSpec> specs, List<(Kind, double)> kinds, double phiNow)
         {
@@ -123,23 +132,38 @@ public static class BackgroundSolver
             }
         }
 
-        private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events)
+        /// <summary>
+        /// Step budget of the whole continuation after an end of inflation (all its segments together): the planned few
+        /// e-folds of oscillations need a few thousand steps; a continuation that needs far more follows very fast
+        /// oscillations (the Palatini map at large xi: omega/H ~ sqrt(xi)) or is stuck at a singular or non-smooth minimum,
+        /// and only ends early (with its warning) instead of spending the run's time there.
+        /// </summary>
+        public const int ContinuationStepBudget = 10_000;
+
+        private int _continuationSteps;
+
+        private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events, int? maxSteps = null)
         {
+            bool continuation = ReferenceEquals(rhs, _regular);
+            int budget = maxSteps ?? (continuation ? Math.Max(1, Math.Min(_s.MaxSteps, ContinuationStepBudget - _continuationSteps)) : _s.MaxSteps);
             var options = new OdeOptions
             {
                 RelativeTolerance = _s.Tolerance,
                 AbsoluteTolerance = 1e-2 * _s.Tolerance,
                 Events = events,
                 DenseOutput = true,
-                MaxSteps = _s.MaxSteps,
+                MaxSteps = budget,
                 MaxStep = _s.MaxStep,
             };
             try
             {
-                return method.Solve(new OdeProblem(rhs, t0, y0, tEnd), options);
+                var sol = method.Solve(new OdeProblem(rhs, t0, y0, tEnd), options);
+                if (continuation) _continuationSteps += sol.Statistics.AcceptedSteps + sol.Statistics.RejectedSteps;
+                return sol;
             }
             catch (IntegrationException ex)
             {
+                if (continuation) _continuationSteps += budget;
                 string state = ex.State.Length >= 2 ? $"phi = {ex.State[0]:G6}, dphi/dN = {ex.State[1]:G6}" : "state unknown";
                 if (ex.State.Length >= 2 && NonFiniteModel(ex.State[0], ex.State[1]) is { } bad)
                     throw new PhysicsException($"The background integration broke down at N = {ex.T:G8}, {state}: the model is not finite there ({bad}); the potential or kinetic function is undefined there (e.g. sqrt or log of a negative number): restrict the model or end inflation before it (phi_end).", ex);
@@ -214,16 +238,14 @@ public static class BackgroundSolver
                 }
                 AddRangeEvents(specs, kinds);
                 AddKinkEvents(specs, kinds, y[0]);
-                if (!(_s.MaxEFolds > n))
-                    throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (reached N = {n:G8}, phi = {y[0]:G6}); raise the e-fold limit, start nearer the end, or set an end field value.");
+                if (!(_s.MaxEFolds > n)) throw NeverEnds(n, y);
                 var sol = Integrate(_inflation, _constrained, n, y, _s.MaxEFolds, specs);
                 AddSegment(n, sol, regular: false);
                 foreach (var ev in sol.Events)
                     if (kinds[ev.EventIndex].Kind == Kind.Fall && ev.T > n) _crossings.Add(ev.T);
                 if (sol.Status != OdeStatus.TerminalEvent)
                 {
-                    var yf = sol.FinalState;
-                    throw new PhysicsException($"Inflation never ends within {_s.MaxEFolds:G6} e-folds (at N = {sol.TFinal:G8}, phi = {yf[0]:G6}, epsilon_1 = {E1(yf):G4}); raise the e-fold limit, start nearer the end, or set an end field value.");
+                    throw NeverEnds(sol.TFinal, sol.FinalState);
                 }
                 var last = TerminalEvent(sol, specs);
                 var (kind, value) = kinds[last.EventIndex];
@@ -242,7 +264,7 @@ public static class BackgroundSolver
                     case Kind.RangeHigh:
                         throw new PhysicsException($"The field left the theory's valid range at N = {n:G8}, phi = {value:G6}; start elsewhere or set an end field value inside the range.");
                     case Kind.PhiEnd:
-                        return BackgroundSolution.Create(_theory, _segments, n, _crossings, _rising, _nonSmooth, endedAtPhiEnd: true);
+                        return BackgroundSolution.Create(_theory, _segments, n, _crossings, _rising, _nonSmooth, endedAtPhiEnd: true, null);
                     case Kind.Rise:
                         _crossings.Add(n);
                         _rising.Add(n);
@@ -261,7 +283,57 @@ public static class BackgroundSolver
             int idx = _s.EndCrossing >= 0 ? _s.EndCrossing : count + _s.EndCrossing;
             if (idx < 0 || idx >= count)
                 throw new PhysicsException($"The end-crossing choice {_s.EndCrossing} does not exist: epsilon_1 rose through 1 only {count} time(s) (at N = {string.Join(", ", _rising.Select(r => r.ToString("G8")))}); choose an index in range.");
-            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false);
+            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false, _continuationNote);
+        }
+
+        /// <summary>
+        /// The error of a background that is still inflating at the e-fold limit: a field that has come to rest where V > 0
+        /// and V_phi = 0 is trapped in a false minimum (eternal de Sitter); otherwise it is still rolling.
+        /// </summary>
+        private PhysicsException NeverEnds(double n, double[] y)
+        {
+            var v = _theory.Potential(y[0]);
+            double slope = Math.Abs(v.D1 / (_theory.Kinetic(y[0]).Value * v.Value)); // the attractor speed |V_phi/(K V)|
+            if (v.Value > 0 && Math.Abs(y[1]) < 1e-6 && slope < 1e-6)
+                return new PhysicsException(string.Create(CultureInfo.InvariantCulture,
+                    $"The field is trapped in a false minimum at phi = {y[0]:G6} (V = {v.Value:G4} > 0, V_phi = {v.D1:G3}) (at rest there at N = {n:G6}): inflation never ends; start on the other side of the barrier, change the potential, or end inflation by hand before it (phi_end)."));
+            return new PhysicsException(string.Create(CultureInfo.InvariantCulture,
+                $"Inflation does not end within {_s.MaxEFolds:G6} e-folds, the largest background computed (still inflating at phi = {y[0]:G6}, epsilon_1 = {E1(y):G4}); start nearer the end (phi0 or start.efolds) or end inflation by hand (phi_end)."));
+        }
+
+        private string? _continuationNote;
+
+        /// <summary>
+        /// Records the continuation up to the last good state of a failed segment (re-integrated to there) and the one
+        /// warning line that says where and why it stopped.
+        /// </summary>
+        private void StopContinuation(double nUp, double n, double[] y, double tEnd, List<EventSpec> specs, IntegrationException failure, bool pending)
+        {
+            double reached = n;
+            if (failure.T > n && failure.T <= tEnd)
+            {
+                try
+                {
+                    var partial = Integrate(_reheating, _regular, n, y, failure.T, specs, maxSteps: _s.MaxSteps);
+                    if (partial.Status != OdeStatus.TerminalEvent)
+                    {
+                        AddSegment(n, partial, regular: true);
+                        reached = partial.TFinal;
+                    }
+                }
+                catch (PhysicsException)
+                {
+                    // The background keeps the segments before this one.
+                }
+            }
+            double phi = failure.State.Length > 0 ? failure.State[0] : double.NaN;
+            double dphi = failure.State.Length > 1 ? failure.State[1] : double.NaN;
+            string why = NonFiniteModel(phi, dphi) is { } bad ? $"the model is not finite there ({bad})"
+                : double.IsFinite(phi) && _theory.Potential(phi).Value < 0 ? $"V < 0 there (V = {_theory.Potential(phi).Value:G4}) and the field runs away"
+                : failure.Failure == IntegrationFailure.StepBudgetExhausted ? $"its budget of {ContinuationStepBudget} steps ran out (very fast oscillations, or a singular or non-smooth minimum)"
+                : $"the integration broke down ({failure.Failure}; the potential is singular or not smooth there)";
+            _continuationNote = string.Create(CultureInfo.InvariantCulture,
+                $"the continuation after the end of inflation stopped {failure.T - nUp:G3} e-folds after the end (N = {failure.T:G8}, phi = {phi:G6}): {why}; the background is recorded up to N = {reached:G8}{(pending ? " and the last fall of epsilon_1 below 1 is not counted as inflation resuming" : "")}");
         }
 
         /// <summary>Runs past an end; returns whether inflation resumed, with the state (phi, phi') and N to resume from.</summary>
@@ -280,17 +352,28 @@ public static class BackgroundSolver
                 bool pending = !double.IsNaN(pendingFall);
                 if (pending)
                 {
-                    specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Rising, Terminal: true, Name: "epsilon1-up")); kinds.Add((Kind.Rise, 1));
+                    specs.Add(new EventSpec((t, s) => E1After(s) - 1.0, EventDirection.Rising, Terminal: true, Name: "epsilon1-up")); kinds.Add((Kind.Rise, 1));
                 }
                 else
                 {
-                    specs.Add(new EventSpec((t, s) => E1(s) - 1.0, EventDirection.Falling, Terminal: true, Name: "epsilon1-down")); kinds.Add((Kind.Fall, 1));
+                    specs.Add(new EventSpec((t, s) => E1After(s) - 1.0, EventDirection.Falling, Terminal: true, Name: "epsilon1-down")); kinds.Add((Kind.Fall, 1));
                 }
                 AddRangeEvents(specs, kinds);
                 AddKinkEvents(specs, kinds, y[0]);
                 // A pending fall is followed for the whole re-entry window, even past the planned stop.
                 double tEnd = pending ? pendingFall + _s.ReentryEFolds : stop;
-                var sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
+                OdeSolution sol;
+                try
+                {
+                    sol = Integrate(_reheating, _regular, n, y, tEnd, specs);
+                }
+                catch (PhysicsException e) when (e.InnerException is IntegrationException failure)
+                {
+                    // After an end of inflation a breakdown (singular or non-smooth minimum, V < 0, a NaN domain) ends only
+                    // the continuation: keep what was integrated up to the last good state and say so once.
+                    StopContinuation(nUp, n, y, tEnd, specs, failure, pending);
+                    return (false, y, n);
+                }
                 AddSegment(n, sol, regular: true);
                 if (sol.Status != OdeStatus.TerminalEvent)
                 {
@@ -318,6 +401,8 @@ public static class BackgroundSolver
                     case Kind.RangeLow:
                     case Kind.RangeHigh:
                         // Inflation has ended already: the model being undefined further on only cuts the continuation short.
+                        _continuationNote = string.Create(CultureInfo.InvariantCulture,
+                            $"the continuation after the end of inflation stopped {n - nUp:G3} e-folds after the end (N = {n:G8}) where the field left the theory's valid range at phi = {value:G6}; the background is recorded up to there");
                         return (false, y, n);
                     case Kind.Fall:
                         pendingFall = n;

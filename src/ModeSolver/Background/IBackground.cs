@@ -1,7 +1,10 @@
 namespace ModeSolver.Background;
 
-/// <summary>The homogeneous background at one instant. N = ln a (origin at the start of the integration), M_pl = 1.</summary>
-/// <param name="N">E-folds since the start.</param>
+/// <summary>
+/// The homogeneous background at one instant. N = ln a + const: its origin is the start of the integration, or the end of
+/// inflation for long backgrounds (<see cref="BackgroundSolution.Origin"/>); M_pl = 1.
+/// </summary>
+/// <param name="N">E-folds in the background's coordinate (since the start unless the background is long).</param>
 /// <param name="Phi">Field value (as the user wrote it).</param>
 /// <param name="DPhi">d phi / dN.</param>
 /// <param name="H">Hubble rate in reduced Planck units, with the potential multiplied by the current V scale.</param>
@@ -16,7 +19,7 @@ public readonly record struct BackgroundPoint(double N, double Phi, double DPhi,
 /// </summary>
 public interface IBackground
 {
-    /// <summary>First N of the solution (usually 0).</summary>
+    /// <summary>First N of the solution (0, or -N_total for a long background).</summary>
     double NStart { get; }
 
     /// <summary>Last N of the solution (after the end of inflation when the run continued through reheating).</summary>

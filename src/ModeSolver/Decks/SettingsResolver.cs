@@ -340,7 +340,7 @@ public static class SettingsResolver
         IValidatedTheory theory;
         try
         {
-            theory = TheoryFactory.Build(model);
+            theory = TheoryFactory.Build(model, entry?.DefaultPhi0 ?? double.NaN);
         }
         catch (FormulaException e)
         {

@@ -11,7 +11,29 @@ public static class TheoryFactory
     /// when a coupling is given. The valid range is left unrestricted; see <see cref="Build(RunSettings)"/>.
     /// </summary>
     /// <exception cref="FormulaException">a formula does not parse (the caller maps it to the key concerned).</exception>
-    public static IValidatedTheory Build(ModelSpec spec)
+    public static IValidatedTheory Build(ModelSpec spec) => Build(spec, double.NaN);
+
+    /// <summary>
+    /// Largest round-off of the attractor slope V_phi/(K V) accepted from double evaluation of a Jordan-frame map
+    /// (<see cref="JordanFrameTheory.SlopeRoundOff"/>); above it V and K are evaluated in double-double arithmetic. The
+    /// background's relative tolerance is 1e-10, so slope noise of 1e-12 is invisible.
+    /// </summary>
+    public const double SlopeRoundOffLimit = 1e-12;
+
+    /// <summary>
+    /// As <see cref="Build(ModelSpec)"/>; a Jordan-frame theory whose slope at <paramref name="probePhi"/> (when finite)
+    /// is lost to round-off beyond <see cref="SlopeRoundOffLimit"/> (a plateau flatter than double precision resolves,
+    /// e.g. the Palatini map at xi phi^2 ~ 1e11) is evaluated in double-double arithmetic.
+    /// </summary>
+    public static IValidatedTheory Build(ModelSpec spec, double probePhi)
+    {
+        var theory = BuildPlain(spec);
+        if (theory is JordanFrameTheory j && double.IsFinite(probePhi) && j.SlopeRoundOff(probePhi) > SlopeRoundOffLimit)
+            return j.WithExtendedPrecision();
+        return theory;
+    }
+
+    private static IValidatedTheory BuildPlain(ModelSpec spec)
     {
         ArgumentNullException.ThrowIfNull(spec);
         var pars = spec.Parameters;
@@ -32,7 +54,7 @@ public static class TheoryFactory
     public static IValidatedTheory Build(RunSettings settings)
     {
         ArgumentNullException.ThrowIfNull(settings);
-        var theory = Build(settings.Model);
+        var theory = Build(settings.Model, settings.Initial.Phi0);
         var range = theory.FindValidInterval(settings.Initial.Phi0);
         return theory switch
         {

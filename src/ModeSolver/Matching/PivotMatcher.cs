@@ -1,3 +1,4 @@
+using System.Globalization;
 using ModeSolver.Background;
 using ModeSolver.Diagnostics;
 using ModeSolver.Physics;
@@ -8,7 +9,8 @@ namespace ModeSolver.Matching;
 /// Places the pivot k_* on the background and normalises the potential (physics.md section 5):
 /// N_* = ln(H_*/k_*) - N_reh + ln a_reh with H_* in 1/Mpc, N_reh = ln(rho_end/rho_reh)/(3(1+w)),
 /// a_reh = (g_s0/g_s,reh)^(1/3) T_0/T_reh, rho_reh = (pi^2/30) g_reh T_reh^4, rho_end = 3 H_end^2.
-/// N_* and the V scale are iterated together to a fixed point (P_s is exactly proportional to the V scale at fixed N_*).
+/// P_s is exactly proportional to the V scale at fixed N_*, so with N_* given the normalisation is one rescaling; with
+/// N_* from reheating (which depends on H_* and rho_end, hence on the scale) N_* is the bracketed root of one equation.
 /// </summary>
 public static class PivotMatcher
 {
@@ -31,85 +33,130 @@ public static class PivotMatcher
         double nTotal = background.NTotal;
         double nEnd = background.NEnd;
         double s = background.VScale;
-        double nStar = settings.EFolds ?? Math.Min(settings.InitialEFolds, 0.9 * nTotal);
         if (settings.EFolds is double given && (!(given > 0) || given > nTotal))
-            throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {given:G6}; start the field further up the potential (phi0) or lower N_*.");
+            throw new PhysicsException(given > 0
+                ? $"Only {nTotal:G6} e-folds of inflation before the end, N_* = {given:G6} needs more; start the field further up the potential (phi0) or lower N_*."
+                : $"N_* = {given:G6} is not positive; give the e-folds between the pivot's horizon exit and the end of inflation (> 0).");
 
         double lnKStar = Math.Log(settings.KPivot);
-        double nReh = double.NaN, tReh = double.NaN, rhoEnd = double.NaN, psPivot = double.NaN;
+        double phi0 = background.At(background.NStart).Phi;
         int iterations = 0;
-        bool converged = false;
-        int clamped = 0;
-        while (iterations < settings.MaxIterations)
+        double sAt = s, psPivot = double.NaN;
+
+        // The V scale that normalises the pivot placed N_* = x before the end: P_s is exactly proportional to the V scale
+        // at fixed N (the shape of the background does not depend on it), so this is one amplitude evaluation and one
+        // rescaling. Sets sAt and psPivot.
+        double normalisedAt = double.NaN;
+        void Normalise(double x)
         {
-            iterations++;
-            double nPiv = nEnd - nStar;
-            if (nPiv < background.NStart)
-            {
-                if (++clamped >= 3)
-                    throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but the reheating history asks for N_* = {nStar:G6} (phi0 = {background.At(background.NStart).Phi:G6}); start the field further up the potential.");
-                nPiv = background.NStart;
-            }
+            double nPiv = nEnd - x;
+            if (settings.ScalarAmplitude is not double target) { sAt = s; return; }
+            if (x == normalisedAt) return;
+            if (++iterations > settings.MaxIterations)
+                throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} amplitude evaluations (last N_* = {x:G8}, V scale = {sAt:G6}); give N_* directly or check the amplitude provider.");
             var bgs = background.WithVScale(s);
             var pt = bgs.At(nPiv);
-            double ratio = 1.0;
-            if (settings.ScalarAmplitude is double target)
+            double kbg = Math.Exp(nPiv) * pt.H;
+            var (kMinServed, _) = bgs.KRange(settings.PivotStartDepth, 1.0);
+            if (kbg < kMinServed)
+                throw new PhysicsException(string.Create(CultureInfo.InvariantCulture,
+                    $"Only {nPiv - background.NStart:G4} e-folds of inflation before the pivot leaves the horizon (N_* = {x:G6} of N_total = {nTotal:G6}, phi0 = {phi0:G6}): the pivot mode must start at least {settings.PivotStartDepth:G3} times inside the horizon, about {Math.Log(settings.PivotStartDepth):G2} e-folds earlier; start the field further up the potential (phi0) or lower N_*."));
+            double ps;
+            try
             {
-                double kbg = Math.Exp(nPiv) * pt.H;
-                try
-                {
-                    psPivot = amplitude.ScalarPower(bgs, kbg);
-                }
-                catch (PhysicsException e) when (nPiv > 600)
-                {
-                    throw new PhysicsException($"The pivot lies {nPiv:G6} e-folds after the start of the background (phi0 = {background.At(background.NStart).Phi:G6}): more than about 600 e-folds before the pivot exceed the floating-point range of a = exp(N); start the field closer to the end of inflation (phi0).", e);
-                }
-                catch (PhysicsException e)
-                {
-                    throw new PhysicsException($"The pivot mode (N_* = {nStar:G6}, at N = {nPiv:G8}, phi = {pt.Phi:G6}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
-                }
-                if (!(psPivot > 0) || !double.IsFinite(psPivot))
-                    throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {psPivot} at the pivot (N = {nPiv:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
-                ratio = target / psPivot;
-                s *= ratio;
-                if (!(s > 0) || !double.IsFinite(s))
-                    throw new PhysicsException($"Normalising to A_s = {target:G4} needs the potential scaled by {ratio:G3}, beyond the double-precision range (P_s = {psPivot:G3} at the pivot before scaling); give the potential a scale nearer A_s.");
-                bgs = background.WithVScale(s);
-                pt = bgs.At(nPiv);
-                psPivot = target;
+                ps = amplitude.ScalarPower(bgs, kbg);
             }
-            if (!fromReheating)
+            catch (PhysicsException e)
             {
-                if (Math.Abs(ratio - 1) < 1e-10) { converged = true; break; }
-                continue;
+                throw new PhysicsException($"The pivot mode (N_* = {x:G6}, {nPiv - background.NStart:G8} e-folds after the start, phi = {pt.Phi:G6}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
             }
-            double hEnd = bgs.At(nEnd).H;
-            rhoEnd = 3 * hEnd * hEnd;
-            // A T_reh above T_end is reported after the loop with both temperatures; until then iterate as if instantaneous.
-            (nReh, tReh) = reh.TRehGeV is double tGiven && tGiven > TemperatureGeV(rhoEnd, settings.GReh)
-                ? Reheat(ReheatingHistory.Instantaneous, rhoEnd, settings)
-                : Reheat(reh, rhoEnd, settings);
-            double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
-            double lnHMpc = Math.Log(pt.H) + LnMplInMpc;
-            double next = lnHMpc - lnKStar - nReh + lnAReh;
-            if (!(next > 0))
-                throw NoHorizonExit(reh, next, tReh, rhoEnd, settings, Math.Exp(next + lnKStar));
-            double delta = next - nStar;
-            nStar = next;
-            if (Math.Abs(delta) < settings.Tolerance && Math.Abs(ratio - 1) < 1e-8) { converged = true; break; }
+            if (!(ps > 0) || !double.IsFinite(ps))
+                throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {ps} at the pivot (N_* = {x:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
+            sAt = s * (target / ps);
+            if (!(sAt > 0) || !double.IsFinite(sAt))
+                throw new PhysicsException($"Normalising to A_s = {target:G4} needs the potential scaled by {target / ps:G3}, beyond the double-precision range (P_s = {ps:G3} at the pivot before scaling); give the potential a scale nearer A_s.");
+            psPivot = target;
+            normalisedAt = x;
         }
-        if (!converged)
-            throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} iterations (last N_* = {nStar:G8}, V scale = {s:G6}); give N_* directly or check the amplitude provider.");
+
+        double nStar;
+        if (!fromReheating)
+        {
+            nStar = settings.EFolds!.Value;
+            Normalise(nStar);
+            s = sAt;
+        }
+        else
+        {
+            // N_* from the reheating history depends on H_* and rho_end, hence on the V scale that normalises the pivot:
+            // the root of g(x) = N_*(reheating; x, V scale(x)) - x, bracketed and then solved by Roots.Bracketed.
+            double G(double x)
+            {
+                Normalise(x);
+                var bgs = background.WithVScale(sAt);
+                double hEnd = bgs.At(nEnd).H;
+                double rho = 3 * hEnd * hEnd;
+                // A T_reh above T_end is reported after the solve with both temperatures; until then solve as if instantaneous.
+                var (nReh, tReh) = reh.TRehGeV is double tGiven && tGiven > TemperatureGeV(rho, settings.GReh)
+                    ? Reheat(ReheatingHistory.Instantaneous, rho, settings)
+                    : Reheat(reh, rho, settings);
+                double lnAReh = Math.Log(Math.Pow(settings.Gs0 / settings.GsReh, 1.0 / 3.0) * settings.T0GeV / tReh);
+                double lnHMpc = Math.Log(bgs.At(nEnd - x).H) + LnMplInMpc;
+                double next = lnHMpc - lnKStar - nReh + lnAReh;
+                if (tReh < ReheatingHistory.MinimumTemperatureGeV) throw TooCold(reh, tReh); // the final check would refuse it
+                if (!(next > 0))
+                    throw NoHorizonExit(reh, next, tReh, rho, settings, Math.Exp(next + lnKStar));
+                return next - x;
+            }
+            string Fewer(double asked) => string.Create(CultureInfo.InvariantCulture,
+                $"Only {nTotal:G6} e-folds of inflation before the end (phi0 = {phi0:G6}), the reheating history needs N_* = {asked:G4} and the pivot mode about {Math.Log(settings.PivotStartDepth):G2} more to start inside the horizon; start the field further up the potential.");
+            double lowest = Math.Min(1e-3, 0.5 * nTotal);
+            // First guess: the usual N_*, or as early as leaves the pivot mode room to start inside the horizon.
+            double a = Math.Min(settings.InitialEFolds, Math.Max(0.5 * nTotal, nTotal - 2 * Math.Log(settings.PivotStartDepth))), fa = G(a);
+            double root = a;
+            if (Math.Abs(fa) > 0.1 * settings.Tolerance)
+            {
+                // The map's slope is small (|dN_*/dx| << 1), so the root lies close to a + g(a); widen until the sign changes.
+                double b = a, fb = fa, widen = 1.5;
+                for (int attempt = 0; fb * fa > 0; attempt++)
+                {
+                    if (widen > 100 || attempt > 20) throw new PhysicsException(Fewer(a + fa));
+                    double trial = Math.Clamp(a + widen * fa, lowest, nTotal);
+                    if (trial == b)
+                    {
+                        if (fa > 0) throw new PhysicsException(Fewer(a + fa));
+                        throw new PhysicsException($"The reheating history asks for N_* = {a + fa:G6} <= 0: the pivot would leave the horizon after the end of inflation; lower the pivot k or shorten reheating.");
+                    }
+                    try
+                    {
+                        fb = G(trial);
+                        b = trial;
+                        widen *= 2;
+                    }
+                    catch (PhysicsException) when (fa > 0)
+                    {
+                        // Too early for the pivot mode to start inside the horizon: back off towards the estimate a + g(a).
+                        if (widen <= 1.001) throw new PhysicsException(Fewer(a + fa));
+                        widen = 1 + 0.25 * (widen - 1);
+                    }
+                }
+                root = Roots.Bracketed(G, a, b, fa, fb, settings.Tolerance);
+            }
+            nStar = root;
+            Normalise(nStar);
+            s = sAt;
+        }
         var final = background.WithVScale(s);
         double hEndFinal = final.At(nEnd).H;
-        rhoEnd = 3 * hEndFinal * hEndFinal;
+        double rhoEnd = 3 * hEndFinal * hEndFinal;
+        double nReh = double.NaN, tReh = double.NaN;
         if (fromReheating)
         {
             (nReh, tReh) = Reheat(reh, rhoEnd, settings);
             ValidateTemperature(reh, tReh, rhoEnd, settings, nEnd, final);
         }
         if (nStar > nTotal || nStar <= 0)
-            throw new PhysicsException($"Fewer e-folds than N_* needs: the background inflates for {nTotal:G6} e-folds but N_* = {nStar:G6}; start the field further up the potential (phi0).");
+            throw new PhysicsException($"Only {nTotal:G6} e-folds of inflation before the end, N_* needs {nStar:G6}; start the field further up the potential (phi0).");
 
         double nPivot = nEnd - nStar;
         var p = final.At(nPivot);
@@ -117,10 +164,10 @@ public static class PivotMatcher
         // The pivot must leave the horizon for the last time at nPivot and have room to start inside it.
         var (kMinServe, _) = final.KRange(settings.PivotStartDepth, 1.0);
         if (!final.TryNAtHorizonExit(kbgStar, out double nExit) || Math.Abs(nExit - nPivot) > 1e-6 || kbgStar < kMinServe)
-            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, at N = {nPivot:G8}, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
+            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, {nPivot - background.NStart:G8} e-folds after the start, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
 
         double lnKUnit = Math.Log(kbgStar) - lnKStar;
-        var (kMin, kMax) = final.KRange(settings.RangeStartDepth, settings.RangeEndDepth);
+        var (lnKMin, lnKMax) = final.LnKRange(settings.RangeStartDepth, settings.RangeEndDepth);
         double vStar = s * final.Theory.Potential(p.Phi).Value;
         return new PivotSolution(
             KPivot: settings.KPivot, NStar: nStar, NPivot: nPivot, VScale: s, LnKUnit: lnKUnit,
@@ -128,7 +175,7 @@ public static class PivotMatcher
             VStarQuarterGeV: Math.Pow(vStar, 0.25) * Constants.ReducedPlanckMassGeV,
             NTotal: nTotal, NReh: fromReheating ? nReh : double.NaN, TRehGeV: fromReheating ? tReh : double.NaN,
             W: fromReheating ? reh.W : double.NaN, RhoEnd: rhoEnd,
-            KMinMpc: kMin * Math.Exp(-lnKUnit), KMaxMpc: kMax * Math.Exp(-lnKUnit),
+            KMinMpc: Math.Exp(lnKMin - lnKUnit), KMaxMpc: Math.Exp(lnKMax - lnKUnit),
             Iterations: iterations, AmplitudeName: settings.ScalarAmplitude is null ? "none" : amplitude.Name,
             PsPivot: settings.ScalarAmplitude is null ? double.NaN : psPivot,
             Background: final, PivotSlowRoll: SlowRoll.AtN(final, nPivot));

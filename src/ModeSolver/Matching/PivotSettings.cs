@@ -60,10 +60,10 @@ public sealed record PivotSettings
     /// <summary>Target scalar amplitude at the pivot; null keeps the background's V scale (no normalisation).</summary>
     public double? ScalarAmplitude { get; init; } = Constants.DefaultScalarAmplitude;
 
-    /// <summary>Convergence of the fixed point: |delta N_*| below this.</summary>
+    /// <summary>Accuracy of N_* from the reheating history: the root is bracketed to this width, e-folds.</summary>
     public double Tolerance { get; init; } = 1e-6;
 
-    /// <summary>Iteration budget of the fixed point.</summary>
+    /// <summary>Budget of amplitude evaluations of the matching.</summary>
     public int MaxIterations { get; init; } = 100;
 
     /// <summary>First guess of N_*.</summary>

@@ -6,7 +6,7 @@ namespace ModeSolver.Matching;
 /// <summary>The matched and normalised pivot. Energies in reduced Planck units unless the name says GeV.</summary>
 /// <param name="KPivot">k_* in 1/Mpc.</param>
 /// <param name="NStar">E-folds between the pivot's horizon exit and the end of inflation.</param>
-/// <param name="NPivot">N coordinate (since the start) of the pivot's horizon exit.</param>
+/// <param name="NPivot">N coordinate of the pivot's horizon exit in the background's e-folds (see <see cref="BackgroundSolution.Origin"/>).</param>
 /// <param name="VScale">Factor multiplying the theory's potential.</param>
 /// <param name="LnKUnit">k[background units] = k[1/Mpc] * exp(LnKUnit) (a = e^N in the background, a_0 = 1 today).</param>
 /// <param name="HStar">H at the pivot, M_pl.</param>
@@ -20,7 +20,7 @@ namespace ModeSolver.Matching;
 /// <param name="RhoEnd">Energy density at the end of inflation, 3 H_end^2, M_pl^4.</param>
 /// <param name="KMinMpc">Smallest k (1/Mpc) the background serves at the chosen depths.</param>
 /// <param name="KMaxMpc">Largest k (1/Mpc) the background serves at the chosen depths.</param>
-/// <param name="Iterations">Fixed-point iterations used.</param>
+/// <param name="Iterations">Amplitude evaluations used (one with N_* given; each is one exact or slow-roll P_s and one rescaling).</param>
 /// <param name="AmplitudeName">Name of the amplitude provider ("none" without normalisation).</param>
 /// <param name="PsPivot">P_s at the pivot from the provider (the target when normalised).</param>
 /// <param name="Background">The background with the matched V scale.</param>

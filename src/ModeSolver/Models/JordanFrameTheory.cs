@@ -14,6 +14,8 @@ public sealed class JordanFrameTheory : IValidatedTheory
     private readonly double[] _nonSmooth;
     // V and K composed into one generated program (smooth formula input); null: Taylor arithmetic on the inputs.
     private readonly Formulas.FrameMapProgram? _fused;
+    // True: the fused program runs in double-double arithmetic (see WithExtendedPrecision).
+    private readonly bool _extended;
 
     /// <summary>Creates the theory.</summary>
     /// <param name="omegaSquared">Omega^2(phi); needs four derivatives in the metric formulation.</param>
@@ -24,7 +26,7 @@ public sealed class JordanFrameTheory : IValidatedTheory
     /// <param name="validRange">Declared valid range; infinite when null (see <see cref="FindValidInterval"/>).</param>
     public JordanFrameTheory(IDerivativeFunction omegaSquared, IDerivativeFunction? kineticJ, IDerivativeFunction potentialJ,
         bool palatini = false, string description = "", (double, double)? validRange = null)
-        : this(omegaSquared, kineticJ, potentialJ, palatini, description, validRange, null)
+        : this(omegaSquared, kineticJ, potentialJ, palatini, description, validRange, null, false)
     {
     }
 
@@ -39,13 +41,14 @@ public sealed class JordanFrameTheory : IValidatedTheory
         ArgumentNullException.ThrowIfNull(potentialJ);
         var fused = Formulas.FrameMapProgram.TryCreate(omegaSquared, kineticJ, potentialJ, palatini);
         return new JordanFrameTheory(Decks.TheoryFactory.Wrap(omegaSquared), kineticJ is null ? null : Decks.TheoryFactory.Wrap(kineticJ),
-            Decks.TheoryFactory.Wrap(potentialJ), palatini, description, null, fused);
+            Decks.TheoryFactory.Wrap(potentialJ), palatini, description, null, fused, false);
     }
 
     private JordanFrameTheory(IDerivativeFunction omegaSquared, IDerivativeFunction? kineticJ, IDerivativeFunction potentialJ,
-        bool palatini, string description, (double, double)? validRange, Formulas.FrameMapProgram? fused)
+        bool palatini, string description, (double, double)? validRange, Formulas.FrameMapProgram? fused, bool extended)
     {
         _fused = fused;
+        _extended = extended && fused is not null;
         ArgumentNullException.ThrowIfNull(omegaSquared);
         ArgumentNullException.ThrowIfNull(potentialJ);
         if (!palatini && omegaSquared.MaxOrder < 4)
@@ -77,13 +80,49 @@ public sealed class JordanFrameTheory : IValidatedTheory
 
     /// <summary>The same theory with another declared valid range.</summary>
     public JordanFrameTheory WithValidRange((double, double) range) =>
-        new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, range, _fused);
+        new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, range, _fused, _extended);
+
+    /// <summary>
+    /// Relative change of the attractor slope V_phi/(K V) between double and double-double evaluation of the fused
+    /// program at <paramref name="phi"/> and two neighbouring doubles (the largest of the three): the round-off the
+    /// double evaluation leaves in the slope. 0 when the program has no double-double form.
+    /// </summary>
+    public double SlopeRoundOff(double phi)
+    {
+        if (_fused is not { SupportsExtended: true } f) return 0;
+        double worst = 0;
+        foreach (double x in new[] { phi, Math.BitIncrement(phi), Math.BitDecrement(phi) })
+        {
+            var d = f.Evaluate(x);
+            var e = f.EvaluateExtended(x);
+            double sd = d.Potential.D1 / (d.Kinetic.Value * d.Potential.Value);
+            double se = e.Potential.D1 / (e.Kinetic.Value * e.Potential.Value);
+            if (!double.IsFinite(sd) || !double.IsFinite(se)) continue;
+            double scale = Math.Abs(se);
+            if (scale > 0) worst = Math.Max(worst, Math.Abs(sd - se) / scale);
+        }
+        return worst;
+    }
+
+    /// <summary>True when V and K are evaluated in double-double arithmetic (<see cref="WithExtendedPrecision"/>).</summary>
+    public bool IsExtendedPrecision => _extended;
+
+    /// <summary>The same theory evaluated in plain double arithmetic (undoes <see cref="WithExtendedPrecision"/>).</summary>
+    public JordanFrameTheory WithPlainPrecision() =>
+        _extended ? new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, ValidRange, _fused, false) : this;
+
+    /// <summary>
+    /// The same theory with V and K evaluated in double-double arithmetic (when the fused program supports it): for
+    /// plateaus whose slope double arithmetic cannot resolve (see <see cref="SlopeRoundOff"/>).
+    /// </summary>
+    public JordanFrameTheory WithExtendedPrecision() =>
+        _fused is { SupportsExtended: true } ? new(_omega2, _kineticJ, _potentialJ, IsPalatini, Description, ValidRange, _fused, true) : this;
 
     /// <summary>True when V and K come from one fused generated program (see <see cref="FromFormulas"/>).</summary>
     public bool IsFused => _fused is not null;
 
     /// <inheritdoc/>
-    public JetPair Jets(double phi) => _fused is { } f ? f.Evaluate(phi) : new JetPair(ComposedPotential(phi), ComposedKinetic(phi));
+    public JetPair Jets(double phi) => _fused is { } f ? (_extended ? f.EvaluateExtended(phi) : f.Evaluate(phi)) : new JetPair(ComposedPotential(phi), ComposedKinetic(phi));
 
     /// <summary>Omega^2 at phi.</summary>
     public double OmegaSquared(double phi)
@@ -94,10 +133,10 @@ public sealed class JordanFrameTheory : IValidatedTheory
     }
 
     /// <inheritdoc/>
-    public Jet3 Potential(double phi) => _fused is { } f ? f.Evaluate(phi).Potential : ComposedPotential(phi);
+    public Jet3 Potential(double phi) => _fused is not null ? Jets(phi).Potential : ComposedPotential(phi);
 
     /// <inheritdoc/>
-    public Jet3 Kinetic(double phi) => _fused is { } f ? f.Evaluate(phi).Kinetic : ComposedKinetic(phi);
+    public Jet3 Kinetic(double phi) => _fused is not null ? Jets(phi).Kinetic : ComposedKinetic(phi);
 
     /// <summary>V by Taylor arithmetic on the inputs' derivatives (the reference for the fused program).</summary>
     internal Jet3 ComposedPotential(double phi)

@@ -90,6 +90,26 @@ public static class SlowRollStart
             if (y <= a || y >= b)
                 throw new PhysicsException($"inflation does not end by slow roll before the edge of the field range (phi = {(dir > 0 ? b : a):G6}); give model.phi_end or phi0");
             double ey = EpsilonV(theory, y);
+            if (ey < 1 && Math.Sign(theory.Potential(y).D1) != Math.Sign(theory.Potential(x).D1))
+            {
+                // The step passed the minimum (V_phi changed sign) inside a narrow end region, e.g. width 1/sqrt(xi) of a
+                // Palatini map at large xi: find the minimum, then approach it geometrically until epsilon_V reaches 1.
+                double l0 = x, r0 = y, sx = Math.Sign(theory.Potential(x).D1);
+                for (int i = 0; i < 200 && Math.Abs(r0 - l0) > 1e-15 * Math.Max(1e-300, Math.Abs(l0)); i++)
+                {
+                    double m = 0.5 * (l0 + r0);
+                    if (Math.Sign(theory.Potential(m).D1) == sx) l0 = m; else r0 = m;
+                }
+                double minimum = 0.5 * (l0 + r0);
+                for (int k = 1; k <= 60 && ey < 1; k++)
+                {
+                    y = minimum + (x - minimum) * Math.Pow(2, -k);
+                    ey = EpsilonV(theory, y);
+                    if (ey < 1) x = y;
+                }
+                if (ey < 1)
+                    throw new PhysicsException($"inflation does not end by slow roll before the minimum at phi = {minimum:G6} (epsilon_V stays below 1); give model.phi_end or phi0");
+            }
             if (!(ey < 1))
             {
                 // Bisect the crossing of epsilon_V = 1 (a non-finite value counts as above 1).

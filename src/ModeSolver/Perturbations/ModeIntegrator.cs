@@ -378,7 +378,7 @@ public sealed class ModeIntegrator
         if (lnDepthA < Math.Log(depth))
         {
             double kMin = depth * Math.Exp(nA) * _bg.At(nA).H;
-            throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} cannot start at k/aH = {depth:G3}: the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}; the smallest k allowed is {kMin:G6} (start the field further up the potential or raise kMin)");
+            throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} cannot start at k/aH = {depth:G3}: the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}; the smallest k allowed is {kMin:G6} (start the field further up the potential or choose a larger k)");
         }
         double n = DepthTime(depth, nA);
         for (int it = 0; it < 8 && InitialDataError(n, depth, kind) > tol; it++)

@@ -50,7 +50,7 @@ public static class ParameterNormalisation
             if (s.Initial.StartEfolds is double ne)
             {
                 double guess;
-                try { guess = SlowRollStart.FieldBeforeEnd(TheoryFactory.Build(s.Model), ne, s.Model.PhiEnd, settings.Initial.Phi0); }
+                try { guess = SlowRollStart.FieldBeforeEnd(TheoryFactory.Build(s.Model, settings.Initial.Phi0), ne, s.Model.PhiEnd, settings.Initial.Phi0); }
                 catch (PhysicsException) { guess = SlowRollStart.FieldBeforeEnd(TheoryFactory.Build(s.Model), ne, s.Model.PhiEnd, double.NaN); }
                 s = s with { Initial = s.Initial with { Phi0 = guess } };
             }

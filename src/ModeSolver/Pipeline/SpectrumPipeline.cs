@@ -143,6 +143,7 @@ public static class SpectrumPipeline
             ExtraK = kr.KMin <= pivot.KPivot && pivot.KPivot <= kr.KMax ? [kPivotBg] : [],
         };
         var warnings = new List<string>(settings.Warnings);
+        if (bg.ContinuationNote is string stopped) warnings.Add(stopped);
         if (kr.KMinIsDefault)
         {
             // The default k_min reaches 1e-6 /Mpc when the background serves it; otherwise the run starts where it can.
@@ -172,7 +173,8 @@ public static class SpectrumPipeline
         var ns1 = new double[m]; var ns2 = new double[m];
         for (int i = 0; i < m; i++)
         {
-            kMpc[i] = pivot.ToInverseMpc(k[i]);
+            // The pivot sample is k_* exactly (the round trip through background units can miss it by an ulp).
+            kMpc[i] = k[i] == kPivotBg ? pivot.KPivot : pivot.ToInverseMpc(k[i]);
             var sr = SlowRoll.AtK(bg, k[i]);
             ps1[i] = sr.FirstOrder.Ps; pt1[i] = sr.FirstOrder.Pt; ns1[i] = sr.FirstOrder.Ns;
             ps2[i] = sr.SecondOrder.Ps; pt2[i] = sr.SecondOrder.Pt; ns2[i] = sr.SecondOrder.Ns;
@@ -314,9 +316,10 @@ public static class SpectrumPipeline
         double loMpc = pivot.ToInverseMpc(lo), hiMpc = pivot.ToInverseMpc(hi);
         if (s.KMin < lo * (1 + 1e-12) || s.KMax > hi)
             throw new PhysicsException(string.Format(CultureInfo.InvariantCulture,
-                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves, [{2:G4}, {3:G4}] /Mpc; " +
-                "narrow k_min/k_max, or start the field further up the potential (phi0) for smaller k",
-                kr.KMin, kr.KMax, loMpc * 1.0001, hiMpc * 0.9999));
+                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves at tolerance {4:G3}, [{2:G4}, {3:G4}] /Mpc " +
+                "(each mode starts at k/aH = {5:G3} after the background's start and must reach k/aH = {6:G3} by the end of inflation; " +
+                "both depths follow the tolerance); narrow k_min/k_max, or start the field further up the potential (phi0) for smaller k",
+                kr.KMin, kr.KMax, loMpc * 1.0001, hiMpc * 0.9999, s.Tolerance, s.ModeSettings().EffectiveStartDepth, s.ModeSettings().EffectiveStopDepth));
     }
 
     private static SlowRollEstimate Estimate(SlowRollPrediction p) => new(p.Ps, p.Ns, p.R, p.AlphaS, p.Nt);
@@ -333,12 +336,13 @@ public static class SpectrumPipeline
         {
             double x = a + (b - a) * i / (count - 1);
             var p = bg.At(x);
-            n[i] = x; phi[i] = p.Phi; dphi[i] = p.DPhi; h[i] = p.H; e1[i] = p.Epsilon1; e2[i] = p.Epsilon2; e3[i] = p.Epsilon3;
+            n[i] = x - a; phi[i] = p.Phi; dphi[i] = p.DPhi; h[i] = p.H; e1[i] = p.Epsilon1; e2[i] = p.Epsilon2; e3[i] = p.Epsilon3;
         }
         double windowStart = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMin), out double w0) ? w0 : bg.NStart;
         double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
-        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd, pivot.NPivot,
-            windowStart, windowEnd, [.. bg.EndCrossings]);
+        // Recorded in e-folds since the start whatever the background's internal origin (long backgrounds count from the end).
+        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd - a, pivot.NPivot - a,
+            windowStart - a, windowEnd - a, [.. bg.EndCrossings.Select(c => c - a)]);
     }
 
     /// <summary>

@@ -101,7 +101,7 @@ public static class SpectrumSolver
     {
         var (kMin, kMax) = ServedRange(background, settings);
         if (settings.KMin < kMin * (1 + 1e-12))
-            throw new PhysicsException($"k = {settings.KMin:G6} cannot start at k/aH = {ms.EffectiveStartDepth:G3} after the background's start; the background serves k in [{kMin:G6}, {kMax:G6}] (background units); raise kMin or start the field further up the potential");
+            throw new PhysicsException($"k = {settings.KMin:G6} cannot start at k/aH = {ms.EffectiveStartDepth:G3} after the background's start; the background serves k in [{kMin:G6}, {kMax:G6}] (background units); choose a larger KMin or start the field further up the potential");
         if (settings.KMax > kMax)
             throw new PhysicsException($"k = {settings.KMax:G6} has not left the horizon to k/aH <= {ms.EffectiveStopDepth:G3} by the end of inflation; the background serves k in [{kMin:G6}, {kMax:G6}] (background units); lower kMax");
     }

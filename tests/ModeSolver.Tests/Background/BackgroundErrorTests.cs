@@ -11,7 +11,7 @@ public class BackgroundErrorTests
     public void NeverEnds()
     {
         var ex = Fails(() => BackgroundSolverTests.Solve(new Exponential(0.3), 0, maxEFolds: 100));
-        Assert.Contains("never ends within 100 e-folds", ex.Message);
+        Assert.Contains("does not end within 100 e-folds", ex.Message);
         Assert.DoesNotContain("\n", ex.Message);
     }
 

@@ -80,6 +80,32 @@ public class PivotMatcherTests
     }
 
     [Fact]
+    public void GivenEFoldsIsOneRescaling()
+    {
+        // P_s is exactly proportional to the V scale at fixed N_* (the background's shape does not depend on it):
+        // with N_* given the matching is one amplitude evaluation and one rescaling, and the result is normalised.
+        var m = Match(new PivotSettings { EFolds = 55 });
+        Assert.Equal(1, m.Iterations);
+        Assert.Equal(1.0, SlowRoll.HubbleSecondOrder(m.Background.At(m.NPivot)).Ps / Constants.DefaultScalarAmplitude, 1e-12);
+    }
+
+    [Theory]
+    [InlineData(1.0 / 3.0, double.NaN)]
+    [InlineData(0.0, 1e9)]
+    public void ReheatingRootSatisfiesTheMatchingEquation(double w, double tReh)
+    {
+        // physics.md section 5: N_* = ln(H_*/k_*) - N_reh + ln a_reh, here re-evaluated at the returned solution.
+        var reh = double.IsNaN(tReh) ? ReheatingHistory.Instantaneous : ReheatingHistory.WithTemperature(w, tReh);
+        var s = new PivotSettings { Reheating = reh };
+        var m = Match(s);
+        double lnHMpc = Math.Log(m.HStar * Constants.ReducedPlanckMassGeV * Constants.GeVInInverseMpc);
+        double lnAReh = Math.Log(Math.Pow(s.Gs0 / s.GsReh, 1.0 / 3.0) * s.T0GeV / m.TRehGeV);
+        double rhs = lnHMpc - Math.Log(s.KPivot) - m.NReh + lnAReh;
+        Assert.True(Math.Abs(rhs - m.NStar) < 2 * s.Tolerance, $"N_* = {m.NStar:R}, equation gives {rhs:R}");
+        Assert.True(m.Iterations <= 8, $"{m.Iterations} amplitude evaluations");
+    }
+
+    [Fact]
     public void GivenEFoldsAndNoNormalisation()
     {
         var m = Match(new PivotSettings { EFolds = 60 });
@@ -98,10 +124,10 @@ public class PivotMatcherTests
     {
         var bg = StarobinskyBg.Value;
         var amp = new SlowRollAmplitude();
-        Assert.Contains("Fewer e-folds than N_* needs", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal + 1 }, amp)).Message);
+        Assert.Contains("e-folds of inflation before the end, N_* = ", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal + 1 }, amp)).Message);
         var shortBg = BackgroundSolverTests.Solve(new Starobinsky(), 4.0, after: 0);
-        Assert.Contains("Fewer e-folds than N_* needs", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(shortBg, new PivotSettings(), amp)).Message);
-        Assert.Contains("outside the range the background serves", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal - 1 }, amp)).Message);
+        Assert.Contains("e-folds of inflation before the end (phi0 = ", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(shortBg, new PivotSettings(), amp)).Message);
+        Assert.Contains("Only 1 e-folds of inflation before the pivot leaves the horizon", Assert.Throws<PhysicsException>(() => PivotMatcher.Match(bg, new PivotSettings { EFolds = bg.NTotal - 1 }, amp)).Message);
         Assert.Contains("w = -0.5 is outside", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(-0.5, 1e9) })).Message);
         Assert.Contains("below 0.004 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e-3) })).Message);
         Assert.Contains("above the temperature at the end of inflation", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e18) })).Message);
