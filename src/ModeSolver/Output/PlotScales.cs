@@ -25,6 +25,19 @@ public static class PlotScales
         return "V = " + (v.Length > MaxPotentialLength ? v[..(MaxPotentialLength - 3)] + "..." : v);
     }
 
+    /// <summary>The longest one-line plot title (characters) that fits a 1000-pixel-wide plot; longer ones wrap.</summary>
+    public const int MaxTitleLineLength = 88;
+
+    /// <summary>
+    /// A plot title "subject: detail" on one line when it fits <see cref="MaxTitleLineLength"/>, else with the detail on
+    /// a second line (so that a long run title does not push the detail off the image).
+    /// </summary>
+    public static string Title(string subject, string detail) =>
+        subject.Length + 2 + detail.Length <= MaxTitleLineLength ? subject + ": " + detail : subject + "\n" + detail;
+
+    /// <summary>Pixels above the data area for a title of one line (45) or two (<see cref="Title"/> wraps long ones).</summary>
+    public static float TitlePadding(string? title) => title is not null && title.Contains('\n') ? 68 : 45;
+
     /// <summary>
     /// The symmetric-log map of a ratio d: sign(d) log10(1 + |d| / c), linear (slope 1/(c ln 10)) within |d| &lt;&lt; c
     /// and logarithmic beyond, so that deviations from 1e-3 to 1e10 of either sign fit one axis. Monotonic and odd.

@@ -116,9 +116,9 @@ public static class RunPlots
         top.Axes.Bottom.TickGenerator = LogTicks(xMin, xMax, labels: false);
         top.Axes.Left.TickGenerator = LogTicks(yMin - below, yMax + headroom, labels: true);
         top.YLabel("P(k)");
-        top.Title(string.Create(Inv, $"{Subject(report)}: primordial spectra (n_s = {report.Pivot.Ns:0.0000}, r = {report.Pivot.R:0.###e+0})"));
+        top.Title(PlotScales.Title(Subject(report), string.Create(Inv, $"primordial spectra (n_s = {report.Pivot.Ns:0.0000}, r = {report.Pivot.R:0.###e+0})")));
         top.ShowLegend(Alignment.UpperRight);
-        top.Layout.Fixed(new PixelPadding(95, 30, 12, 45));
+        top.Layout.Fixed(new PixelPadding(95, 30, 12, PlotScales.TitlePadding(top.Axes.Title.Label.Text)));
 
         var bottom = NewPlot();
         double thr = report.Settings.FlagSettings.SpectrumThreshold;
@@ -205,9 +205,9 @@ public static class RunPlots
         plot.Axes.Left.TickGenerator = LogTicks(yMin - pad, yMax + pad, labels: true);
         plot.XLabel("N [e-folds]");
         plot.YLabel("epsilon_1, |epsilon_2|");
-        plot.Title($"{Subject(report)}: Hubble-flow parameters");
+        plot.Title(PlotScales.Title(Subject(report), "Hubble-flow parameters"));
         plot.ShowLegend(Alignment.UpperLeft);
-        plot.Layout.Fixed(new PixelPadding(95, 30, 55, 45));
+        plot.Layout.Fixed(new PixelPadding(95, 30, 55, PlotScales.TitlePadding(plot.Axes.Title.Label.Text)));
         return plot;
     }
 
