@@ -57,11 +57,12 @@ ALIASES = {
     "catalogue": "model.catalogue", "model": "model.catalogue",
     "potential": "model.potential", "kinetic": "model.kinetic", "coupling": "model.coupling",
     "palatini": "model.palatini", "phi_end": "model.phi_end",
-    "phi0": "start.phi0", "dphi0": "start.dphi0",
+    "phi0": "start.phi0", "dphi0": "start.dphi0", "start_efolds": "start.efolds",
     "k_pivot": "pivot.k", "efolds": "pivot.efolds",
     "w": "reheating.w", "temperature_gev": "reheating.temperature_gev", "T_reh": "reheating.temperature_gev",
     "reheat_efolds": "reheating.efolds", "dof": "reheating.dof",
-    "A_s": "normalisation.a_s", "a_s": "normalisation.a_s",
+    "A_s": "normalisation.a_s", "a_s": "normalisation.a_s", "ln_10_10_a_s": "normalisation.ln_10_10_a_s",
+    "solve_for": "normalisation.solve_for",
     "k_min": "modes.k_min", "k_max": "modes.k_max", "count": "modes.count", "tolerance": "modes.tolerance",
 }
 

@@ -106,6 +106,18 @@ class RunTests(unittest.TestCase):
         self.assertNotEqual(first["n_s"], changed["n_s"])
         self.assertEqual(first, back)
 
+    def test_start_efolds_and_log_amplitude_keys(self):
+        # The keys added to decks and the command line are settable here too: a start 70 e-folds before the end gives
+        # N_total = 70 (the start is solved to 1e-7 e-folds), and ln(10^10 A_s) = 3.044 normalises like A_s itself.
+        with modesolver.Run(text=SMALL, threads=1) as run:
+            run.set("start.efolds", 70.0)
+            run.set("normalisation.ln_10_10_a_s", 3.044)
+            p = run.pivot()
+            run.set("normalisation.a_s", float(np.exp(3.044) * 1e-10))
+            q = run.pivot()
+        self.assertAlmostEqual(p["N_total"], 70.0, delta=1e-6)
+        self.assertEqual(p["A_s"], q["A_s"])
+
     def test_samples_and_interpolation_agree_at_the_nodes(self):
         with modesolver.Run(text=SMALL) as run:
             run.spectrum()

@@ -90,10 +90,14 @@ public static class CliApp
     {
         ArgumentNullException.ThrowIfNull(help);
         var lines = new List<string>();
+        string executable = RootCommand.ExecutableName;
         bool skipping = false;
         foreach (string raw in help.Replace("\r\n", "\n").Split('\n'))
         {
             string line = raw.Replace(" [[--] <additional arguments>...]]", "").Replace("ModeSolver.Cli", "modesolver");
+            // The usage lines name the running executable (a host process when the CLI runs in-process): always modesolver.
+            if (line.StartsWith("  " + executable + " ", StringComparison.Ordinal) || line == "  " + executable)
+                line = "  modesolver" + line[(2 + executable.Length)..];
             if (line.StartsWith("Additional Arguments:", StringComparison.Ordinal)) { skipping = true; continue; }
             if (skipping)
             {

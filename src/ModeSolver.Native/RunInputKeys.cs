@@ -13,14 +13,15 @@ internal static class RunInputKeys
     /// <summary>Keys that take a number.</summary>
     public static readonly string[] NumberKeys =
     [
-        "model.phi_end", "model.parameters.NAME", "start.phi0", "start.dphi0", "pivot.k", "pivot.efolds",
+        "model.phi_end", "model.parameters.NAME", "start.phi0", "start.dphi0", "start.efolds", "pivot.k", "pivot.efolds",
         "reheating.w", "reheating.temperature_gev", "reheating.efolds", "reheating.dof", "normalisation.a_s",
-        "modes.k_min", "modes.k_max", "modes.count", "modes.tolerance",
+        "normalisation.ln_10_10_a_s", "modes.k_min", "modes.k_max", "modes.count", "modes.tolerance",
     ];
 
     /// <summary>Keys that take text.</summary>
     public static readonly string[] TextKeys =
-        ["title", "model.catalogue", "model.potential", "model.kinetic", "model.coupling", "model.palatini", "normalisation.a_s"];
+        ["title", "model.catalogue", "model.potential", "model.kinetic", "model.coupling", "model.palatini", "normalisation.a_s",
+         "normalisation.solve_for"];
 
     private const string ParameterPrefix = "model.parameters.";
 
@@ -39,6 +40,7 @@ internal static class RunInputKeys
                 case "model.phi_end": o.PhiEnd = v; break;
                 case "start.phi0": o.Phi0 = v; break;
                 case "start.dphi0": o.DPhi0 = v; break;
+                case "start.efolds": o.StartEfolds = v; break;
                 case "pivot.k": o.KPivot = v; break;
                 case "pivot.efolds": o.Efolds = v; break;
                 case "reheating.w": o.ReheatW = v; break;
@@ -46,6 +48,7 @@ internal static class RunInputKeys
                 case "reheating.efolds": o.ReheatEfolds = v; break;
                 case "reheating.dof": o.ReheatDof = v; break;
                 case "normalisation.a_s": o.Amplitude = new Located<double?>(value, key); break;
+                case "normalisation.ln_10_10_a_s": o.Amplitude = new Located<double?>(DeckReader.AmplitudeFromLog(value), key); break;
                 case "modes.k_min": o.KMin = v; break;
                 case "modes.k_max": o.KMax = v; break;
                 case "modes.tolerance": o.Tolerance = v; break;
@@ -81,6 +84,7 @@ internal static class RunInputKeys
                     _ => throw v.Error($"must be true or false (got \"{value}\")"),
                 };
                 break;
+            case "normalisation.solve_for": o.SolveFor = v; break;
             case "normalisation.a_s":
                 if (!string.Equals(value.Trim(), "none", StringComparison.OrdinalIgnoreCase))
                     throw v.Error($"must be a number or \"none\" (got the string \"{value}\")");
@@ -111,13 +115,15 @@ internal static class RunInputKeys
             case "model.phi_end": input.PhiEnd = null; break;
             case "start.phi0": input.Phi0 = null; break;
             case "start.dphi0": input.DPhi0 = null; break;
+            case "start.efolds": input.StartEfolds = null; break;
+            case "normalisation.solve_for": input.SolveFor = null; break;
             case "pivot.k": input.KPivot = null; break;
             case "pivot.efolds": input.Efolds = null; break;
             case "reheating.w": input.ReheatW = null; break;
             case "reheating.temperature_gev": input.ReheatTemperature = null; break;
             case "reheating.efolds": input.ReheatEfolds = null; break;
             case "reheating.dof": input.ReheatDof = null; break;
-            case "normalisation.a_s": input.Amplitude = null; break;
+            case "normalisation.a_s" or "normalisation.ln_10_10_a_s": input.Amplitude = null; break;
             case "modes.k_min": input.KMin = null; break;
             case "modes.k_max": input.KMax = null; break;
             case "modes.count": input.KCount = null; break;

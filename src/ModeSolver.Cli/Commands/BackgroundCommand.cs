@@ -29,7 +29,7 @@ public static class BackgroundCommand
         {
             RefuseSpectrumOptions(parse);
             var settings = options.Resolve(parse);
-            if (parse.GetValue(check)) return SpectrumCommand.Check(settings, Console.Out, Console.Error);
+            if (parse.GetValue(check)) return SpectrumCommand.Check(settings, Console.Out, Console.Error, spectrum: false);
             bool progress = !parse.GetValue(quiet) && !Console.IsErrorRedirected;
             return Execute(settings, Console.Out, Console.Error, progress);
         }));

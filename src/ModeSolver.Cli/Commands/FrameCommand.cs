@@ -130,8 +130,9 @@ public static class FrameCommand
         // All or nothing: every file is staged under a temporary name and renamed into place at the end; on any failure
         // the temporaries (and a directory this run created) are removed, so the directory is left as it was.
         string table = Table(spec, reference, phi, chi, k, v);
-        var chiPlot = MakePlot(phi, chi, "phi (Jordan/input field, M_pl)", "chi (canonical field, M_pl)", "Canonical field chi(phi)");
-        var vPlot = MakePlot(chi, v, "chi (canonical field, M_pl)", "V (Einstein frame, M_pl^4, unnormalised)", "Potential against the canonical field");
+        string subject = ModeSolver.Output.PlotScales.Subject(null, spec.CatalogueId, spec.Potential);
+        var chiPlot = MakePlot(phi, chi, "phi (Jordan/input field, M_pl)", "chi (canonical field, M_pl)", $"{subject}: canonical field chi(phi)");
+        var vPlot = MakePlot(chi, v, "chi (canonical field, M_pl)", "V (Einstein frame, M_pl^4, unnormalised)", $"{subject}: potential against the canonical field");
         using var tx = new OutputTransaction(dir);
         tx.Stage(OutputFiles[0], p => File.WriteAllText(p, table));
         tx.Stage(OutputFiles[1], p => chiPlot.SavePng(p, 900, 560));

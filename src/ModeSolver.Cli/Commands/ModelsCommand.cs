@@ -75,7 +75,10 @@ public static class ModelsCommand
         sb.AppendLine("  parameters:");
         int w = e.Parameters.Max(p => p.Name.Length);
         foreach (var p in e.Parameters) sb.AppendLine($"    {p.Name.PadRight(w)} = {G(p.Default),-10} {p.Meaning}");
-        sb.AppendLine($"  phi0 (default) = {G(e.DefaultPhi0)}, rolls towards {(e.Roll == RollDirection.Decreasing ? "smaller" : "larger")} phi");
+        if (e.DefaultStartEfolds is double ne)
+            sb.AppendLine($"  start (default) = {G(ne)} e-folds before the end (start.efolds; phi0 solved for), on the side of phi0 = {G(e.DefaultPhi0)}, rolls towards {(e.Roll == RollDirection.Decreasing ? "smaller" : "larger")} phi");
+        else
+            sb.AppendLine($"  phi0 (default) = {G(e.DefaultPhi0)}, rolls towards {(e.Roll == RollDirection.Decreasing ? "smaller" : "larger")} phi");
         if (e.PhiEnd is double pe) sb.AppendLine($"  phi_end        = {G(pe)} (inflation does not end by itself: ended abruptly there)");
         if (e.Note.Length > 0) sb.AppendLine($"  note: {e.Note}");
         sb.AppendLine($"  source: {e.Source}");

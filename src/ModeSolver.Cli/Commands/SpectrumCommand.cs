@@ -118,12 +118,12 @@ public static class SpectrumCommand
     /// --check: builds the theory (checking it is valid at phi0), prints warnings to <paramref name="error"/> and the
     /// resolved settings to <paramref name="output"/>; runs nothing. Returns 0.
     /// </summary>
-    public static int Check(RunSettings settings, TextWriter output, TextWriter error)
+    public static int Check(RunSettings settings, TextWriter output, TextWriter error, bool spectrum = true)
     {
         ArgumentNullException.ThrowIfNull(settings);
         var theory = TheoryFactory.Build(settings);
         foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + TextSafety.Printable(w));
-        output.WriteLine(TextSafety.Printable(settings.Summary()));
+        output.WriteLine(TextSafety.Printable(settings.Summary(spectrum)));
         var (lo, hi) = theory.ValidRange;
         if (double.IsFinite(lo) || double.IsFinite(hi))
             output.WriteLine(FormattableString.Invariant($"The theory is valid for {Bound(lo)} < phi < {Bound(hi)}."));

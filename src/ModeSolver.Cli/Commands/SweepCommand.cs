@@ -78,7 +78,7 @@ public static class SweepCommand
             var options = new Func<Action<SweepProgress>?, SweepRunOptions>(progress => new SweepRunOptions
             {
                 OutputDirectory = dir, Threads = threads ?? DefaultThreads(comm), Shard = shard, Restart = restart, Progress = progress,
-                AfterOutputs = () => SweepDensityPlot.Write(dir, spec, SweepResults.Open(dir).Records, new SweepPlotOptions { LogR = logR || spec.LogR }),
+                AfterOutputs = () => SweepDensityPlot.Write(dir, spec, SweepResults.Open(dir).Records, new SweepPlotOptions { LogR = logR || spec.LogR, Subject = evaluator.Subject }),
             });
             SweepSummary summary;
             if (showProgress)

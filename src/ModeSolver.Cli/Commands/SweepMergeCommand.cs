@@ -20,7 +20,9 @@ public static class SweepMergeCommand
             {
                 var outDir = parseResult.GetValue(output)!.FullName;
                 var (spec, summary) = SweepMerge.Merge(parseResult.GetValue(dirs)!.Select(d => d.FullName).ToArray(), outDir);
-                SweepDensityPlot.Write(outDir, spec, SweepResults.Open(outDir).Records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) || spec.LogR });
+                string deckCopy = Path.Combine(outDir, SweepFiles.Deck);
+                string? subject = PipelineSweepEvaluator.SubjectOfDeckText(File.ReadAllText(deckCopy), deckCopy);
+                SweepDensityPlot.Write(outDir, spec, SweepResults.Open(outDir).Records, new SweepPlotOptions { LogR = parseResult.GetValue(logR) || spec.LogR, Subject = subject });
                 Console.WriteLine(TextSafety.Printable($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}"));
                 return 0;
             }

@@ -18,13 +18,21 @@ public static class DeckWriter
         if (s.Title.Length > 0) sb.AppendLine($"title = {Str(s.Title)}");
         sb.AppendLine();
         sb.AppendLine("[model]");
-        if (s.Model.CatalogueId is not null) sb.AppendLine($"# from the catalogue: {s.Model.CatalogueId}");
-        sb.AppendLine($"potential = {Str(s.Model.Potential)}");
-        if (s.Model.Kinetic is not null) sb.AppendLine($"kinetic = {Str(s.Model.Kinetic)}");
-        if (s.Model.Coupling is not null)
+        // A catalogue model started in e-folds before the end keeps its id: the id tells the start solver on which side
+        // of the potential inflation happens (written-out formulas would leave it to choose); otherwise the formulas
+        // are written out.
+        bool byId = s.Model.CatalogueId is not null && s.Initial.StartEfolds is not null;
+        if (byId) sb.AppendLine($"catalogue = {Str(s.Model.CatalogueId!)}");
+        else
         {
-            sb.AppendLine($"coupling = {Str(s.Model.Coupling)}");
-            sb.AppendLine($"palatini = {(s.Model.Palatini ? "true" : "false")}");
+            if (s.Model.CatalogueId is not null) sb.AppendLine($"# from the catalogue: {s.Model.CatalogueId}");
+            sb.AppendLine($"potential = {Str(s.Model.Potential)}");
+            if (s.Model.Kinetic is not null) sb.AppendLine($"kinetic = {Str(s.Model.Kinetic)}");
+            if (s.Model.Coupling is not null)
+            {
+                sb.AppendLine($"coupling = {Str(s.Model.Coupling)}");
+                sb.AppendLine($"palatini = {(s.Model.Palatini ? "true" : "false")}");
+            }
         }
         if (s.Model.PhiEnd is double pe) sb.AppendLine($"phi_end = {Num(pe)}");
         if (s.Model.Parameters.Count > 0)
@@ -35,7 +43,9 @@ public static class DeckWriter
         }
         sb.AppendLine();
         sb.AppendLine("[start]");
-        sb.AppendLine($"phi0 = {Num(s.Initial.Phi0)}");
+        // A start in e-folds before the end is written as such (phi0 is then only the solver's first guess).
+        if (s.Initial.StartEfolds is double se) sb.AppendLine($"efolds = {Num(se)}");
+        else sb.AppendLine($"phi0 = {Num(s.Initial.Phi0)}");
         if (s.Initial.DPhi0 is double d) sb.AppendLine($"dphi0 = {Num(d)}");
         sb.AppendLine();
         sb.AppendLine("[pivot]");
@@ -54,6 +64,7 @@ public static class DeckWriter
         sb.AppendLine();
         sb.AppendLine("[normalisation]");
         sb.AppendLine(s.Amplitude.ScalarAmplitude is double a ? $"a_s = {Num(a)}" : "a_s = \"none\"");
+        if (s.Amplitude.SolveFor is string sf) sb.AppendLine($"solve_for = {Str(sf)}");
         sb.AppendLine();
         sb.AppendLine("[modes]");
         sb.AppendLine($"k_min = {Num(s.KRange.KMin)}");
@@ -64,6 +75,18 @@ public static class DeckWriter
         sb.AppendLine("[output]");
         sb.AppendLine($"dir = {Str(s.Output.Directory)}");
         sb.AppendLine($"formats = [{string.Join(", ", s.Output.Formats.Select(Str))}]");
+        if (s.Output.TableH is double h) sb.AppendLine($"table_h = {Num(h)}");
+        var f = s.Flags;
+        sb.AppendLine();
+        sb.AppendLine("[flags]");
+        foreach (var (key, value) in new[]
+                 {
+                     ("spectrum_threshold", f.SpectrumThreshold), ("pivot_fraction", f.PivotFraction), ("sigma_n_s", f.SigmaNs),
+                     ("sigma_r", f.SigmaR), ("sigma_alpha_s", f.SigmaAlphaS), ("sigma_n_t", f.SigmaNt),
+                     ("epsilon_1_limit", f.Epsilon1Limit), ("epsilon_2_limit", f.Epsilon2Limit),
+                 })
+            sb.AppendLine($"{key} = {Num(value)}");
+        sb.AppendLine($"reference = {Str(f.Reference switch { Diagnostics.SlowRollReference.FirstOrder => "first_order", Diagnostics.SlowRollReference.Potential => "potential", _ => "second_order" })}");
         WriteObservables(sb, s.Observables);
         return sb.ToString();
     }

@@ -30,8 +30,9 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>Which observables to compute from the spectrum and every choice they use (deck table [observables]).</summary>
     public ModeSolver.Observables.ObservablesSettings Observables { get; init; } = ModeSolver.Observables.ObservablesSettings.Default;
 
-    /// <summary>A one-paragraph human summary of the resolved settings.</summary>
-    public string Summary()
+    /// <summary>A one-paragraph human summary of the resolved settings; without <paramref name="spectrum"/> (the
+    /// background command) the modes, outputs and observables, which that command does not use, are left out.</summary>
+    public string Summary(bool spectrum = true)
     {
         var c = CultureInfo.InvariantCulture;
         var parts = new List<string>();
@@ -48,6 +49,7 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
                 ? string.Create(c, $"Normalised to A_s = {a:G4} at the pivot by solving for the parameter {sf} (V not rescaled).")
                 : string.Create(c, $"Normalised to A_s = {a:G4} at the pivot.")
             : "Not normalised (V used as given).");
+        if (!spectrum) return string.Join(" ", parts);
         parts.Add(string.Create(c, $"Modes: {KRange.Count} wavenumbers in [{KRange.KMin:G4}, {KRange.KMax:G4}]/Mpc, tolerance {KRange.Tolerance:G3}."));
         parts.Add($"Output: {Output.Directory} ({string.Join(", ", Output.Formats)}).");
         var on = new List<string>();

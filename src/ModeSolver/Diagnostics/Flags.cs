@@ -202,13 +202,21 @@ public static class Flags
     /// </summary>
     public const int MergeGapSamples = 3;
 
-    /// <summary>Merges runs whose gap holds at most <see cref="MergeGapSamples"/> samples; the worst sample is kept.</summary>
+    /// <summary>
+    /// Merges adjacent runs, keeping the worst sample: runs whose gap holds at most <see cref="MergeGapSamples"/>
+    /// samples, or whose gap (in x: ln k or N) is no wider than the wider of the two (a run merged so far counts whole),
+    /// when both are of one kind (both where the reference fails outright, or both where it only differs).
+    /// The second rule matters where refinement packs samples densely around a feature: an oscillation about the
+    /// limit then has many samples in each gap, but its gaps stay narrower than the flagged stretches they separate.
+    /// </summary>
     internal static List<Run> MergeAdjacent(List<Run> runs, ReadOnlySpan<double> measure)
     {
         var merged = new List<Run>(runs.Count);
         foreach (var r in runs)
         {
-            if (merged.Count > 0 && r.FirstIndex - merged[^1].LastIndex - 1 <= MergeGapSamples)
+            if (merged.Count > 0 && Fails(merged[^1], measure) == Fails(r, measure)
+                && (r.FirstIndex - merged[^1].LastIndex - 1 <= MergeGapSamples
+                    || r.Lower - merged[^1].Upper <= Math.Max(merged[^1].Upper - merged[^1].Lower, r.Upper - r.Lower)))
             {
                 var p = merged[^1];
                 int worst = measure[r.WorstIndex] > measure[p.WorstIndex] ? r.WorstIndex : p.WorstIndex;
@@ -218,6 +226,10 @@ public static class Flags
         }
         return merged;
     }
+
+    // A run where the reference fails outright (infinite measure: slow roll not positive) is of another kind than one
+    // where it only differs: the two are never merged, so that each flag's message holds for its whole range.
+    private static bool Fails(Run run, ReadOnlySpan<double> measure) => double.IsPositiveInfinity(measure[run.WorstIndex]);
 
     private static string MergedNote(Run run) => run.Parts > 1 ? string.Create(Inv, $" ({run.Parts} adjacent ranges merged)") : "";
 

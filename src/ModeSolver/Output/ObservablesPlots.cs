@@ -33,7 +33,7 @@ public static class ObservablesPlots
         if (gw is not null)
         {
             RunPlots.AddLogLine(plot, lines, gw.Frequency.AsSpan(), gw.OmegaGwH2.AsSpan(), PlotPalette.DeepTeal, LinePattern.Solid, "Omega_GW,0 h^2 (radiation-era kernel)");
-            plot.Title(string.Create(Inv, $"{report.Model.Id}: scalar-induced GWs (g_* = {gw.GStar:G5}, Omega_r h^2 = {gw.OmegaRadiationH2:G3}, c_g = {gw.Cg:G3})"));
+            plot.Title(PlotScales.Title(RunPlots.Subject(report), string.Create(Inv, $"scalar-induced GWs (g_* = {gw.GStar:G5}, Omega_r h^2 = {gw.OmegaRadiationH2:G3}, c_g = {gw.Cg:G3})")));
         }
         Finish(plot, lines, "f [Hz]", "Omega_GW,0 h^2", gw is null ? "induced GWs not computed (see the notes)" : null, report);
         return plot;
@@ -51,7 +51,7 @@ public static class ObservablesPlots
         {
             RunPlots.AddLogLine(plot, lines, pbh.MassSolar.AsSpan(), pbh.FPbh.AsSpan(), PlotPalette.Plum, LinePattern.Solid, "f_PBH(M) per ln M (Press-Schechter estimate)");
             if (lines.Count == 0) empty = "f_PBH underflows (zero) at every mass of the table";
-            plot.Title(string.Create(Inv, $"{report.Model.Id}: black holes, f_PBH = {pbh.FTotal:G3} (delta_c = {pbh.DeltaC:G3}, gamma = {pbh.Gamma:G2}, {pbh.Window.Code()} window; an estimate)"));
+            plot.Title(PlotScales.Title(RunPlots.Subject(report), string.Create(Inv, $"black holes, f_PBH = {pbh.FTotal:G3} (delta_c = {pbh.DeltaC:G3}, gamma = {pbh.Gamma:G2}, {pbh.Window.Code()} window; an estimate)")));
         }
         Finish(plot, lines, "M [solar masses]", "f_PBH(M)", empty, report);
         return plot;
@@ -63,7 +63,7 @@ public static class ObservablesPlots
         plot.YLabel(yLabel);
         if (lines.Count == 0)
         {
-            plot.Title($"{report.Model.Id}: {empty}");
+            plot.Title(PlotScales.Title(RunPlots.Subject(report), empty ?? ""));
             plot.Axes.SetLimits(0, 1, 0, 1);
             plot.Layout.Fixed(new PixelPadding(95, 30, 55, 45));
             return;

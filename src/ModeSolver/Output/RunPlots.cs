@@ -109,38 +109,51 @@ public static class RunPlots
         }
         MarkUnreliable(top, s);
         double pad = Math.Max(0.05 * (yMax - yMin), 0.05);
+        // Below the lowest curve (often P_t, flat) a margin of at least a third of a decade keeps it off the axis edge.
+        double below = Math.Max(pad, 1.0 / 3);
         double headroom = 0.5 * (yMax - yMin) + 2 * pad; // room for the legend above the curves
-        top.Axes.SetLimits(xMin, xMax, yMin - pad, yMax + headroom);
+        top.Axes.SetLimits(xMin, xMax, yMin - below, yMax + headroom);
         top.Axes.Bottom.TickGenerator = LogTicks(xMin, xMax, labels: false);
-        top.Axes.Left.TickGenerator = LogTicks(yMin - pad, yMax + headroom, labels: true);
+        top.Axes.Left.TickGenerator = LogTicks(yMin - below, yMax + headroom, labels: true);
         top.YLabel("P(k)");
-        top.Title(string.Create(Inv, $"{report.Model.Id}: primordial spectra (n_s = {report.Pivot.Ns:0.0000}, r = {report.Pivot.R:0.###e+0})"));
+        top.Title(PlotScales.Title(Subject(report), string.Create(Inv, $"primordial spectra (n_s = {report.Pivot.Ns:0.0000}, r = {report.Pivot.R:0.###e+0})")));
         top.ShowLegend(Alignment.UpperRight);
-        top.Layout.Fixed(new PixelPadding(95, 30, 12, 45));
+        top.Layout.Fixed(new PixelPadding(95, 30, 12, PlotScales.TitlePadding(top.Axes.Title.Label.Text)));
 
         var bottom = NewPlot();
-        var diffs = new List<double[]>();
-        AddRatioLine(bottom, diffs, k, s.Ps.AsSpan(), sr.PsSecondOrder.AsSpan(), PlotPalette.DeepTeal, "P_s");
-        AddRatioLine(bottom, diffs, k, s.Pt.AsSpan(), sr.PtSecondOrder.AsSpan(), PlotPalette.BurntOrange, "P_t");
         double thr = report.Settings.FlagSettings.SpectrumThreshold;
+        var ps = Ratio(k, s.Ps.AsSpan(), sr.PsSecondOrder.AsSpan());
+        var pt = Ratio(k, s.Pt.AsSpan(), sr.PtSecondOrder.AsSpan());
+        var (dMin, dMax) = Range(new[] { ps.Y, pt.Y }.Where(y => y.Length >= 1));
+        // Slow roll poor or negative (ratios far beyond 1, or below -1): a symmetric-log axis, linear within the flag
+        // threshold, so that the whole range stays readable with tick labels of powers of ten.
+        bool symLog = Math.Max(Math.Abs(dMin), Math.Abs(dMax)) > SymLogAbove;
+        double c = thr > 0 && double.IsFinite(thr) ? thr : 0.01;
+        Func<double, double> map = symLog ? d => PlotScales.SymLog(d, c) : d => d;
+        AddRatioLine(bottom, ps, map, PlotPalette.DeepTeal, "P_s");
+        AddRatioLine(bottom, pt, map, PlotPalette.BurntOrange, "P_t");
         foreach (var f in report.Flags)
         {
             if (f.Kind != FlagKinds.SpectrumDeviation || !(f.Lower > 0) || !(f.Upper > 0)) continue;
             var span = bottom.Add.HorizontalSpan(Math.Log10(f.Lower), Math.Log10(f.Upper), C(PlotPalette.Plum).WithAlpha(0.15));
             span.LineColor = Colors.Transparent;
         }
-        bottom.Add.HorizontalLine(thr, 1f, C(PlotPalette.Plum), LinePattern.Dotted);
-        bottom.Add.HorizontalLine(-thr, 1f, C(PlotPalette.Plum), LinePattern.Dotted);
+        bottom.Add.HorizontalLine(map(thr), 1f, C(PlotPalette.Plum), LinePattern.Dotted);
+        bottom.Add.HorizontalLine(map(-thr), 1f, C(PlotPalette.Plum), LinePattern.Dotted);
         bottom.Add.HorizontalLine(0, 1f, C(PlotPalette.Slate), LinePattern.Solid);
-        var (dMin, dMax) = Range(diffs);
-        dMin = Math.Min(dMin, -1.5 * thr);
-        dMax = Math.Max(dMax, 1.5 * thr);
-        double dPad = 0.08 * (dMax - dMin);
+        double yLo = Math.Min(map(dMin), map(-1.5 * thr)), yHi = Math.Max(map(dMax), map(1.5 * thr));
+        double dPad = 0.08 * (yHi - yLo);
         if (kp > 0 && double.IsFinite(kp)) bottom.Add.VerticalLine(Math.Log10(kp), 1.5f, C(PlotPalette.Slate), LinePattern.Dotted);
-        bottom.Axes.SetLimits(xMin, xMax, dMin - dPad, dMax + dPad);
+        bottom.Axes.SetLimits(xMin, xMax, yLo - dPad, yHi + dPad);
         bottom.Axes.Bottom.TickGenerator = LogTicks(xMin, xMax, labels: true);
+        if (symLog)
+        {
+            var ticks = new ScottPlot.TickGenerators.NumericManual();
+            foreach (var (pos, label) in PlotScales.SymLogTicks(yLo - dPad, yHi + dPad, c)) ticks.AddMajor(pos, label);
+            bottom.Axes.Left.TickGenerator = ticks;
+        }
         bottom.XLabel("k [Mpc^-1]");
-        bottom.YLabel("P_exact / P_SR - 1");
+        bottom.YLabel(symLog ? "P/P_SR - 1 (symlog)" : "P_exact / P_SR - 1");
         bottom.Layout.Fixed(new PixelPadding(95, 30, 55, 8));
         return (top, bottom);
     }
@@ -192,9 +205,9 @@ public static class RunPlots
         plot.Axes.Left.TickGenerator = LogTicks(yMin - pad, yMax + pad, labels: true);
         plot.XLabel("N [e-folds]");
         plot.YLabel("epsilon_1, |epsilon_2|");
-        plot.Title($"{report.Model.Id}: Hubble-flow parameters");
+        plot.Title(PlotScales.Title(Subject(report), "Hubble-flow parameters"));
         plot.ShowLegend(Alignment.UpperLeft);
-        plot.Layout.Fixed(new PixelPadding(95, 30, 55, 45));
+        plot.Layout.Fixed(new PixelPadding(95, 30, 55, PlotScales.TitlePadding(plot.Axes.Title.Label.Text)));
         return plot;
     }
 
@@ -264,8 +277,11 @@ public static class RunPlots
         sink.Add((xs.ToArray(), ys.ToArray()));
     }
 
-    private static void AddRatioLine(Plot plot, List<double[]> sink, ReadOnlySpan<double> k, ReadOnlySpan<double> exact,
-        ReadOnlySpan<double> slowRoll, string color, string label)
+    /// <summary>The residual panel switches to a symmetric-log axis when |P_exact / P_SR - 1| exceeds this somewhere.</summary>
+    public const double SymLogAbove = 1.0;
+
+    // (log10 k, P_exact / P_SR - 1) where both are finite.
+    private static (double[] X, double[] Y) Ratio(ReadOnlySpan<double> k, ReadOnlySpan<double> exact, ReadOnlySpan<double> slowRoll)
     {
         var xs = new List<double>(k.Length);
         var ys = new List<double>(k.Length);
@@ -276,17 +292,27 @@ public static class RunPlots
             xs.Add(Math.Log10(k[i]));
             ys.Add(d);
         }
-        if (xs.Count == 0) return;
-        if (xs.Count == 1)
+        return (xs.ToArray(), ys.ToArray());
+    }
+
+    private static void AddRatioLine(Plot plot, (double[] X, double[] Y) ratio, Func<double, double> map, string color, string label)
+    {
+        if (ratio.X.Length == 0) return;
+        if (ratio.X.Length == 1)
         {
-            AddPoint(plot, xs[0], ys[0], color, MarkerShape.FilledCircle, label);
-            sink.Add(ys.ToArray());
+            AddPoint(plot, ratio.X[0], map(ratio.Y[0]), color, MarkerShape.FilledCircle, label);
             return;
         }
-        var line = plot.Add.ScatterLine(xs.ToArray(), ys.ToArray(), C(color));
+        var line = plot.Add.ScatterLine(ratio.X, ratio.Y.Select(map).ToArray(), C(color));
         line.LineWidth = 2f;
         line.LegendText = label;
-        sink.Add(ys.ToArray());
+    }
+
+    /// <summary>The model's name in our plot titles (<see cref="PlotScales.Subject"/>).</summary>
+    public static string Subject(RunReport report)
+    {
+        ArgumentNullException.ThrowIfNull(report);
+        return PlotScales.Subject(report.Settings.Get("title"), report.Model.Id, report.Model.Potential);
     }
 
     /// <summary>A lone sample (a spectrum of one wavenumber) drawn as a labelled marker instead of a line.</summary>

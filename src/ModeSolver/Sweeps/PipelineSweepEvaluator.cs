@@ -21,12 +21,16 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
 {
     /// <summary>The keys a sweep axis may name (<c>param.NAME</c> stands for any model parameter).</summary>
     public static IReadOnlyList<string> KnownKeys { get; } =
-        ["param.NAME", "efolds", "reheat.w", "reheat.T", "reheat.efolds", "phi0", "k_pivot", "amplitude"];
+        ["param.NAME", "model", "efolds", "reheat.w", "reheat.T", "reheat.efolds", "reheat.dof", "phi0", "start.efolds", "phi_end", "k_pivot", "amplitude"];
+
+    /// <summary>The key of the axis over catalogue ids (its values are names: <see cref="SweepAxis.Named"/>).</summary>
+    public const string ModelKey = "model";
 
     private const string ParamPrefix = "param.";
     private readonly RunInput _deck;
     private readonly PipelineOptions _options;
     private readonly string _source;
+    private readonly IReadOnlyList<string>? _modelIds;
 
     /// <summary>Builds the evaluator from an already parsed run deck; validates the swept keys first.</summary>
     /// <param name="deck">The run deck (not modified; must not be modified while the evaluator is in use).</param>
@@ -35,6 +39,21 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     /// <param name="flags">Flag thresholds (default: <see cref="FlagSettings.Default"/>).</param>
     /// <exception cref="SweepException">a key the evaluator does not understand, or a parameter the model does not have.</exception>
     public PipelineSweepEvaluator(RunInput deck, IReadOnlyList<string> sweptKeys, string source = "deck", FlagSettings? flags = null)
+        : this(deck, sweptKeys, null, source, flags)
+    {
+    }
+
+    /// <summary>
+    /// Builds the evaluator from an already parsed run deck and the sweep's axes (needed for an axis over catalogue
+    /// ids, <see cref="ModelKey"/>, whose names the axis holds); validates the swept keys first.
+    /// </summary>
+    /// <exception cref="SweepException">an unknown key, a parameter the model does not have, an unknown catalogue id.</exception>
+    public PipelineSweepEvaluator(RunInput deck, SweepSpec spec, string source = "deck", FlagSettings? flags = null)
+        : this(deck, (spec ?? throw new ArgumentNullException(nameof(spec))).Keys, spec.Axes, source, flags)
+    {
+    }
+
+    private PipelineSweepEvaluator(RunInput deck, IReadOnlyList<string> sweptKeys, IReadOnlyList<SweepAxis>? axes, string source, FlagSettings? flags)
     {
         ArgumentNullException.ThrowIfNull(deck);
         ArgumentNullException.ThrowIfNull(sweptKeys);
@@ -42,7 +61,36 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         _source = source;
         _options = new PipelineOptions { Threads = 1, Flags = flags };
         ValidateKeys(sweptKeys, source);
+        _modelIds = ModelIds(sweptKeys, axes, source);
         CheckParameters(sweptKeys);
+    }
+
+    /// <summary>
+    /// The catalogue ids of the <see cref="ModelKey"/> axis (null when the model is not swept). Only that axis holds
+    /// names, and each must be a catalogue id; the deck must not also write out a potential.
+    /// </summary>
+    private IReadOnlyList<string>? ModelIds(IReadOnlyList<string> keys, IReadOnlyList<SweepAxis>? axes, string source)
+    {
+        IReadOnlyList<string>? ids = null;
+        for (int i = 0; i < keys.Count; i++)
+        {
+            var names = axes is not null && i < axes.Count ? axes[i].Labels : null;
+            if (keys[i] != ModelKey)
+            {
+                if (names is not null)
+                    throw new SweepException($"{source}: sweep axis '{keys[i]}': 'values' must be numbers (only the axis '{ModelKey}' takes names)");
+                continue;
+            }
+            if (names is null)
+                throw new SweepException($"{source}: sweep axis '{ModelKey}': 'values' must be a list of catalogue ids, e.g. [\"t-model\", \"e-model\"]");
+            foreach (var id in names)
+                if (ModelCatalogue.Find(id) is null)
+                    throw new SweepException($"{source}: sweep axis '{ModelKey}': '{id}' is not a catalogue model (see `modesolver models`)");
+            if (_deck.Potential is not null)
+                throw new SweepException($"{source}: sweep axis '{ModelKey}' sweeps catalogue models, but the deck writes out a potential; remove [model] potential");
+            ids = names;
+        }
+        return ids;
     }
 
     /// <summary>
@@ -56,13 +104,48 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         var spec = SweepDeck.ParseSpec(deckText, source);
         ValidateKeys(spec.Keys, source);
         var deck = DeckReader.Parse(SweepDeck.BlankSweep(deckText, source), source);
-        return new PipelineSweepEvaluator(deck, spec.Keys, source);
+        return new PipelineSweepEvaluator(deck, spec, source);
     }
 
     /// <summary>Builds the evaluator from the sweep deck at <paramref name="deckPath"/>.</summary>
     public static PipelineSweepEvaluator FromDeck(string deckPath)
     {
         return FromDeckText(SweepDeck.ReadText(deckPath), deckPath);
+    }
+
+    /// <summary>
+    /// What the sweep is of, for the plot title: the deck's title; else the catalogue model's name (or the swept
+    /// catalogue ids); else the written-out potential (shortened).
+    /// </summary>
+    public string Subject => SubjectOf(_deck, _modelIds);
+
+    /// <summary>The subject (<see cref="Subject"/>) of a sweep deck's text, e.g. the copy kept beside merged shards; null when it cannot be read.</summary>
+    public static string? SubjectOfDeckText(string deckText, string source)
+    {
+        try
+        {
+            var spec = SweepDeck.ParseSpec(deckText, source);
+            var deck = DeckReader.Parse(SweepDeck.BlankSweep(deckText, source), source);
+            int m = spec.IndexOf(ModelKey);
+            return SubjectOf(deck, m >= 0 ? spec.Axes[m].Labels : null);
+        }
+        catch (Exception e) when (e is SweepException or DeckException)
+        {
+            return null;
+        }
+    }
+
+    private static string SubjectOf(RunInput deck, IReadOnlyList<string>? modelIds)
+    {
+        if (deck.Title is { } t && !string.IsNullOrWhiteSpace(t.Value)) return t.Value.Trim();
+        if (modelIds is not null) return "models " + string.Join(", ", modelIds);
+        if (deck.ModelId is { } id) return ModelCatalogue.Find(id.Value.Trim()) is { } e ? $"{e.Name} ({e.Id})" : id.Value.Trim();
+        if (deck.Potential is { } v)
+        {
+            string text = string.Join(' ', v.Value.Split((char[])['\n', '\r', '\t', ' '], StringSplitOptions.RemoveEmptyEntries));
+            return "V = " + (text.Length > 60 ? text[..57] + "..." : text);
+        }
+        return "sweep";
     }
 
     /// <summary>True when <paramref name="key"/> is a key this evaluator understands.</summary>
@@ -85,6 +168,17 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     {
         var names = new List<string>();
         string problem, listed;
+        if (_modelIds is not null)
+        {
+            foreach (var swept in _modelIds)
+            {
+                var model = ModelCatalogue.Find(swept)!;
+                foreach (var key in keys)
+                    if (key.StartsWith(ParamPrefix, StringComparison.Ordinal) && !model.Parameters.Any(p => p.Name == key[ParamPrefix.Length..]))
+                        throw new SweepException($"{_source}: sweep axis '{key}': model {model.Id} (of the axis '{ModelKey}') has no parameter '{key[ParamPrefix.Length..]}' (its parameters: {string.Join(", ", model.Parameters.Select(p => p.Name))})");
+            }
+            return;
+        }
         if (_deck.ModelId is { } id)
         {
             var entry = ModelCatalogue.Find(id.Value.Trim());
@@ -136,7 +230,14 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 case "reheat.w": o.ReheatW = at; break;
                 case "reheat.T": o.ReheatTemperature = at; break;
                 case "reheat.efolds": o.ReheatEfolds = at; break;
+                case "reheat.dof": o.ReheatDof = at; break;
                 case "phi0": o.Phi0 = at; break;
+                case "start.efolds": o.StartEfolds = at; break;
+                case "phi_end": o.PhiEnd = at; break;
+                case ModelKey:
+                    if (_modelIds is null) throw new SweepException($"sweep key '{ModelKey}' needs the axis' catalogue ids");
+                    o.ModelId = new Located<string>(_modelIds[(int)v], ModelValueName(key, v));
+                    break;
                 case "k_pivot": o.KPivot = at; break;
                 case "amplitude": o.Amplitude = new Located<double?>(v, at.Key); break;
                 default:
@@ -149,6 +250,9 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     }
 
     private static string SweptValueName(string key, double v) => $"sweep value {key} = {v.ToString("R", CultureInfo.InvariantCulture)}";
+
+    private string ModelValueName(string key, double v) =>
+        key == ModelKey && _modelIds is not null && v >= 0 && v < _modelIds.Count ? $"sweep value {key} = {_modelIds[(int)v]}" : SweptValueName(key, v);
 
     /// <inheritdoc />
     public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
@@ -219,7 +323,8 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             // Without the point's own values, so that one error of the whole grid reads the same at both points.
             string message = SweepDeck.OneLine(e.Message);
             for (int i = 0; i < point.Keys.Count; i++)
-                message = message.Replace(SweptValueName(point.Keys[i], point.Values[i]), $"sweep value {point.Keys[i]}", StringComparison.Ordinal);
+                message = message.Replace(SweptValueName(point.Keys[i], point.Values[i]), $"sweep value {point.Keys[i]}", StringComparison.Ordinal)
+                    .Replace(ModelValueName(point.Keys[i], point.Values[i]), $"sweep value {point.Keys[i]}", StringComparison.Ordinal);
             return message;
         }
     }

@@ -18,7 +18,7 @@ namespace ModeSolver.Sweeps;
 /// zip      = ["reheat.w", "reheat.T"]   # keys that move together (optional; or a list of such lists)
 /// [[sweep.axis]]
 /// key = "param.alpha"
-/// log = [0.01, 100.0, 9]     # or linear = [start, stop, count], or values = [..]
+/// log = [0.01, 100.0, 9]     # or linear = [start, stop, count], or values = [..] (numbers, or names for key "model")
 /// </code>
 /// </summary>
 public static class SweepDeck
@@ -117,6 +117,11 @@ public static class SweepDeck
         if (t.TryGetValue("values", out var vr))
         {
             if (vr is not TomlArray va || va.Count == 0) throw new SweepException($"{where}: 'values' must be a non-empty list of numbers");
+            if (va.All(x => x is string))
+            {
+                try { return SweepAxis.Named(key, [.. va.Cast<string>()]); }
+                catch (SweepException e) { throw new SweepException($"{where.Split(':')[0]}: {e.Message}"); }
+            }
             var vals = new double[va.Count];
             for (int i = 0; i < va.Count; i++) vals[i] = Number(va[i], $"{where}: 'values' item {i + 1}");
             try { return SweepAxis.List(key, vals); }

@@ -79,7 +79,8 @@ public static class SweepDensityPlot
         var standIn = new SweepSpec([SweepAxis.List("point", [0.0])]);
         var plot = SweepPlot.Build(standIn, [], options);
         // The colour scale is named in the title: a colour-bar label would overlap its tick labels.
-        plot.Title($"n_s and r: density of {n} points (sweep over {string.Join(", ", spec.Keys)})\ncolour: log10 of the points per cell");
+        string what = $"n_s and r: density of {n} points (sweep over {string.Join(", ", spec.Keys)})\ncolour: log10 of the points per cell";
+        plot.Title(string.IsNullOrWhiteSpace(options.Subject) ? what : $"{options.Subject}: {what}");
         var map = plot.Add.Heatmap(counts);
         map.Extent = new CoordinateRect(xmin, xmax, ymin, ymax);
         map.Colormap = new ScottPlot.Colormaps.Viridis();

@@ -78,7 +78,7 @@ public static class SweepOutputs
                 foreach (var r in sorted())
                 {
                     spec.GetValues(r.Index, values);
-                    WriteCsvRow(csv, values, r);
+                    WriteCsvRow(csv, spec, values, r);
                     block.Add(r, values);
                     spectra?.Write(h5, r);
                     if (block.Count == RowBlock) { layout.WriteBlock(h5, block, written); written += block.Count; block.Clear(); }
@@ -134,7 +134,7 @@ public static class SweepOutputs
         foreach (var r in sorted)
         {
             spec.GetValues(r.Index, values);
-            WriteCsvRow(w, values, r);
+            WriteCsvRow(w, spec, values, r);
         }
         return w.ToString();
     }
@@ -147,10 +147,11 @@ public static class SweepOutputs
         w.Write('\n');
     }
 
-    private static void WriteCsvRow(TextWriter w, double[] values, SweepRecord r)
+    private static void WriteCsvRow(TextWriter w, SweepSpec spec, double[] values, SweepRecord r)
     {
         w.Write(r.Index.ToString(CultureInfo.InvariantCulture));
-        foreach (var v in values) { w.Write(','); w.Write(F(v)); }
+        // An axis over names (catalogue ids) writes the name; a numeric axis its value in round-trip form.
+        for (int j = 0; j < values.Length; j++) { w.Write(','); w.Write(spec.Axes[j].Labels is null ? F(values[j]) : Quote(spec.Axes[j].Text(values[j]))); }
         if (r.Ok)
         {
             foreach (var v in new[] { r.Ns, r.R, r.AlphaS, r.Nt, r.As, r.NStar, r.VScale, DeltaChi2(r) }) { w.Write(','); w.Write(F(v)); }
@@ -283,6 +284,7 @@ public static class SweepOutputs
                 for (int i = 0; i < values.Length; i++) values[i] = a.ValueAt(i);
                 var ds = new H5Dataset<double[]>(values);
                 ds.Attributes["kind"] = a.Kind.ToString().ToLowerInvariant();
+                if (a.Labels is { } names) ds.Attributes["names"] = names.ToArray(); // the values are positions in this list
                 grid[a.Key] = ds;
             }
             File["grid"] = grid;

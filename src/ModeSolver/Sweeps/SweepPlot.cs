@@ -24,6 +24,8 @@ public sealed class SweepPlotOptions
     public int Width { get; init; } = 1300;
     /// <summary>Image height in pixels.</summary>
     public int Height { get; init; } = 700;
+    /// <summary>What the sweep is of (deck title or model name), put in front of the plot title; null for none.</summary>
+    public string? Subject { get; init; }
 }
 
 /// <summary>The colours of our sweep plots.</summary>
@@ -85,7 +87,7 @@ public static class SweepPlot
         {
             if (!r.Ok || !double.IsFinite(r.Ns) || !double.IsFinite(r.R) || (log && r.R <= 0)) continue;
             spec.GetValues(r.Index, values);
-            var label = string.Join(", ", Enumerable.Range(0, values.Length).Where(j => !along[j]).Select(j => $"{spec.Keys[j]} = {G(values[j])}"));
+            var label = string.Join(", ", Enumerable.Range(0, values.Length).Where(j => !along[j]).Select(j => $"{spec.Keys[j]} = {spec.Axes[j].Text(values[j])}"));
             if (!lines.TryGetValue(label, out var list)) { lines[label] = list = []; lineOrder[label] = r.Index; }
             list.Add((r.Index, values[fam], mark >= 0 ? values[mark] : 0, r.Ns, log ? Math.Log10(r.R) : r.R));
         }
@@ -96,7 +98,7 @@ public static class SweepPlot
         plot.Axes.Left.Label.Text = log ? "r (log scale)" : "r";
         plot.Axes.Bottom.Label.ForeColor = ink;
         plot.Axes.Left.Label.ForeColor = ink;
-        plot.Title(spec.Families is null && spec.Keys.Count == 1 ? $"n_s and r along {spec.Keys[0]}" : $"n_s and r, lines along {spec.Keys[fam]}");
+        plot.Title(TitleText(spec, fam, options.Subject));
 
         double c = options.NsCentre, s = options.NsSigma;
         var two = plot.Add.HorizontalSpan(c - 2 * s, c + 2 * s, Color.FromHex(SweepPalette.NsTwoSigma));
@@ -128,18 +130,36 @@ public static class SweepPlot
         if (mark >= 0)
             for (int i = 0; i < spec.Axes[mark].Values.Count; i++)
                 markShapes.TryAdd(spec.Axes[mark].Values[i], Shapes[markShapes.Count % Shapes.Length]);
-        int colour = 0;
         double xmin = c - 2.5 * s, xmax = c + 2.5 * s, ymin = double.PositiveInfinity, ymax = yBound;
         if (options.ShowContours) ymax = Math.Max(ymax, log ? Math.Log10(ContourTop(options)) : ContourTop(options));
-        foreach (var label in lines.Keys.OrderBy(k => lineOrder[k]))
+        var ordered = lines.Keys.OrderBy(k => lineOrder[k]).ToList();
+        // Many families: colours run along a colour map in line order, and the legend names an evenly spread
+        // selection of them (first and last included) plus one entry saying how many lines there are.
+        bool many = ordered.Count > SweepPalette.Lines.Count;
+        var named = LegendSelection(ordered.Count, MaxLegendLines);
+        var map = new ScottPlot.Colormaps.Viridis();
+        for (int li = 0; li < ordered.Count; li++)
         {
+            string label = ordered[li];
             var pts = lines[label].OrderBy(p => p.Along).ThenBy(p => p.Index).ToList();
-            var col = Color.FromHex(SweepPalette.Lines[colour++ % SweepPalette.Lines.Count]);
+            var col = many ? map.GetColor(0.9 * li / (ordered.Count - 1)) : Color.FromHex(SweepPalette.Lines[li % SweepPalette.Lines.Count]);
             var xs = pts.Select(p => p.X).ToArray();
             var ys = pts.Select(p => p.Y).ToArray();
             var sc = plot.Add.Scatter(xs, ys, col);
-            sc.LineWidth = 2;
-            sc.LegendText = label.Length == 0 ? spec.Keys[fam] : label;
+            sc.LineWidth = many ? 1.5f : 2;
+            if (named.Contains(li)) sc.LegendText = label.Length == 0 ? spec.Keys[fam] : label;
+            // The swept values at a few points of the first and the last line (both ends and the middle).
+            if (fam >= 0 && (li == 0 || li == ordered.Count - 1))
+                foreach (int pi in PointsToLabel(pts.Count))
+                {
+                    string value = spec.Axes[fam].Text(pts[pi].Along);
+                    var t = plot.Add.Text(pi == 0 && li == 0 ? $"{spec.Keys[fam]} = {value}" : value, xs[pi], ys[pi]);
+                    t.LabelFontSize = 11;
+                    t.LabelFontColor = col;
+                    t.LabelAlignment = li == 0 ? Alignment.LowerLeft : Alignment.UpperRight;
+                    t.OffsetX = li == 0 ? 5 : -5;
+                    t.OffsetY = li == 0 ? -4 : 4;
+                }
             bool oneShape = mark >= 0 && mark != fam;
             sc.MarkerSize = oneShape ? 7 : 0;
             if (oneShape) sc.MarkerShape = markShapes[pts[0].MarkValue];
@@ -156,7 +176,7 @@ public static class SweepPlot
             foreach (var (v, shape) in markShapes)
             {
                 var legendOnly = plot.Add.Markers(new[] { double.NaN }, new[] { double.NaN }, shape, 8, ink);
-                legendOnly.LegendText = $"{spec.Keys[mark]} = {G(v)}";
+                legendOnly.LegendText = $"{spec.Keys[mark]} = {spec.Axes[mark].Text(v)}";
             }
 
         double dx = (xmax - xmin) * 0.05;
@@ -178,9 +198,38 @@ public static class SweepPlot
         {
             plot.Axes.SetLimitsY(0, Math.Max(ymax, options.RUpper95) * 1.15);
         }
+        if (ordered.Count > named.Count)
+        {
+            var note = plot.Add.Markers(new[] { double.NaN }, new[] { double.NaN }, MarkerShape.None, 1, ink);
+            note.LegendText = $"... {ordered.Count} lines in all ({ordered.Count - named.Count} not named here; see sweep.csv)";
+        }
         plot.ShowLegend(Edge.Right);
+        if (ordered.Count > 8) plot.Legend.FontSize = 11;
         return plot;
     }
+
+    /// <summary>The most lines the legend names one by one.</summary>
+    public const int MaxLegendLines = 10;
+
+    /// <summary>The plot title: the subject (deck title or model), then what the lines follow.</summary>
+    public static string TitleText(SweepSpec spec, int families, string? subject)
+    {
+        ArgumentNullException.ThrowIfNull(spec);
+        string what = spec.Families is null && spec.Keys.Count == 1 ? $"n_s and r along {spec.Keys[0]}" : $"n_s and r, lines along {spec.Keys[families]}";
+        return string.IsNullOrWhiteSpace(subject) ? what : $"{subject}: {what}";
+    }
+
+    /// <summary>The positions (of <paramref name="count"/> lines) the legend names: all up to <paramref name="max"/>, else an even spread with both ends.</summary>
+    public static IReadOnlySet<int> LegendSelection(int count, int max)
+    {
+        var set = new SortedSet<int>();
+        if (count <= max) { for (int i = 0; i < count; i++) set.Add(i); return set; }
+        for (int i = 0; i < max; i++) set.Add((int)Math.Round((double)i * (count - 1) / (max - 1)));
+        return set;
+    }
+
+    // Both ends and the middle of a line of n points.
+    private static IEnumerable<int> PointsToLabel(int n) => n <= 0 ? [] : new SortedSet<int> { 0, n / 2, n - 1 };
 
     /// <summary>
     /// The n-sigma contours (n = 1, 2) of Delta chi^2 = ((n_s - c)/sigma)^2 + (r/sigma_r)^2 for two degrees of freedom,

@@ -94,6 +94,27 @@ public sealed class SweepAxis
         return new SweepAxis(key, SweepAxisKind.Log, start, stop, count);
     }
 
+    /// <summary>
+    /// An axis over names (catalogue ids): its values are the positions 0, 1, ... in <paramref name="names"/>, which
+    /// the evaluator maps back to the names (<see cref="Labels"/>); the outputs show the names.
+    /// </summary>
+    public static SweepAxis Named(string key, IReadOnlyList<string> names)
+    {
+        ArgumentNullException.ThrowIfNull(names);
+        foreach (var n in names)
+            if (string.IsNullOrWhiteSpace(n)) throw new SweepException($"sweep axis '{key}': names must be non-empty strings");
+        var axis = new SweepAxis(key, SweepAxisKind.List, [.. Enumerable.Range(0, names.Count).Select(i => (double)i)]);
+        axis.Labels = [.. names.Select(n => n.Trim())];
+        return axis;
+    }
+
+    /// <summary>The names of an axis over names (<see cref="Named"/>), in order; null for a numeric axis.</summary>
+    public IReadOnlyList<string>? Labels { get; private set; }
+
+    /// <summary>The text of value <paramref name="v"/> of this axis: the name for an axis over names, else the number (G6).</summary>
+    public string Text(double v) =>
+        Labels is { } l && v >= 0 && v < l.Count && v == Math.Floor(v) ? l[(int)v] : v.ToString("G6", CultureInfo.InvariantCulture);
+
     /// <summary>An explicit list of values.</summary>
     public static SweepAxis List(string key, IReadOnlyList<double> values)
     {
@@ -281,7 +302,8 @@ public sealed class SweepSpec
         foreach (var a in Axes)
         {
             sink("axis " + a.Key + " " + a.Kind.ToString() + ":");
-            for (int i = 0; i < a.Count; i++) sink(" " + SweepAxis.Fmt(a.ValueAt(i)));
+            if (a.Labels is { } names) foreach (var n in names) sink(" " + n);
+            else for (int i = 0; i < a.Count; i++) sink(" " + SweepAxis.Fmt(a.ValueAt(i)));
             sink("\n");
         }
         foreach (var g in Zip) sink("zip " + string.Join(' ', g) + "\n");

@@ -26,6 +26,9 @@ public class AllocationTests
         long shortRun = Measure(10.0, out int fewSteps);
         long longRun = Measure(1000.0, out int manySteps);
         Assert.True(manySteps > 25 * fewSteps, $"{manySteps} vs {fewSteps} steps");
-        Assert.True(longRun - shortRun < 256, $"allocation grew by {longRun - shortRun} bytes over {manySteps - fewSteps} extra steps");
+        // Any allocation per step costs at least 24 bytes (the smallest object), so growth below one byte per extra step
+        // rules out per-step allocation while leaving room for the runtime's own one-off allocations on this thread
+        // (tiered re-compilation of the hot loop under load allocated a few hundred bytes once).
+        Assert.True(longRun - shortRun < manySteps - fewSteps, $"allocation grew by {longRun - shortRun} bytes over {manySteps - fewSteps} extra steps");
     }
 }

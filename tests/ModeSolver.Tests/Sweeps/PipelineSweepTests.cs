@@ -181,7 +181,7 @@ public class PipelineSweepTests
         Assert.Contains(expected, ex.Message, StringComparison.Ordinal);
         Assert.DoesNotContain('\n', ex.Message);
         if (!key.StartsWith("param.", StringComparison.Ordinal))
-            Assert.Contains("valid: param.NAME, efolds, reheat.w, reheat.T, reheat.efolds, phi0, k_pivot, amplitude", ex.Message, StringComparison.Ordinal);
+            Assert.Contains("valid: param.NAME, model, efolds, reheat.w, reheat.T, reheat.efolds, reheat.dof, phi0, start.efolds, phi_end, k_pivot, amplitude", ex.Message, StringComparison.Ordinal);
 
         var outDir = Path.Combine(dir, "out");
         var (code, stdout, stderr) = CliProcess.Run(["sweep", deck, "--out", outDir, "--quiet"]);
