@@ -96,6 +96,21 @@ public class ResonantFeatureTests
     }
 
     [Fact]
+    public void APivotModeStartedBeyondTheCheckedDepthSaysItsRunningIsNotBounded()
+    {
+        // The f = 1e-3 resonance forces the pivot mode to start deeper than the depth to which alpha_s was checked against
+        // fits, so the pivot values must say so; the same potential without its oscillation starts at the default depth.
+        var c = Cases[1e-3].Value;
+        var deep = Spectra.PivotValues.Compute(c.Bg, c.KMid, 1e-6);
+        Assert.True(deep.StartDepth > Spectra.PivotValues.RunningDepthLimit, $"start depth {deep.StartDepth:G4}");
+        Assert.Contains("not bounded", deep.DeepStartWarning());
+        var smooth = Build(1e-2, 0.0); // the linear potential without its oscillation
+        var shallow = Spectra.PivotValues.Compute(smooth.Bg, smooth.KMid, 1e-6);
+        Assert.True(shallow.StartDepth <= Spectra.PivotValues.RunningDepthLimit, $"start depth {shallow.StartDepth:G4}");
+        Assert.Null(shallow.DeepStartWarning());
+    }
+
+    [Fact]
     public void AModeTheBackgroundCannotStartBeyondTheResonanceIsRefused()
     {
         // k/aH = 100 at the background's start is enough for the plain rule (7) but not for 2 omega = 2 x 83 there.
