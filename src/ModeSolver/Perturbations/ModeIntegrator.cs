@@ -78,12 +78,17 @@ public sealed partial class ModeIntegrator
         _nStopCandidate = DepthTime(xStop, n0);
         _nExit = DepthTime(1.0, n0);
         _maxZeta2 = 0;
+        _maxZeta2Free = 0;
+        _freeDecayCalibrated = xs <= 1.01 * settings.EffectiveStartDepth;
         double stepTol = settings.Tolerance * settings.StepToleranceRatio;
+        // The deep-start scale stops at the integrator's round-off floor; the integrator term below grows by what is lost.
+        double rkTol = Math.Max(stepTol * DeepStepScale(xs), StepToleranceFloor);
+        double floorLoss = rkTol / (stepTol * DeepStepScale(xs));
         var options = new OdeOptions
         {
-            RelativeTolerance = stepTol * DeepStepScale(xs),
-            AbsoluteTolerance = stepTol * DeepStepScale(xs),
-            AbsoluteToleranceVector = AbsoluteTolerances(stepTol * DeepStepScale(xs), n0, scan),
+            RelativeTolerance = rkTol,
+            AbsoluteTolerance = rkTol,
+            AbsoluteToleranceVector = AbsoluteTolerances(rkTol, n0, scan),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
             Observer = _observer,
@@ -107,8 +112,11 @@ public sealed partial class ModeIntegrator
         // Beyond this the first-order bound on the missed excitation is no bound (|beta| is no longer small).
         _startInFeature = missed > MissedExcitationLimit;
         // The integrator part is that of the nominal step tolerance: deep starts take tighter steps (DeepStepScale) so that
-        // their global error, which grows with the oscillations integrated, stays at the nominal level.
-        double err = (IntegratorErrorFactor * stepTol + InitialDataError(n0, xs, settings.InitialData) + _deepError + missed) * Cancellation()
+        // their global error, which grows with the oscillations integrated, stays at the nominal level. The measured terms
+        // (integrator, initial data) with the free decay divided out where they were measured (default depth); the
+        // first-order bounds (missed excitation, oscillatory regime) with the full factor.
+        double err = (IntegratorErrorFactor * stepTol * floorLoss + InitialDataError(n0, xs, settings.InitialData)) * Cancellation(_freeDecayCalibrated)
+                     + (_deepError + missed) * Cancellation(false)
                      + 0.1 * _stopCorrection;
         return Results(k, n0, n, xs, xf, _frozen, err);
     }
@@ -119,20 +127,39 @@ public sealed partial class ModeIntegrator
     /// <summary>Largest missed feature excitation (relative) whose first-order bound is still reported as a bound.</summary>
     internal const double MissedExcitationLimit = 0.1;
 
-    // Largest |zeta|^2 (carried units) at the accepted steps after horizon exit, and the N of exit (k/aH = 1).
-    private double _maxZeta2, _nExit;
+    // Largest |zeta|^2 (carried units) at the accepted steps after horizon exit, the same divided by 1 + x_lo^2
+    // (DepthLowerBound), and the N of exit (k/aH = 1).
+    private double _maxZeta2, _maxZeta2Free, _nExit;
+
+    // True when the mode starts at the default depth, where the integrator and initial-data coefficients were measured.
+    private bool _freeDecayCalibrated;
+
+    /// <summary>
+    /// A lower bound on k/aH at <paramref name="n"/> after the exit at <paramref name="nExit"/>: d ln(k/aH)/dN = -(1 - e1)
+    /// with e1 &gt;= 0, so k/aH falls at most one e-fold per e-fold.
+    /// </summary>
+    private static double DepthLowerBound(double n, double nExit) => Math.Exp(-Math.Max(0.0, n - nExit));
 
     /// <summary>
     /// How much the final relative accuracy of P_s is worse than that of the state during the run: max |zeta| after
     /// horizon exit over the final |zeta|, squared for P (at least 1). The step control keeps errors relative to the
     /// state's size; where zeta then largely cancels outside the horizon (the dip before an ultra-slow-roll peak, where
     /// P_s falls by many decades), an error of the earlier size remains and is that much larger relative to what is left.
+    /// With <paramref name="freeDecay"/> (for the measured terms of a mode started at the default depth) each |zeta|^2 is first divided by the free decay 1 + (k/aH)^2 that every
+    /// mode undergoes after exit (|zeta|^2 is proportional to 1 + (k/aH)^2 for the quasi-de Sitter solution, physics.md 3),
+    /// with k/aH bounded below (<see cref="DepthLowerBound"/>, so the division is never by more than the decay): the
+    /// integrator factor and the initial-data coefficient were measured on the final P of such modes, so that decay is
+    /// already in them. Counted again it made every ordinary mode's estimate 1.6-2x larger (Starobinsky pivot at 1e-6:
+    /// 1.66e-6 reported, 6.0e-7 off a 1e-11 re-solve; 9.2e-7 reported now). Modes started deeper (before a feature) keep
+    /// the full factor: their integration error is larger than the calibration's (step deck, start k/aH = 123: 0.14 of the
+    /// step tolerance, above the factor 0.1), and the full factor is what covered it; so do the first-order bounds, which
+    /// were not measured.
     /// </summary>
-    private double Cancellation()
+    private double Cancellation(bool freeDecay)
     {
         if (!_scalar) return 1.0;
         double final2 = _y[0] * _y[0] + _y[1] * _y[1];
-        double a = _maxZeta2 / final2;
+        double a = (freeDecay ? _maxZeta2Free : _maxZeta2) / final2;
         return double.IsFinite(a) && a > 1 ? a : 1.0;
     }
 
@@ -217,6 +244,9 @@ public sealed partial class ModeIntegrator
         }
     }
 
+    /// <summary>Smallest Runge-Kutta tolerance (DOP853 refuses tolerances below its 1e-15 round-off floor).</summary>
+    internal const double StepToleranceFloor = 1e-15;
+
     /// <summary>Global error of the integration relative to the step tolerance (measured about 0.01 on the benchmark modes; 10x margin).</summary>
     internal const double IntegratorErrorFactor = 0.1;
 
@@ -292,7 +322,12 @@ public sealed partial class ModeIntegrator
     /// <summary>Step observer: after x &lt;= stop depth, tests the freeze-out criterion (one extra right-hand side per test, counted).</summary>
     private bool Observe(double n, ReadOnlySpan<double> y)
     {
-        if (_scalar && n >= _nExit) _maxZeta2 = Math.Max(_maxZeta2, y[0] * y[0] + y[1] * y[1]);
+        if (_scalar && n >= _nExit)
+        {
+            double xLo = DepthLowerBound(n, _nExit), z2 = y[0] * y[0] + y[1] * y[1];
+            _maxZeta2 = Math.Max(_maxZeta2, z2);
+            _maxZeta2Free = Math.Max(_maxZeta2Free, z2 / (1.0 + xLo * xLo));
+        }
         if (n < _nStopCandidate) return false;
         y.CopyTo(_y);
         var p = _bg.At(n);
@@ -317,8 +352,8 @@ public sealed partial class ModeIntegrator
         SetInitialData(n0, settings.InitialData);
         var options = new OdeOptions
         {
-            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
-            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
+            RelativeTolerance = Math.Max(settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs), StepToleranceFloor),
+            AbsoluteTolerance = Math.Max(settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs), StepToleranceFloor),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
         };
