@@ -156,6 +156,9 @@ public static class BackgroundSolver
         /// </summary>
         public const double FastOscillationRatio = 200;
 
+        /// <summary>The fast continuation stops only when the planned e-folds left would take more oscillations than this.</summary>
+        public const double RemainingOscillationsToStop = 10 * ContinuationOscillations;
+
         private string? _continuationStop;
 
         private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events, int? maxSteps = null)
@@ -353,8 +356,9 @@ public static class BackgroundSolver
         }
 
         /// <summary>
-        /// After <see cref="ContinuationOscillations"/> oscillations about a smooth minimum (no kink met, V &gt; 0 at the
-        /// turning points) at omega/H above <see cref="FastOscillationRatio"/>: records why the continuation stops there
+        /// After <see cref="ContinuationOscillations"/> oscillations about a smooth minimum (no kink met since the end)
+        /// at omega/H above <see cref="FastOscillationRatio"/>, with more than
+        /// <see cref="RemainingOscillationsToStop"/> oscillations left to the planned stop: records why the continuation stops there
         /// (a note, not a warning: this is the expected behaviour, e.g. the Palatini map at large xi, omega/H ~ sqrt(xi))
         /// and returns true.
         /// </summary>
@@ -365,6 +369,7 @@ public static class BackgroundSolver
             double omegaOverH = 2 * Math.PI * oscillations / (n - firstDip);
             if (!(omegaOverH > FastOscillationRatio) || !(n < stop)) return false;
             double remaining = (stop - n) * omegaOverH / (2 * Math.PI);
+            if (!(remaining > RemainingOscillationsToStop)) return false; // nearly done: cheaper to finish as planned
             _continuationStop = string.Create(CultureInfo.InvariantCulture,
                 $"the continuation after the end of inflation stopped after {ContinuationOscillations} oscillations about the minimum, {n - nUp:G3} e-folds after the end (N = {n:G8}): omega/H ~ {omegaOverH:G3}, and the planned {_s.EFoldsAfterEnd:G3} e-folds would take ~{remaining:G2} more oscillations; the continuation only feeds the plots and the post-inflation epsilon_1, the background is recorded up to there");
             return true;
