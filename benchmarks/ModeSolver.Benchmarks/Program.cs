@@ -9,8 +9,14 @@ using ModeSolver.Pipeline;
 // (under mpirun: one line per rank).
 // `--warm-deck DECK [REPS]`: warm median of SpectrumPipeline.Run on a deck, one line (for benchmarks/baseline/compare.py).
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
+// `--resonant-depths DECK [f]`: RHS work per mode against the start depth on a resonant deck, with and without the propagator.
 // `--error-honesty [CASE] [--all]`: per-k error estimate against a 1000x tighter re-solve on the hard models (docs/modes.md).
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
+if (args.Length >= 2 && args[0] == "--resonant-depths")
+{
+    ModeSolver.Benchmarks.Perturbations.ResonantDepthWork.Run(args);
+    return;
+}
 if (args.Length >= 1 && args[0] == "--error-honesty")
 {
     ModeSolver.Benchmarks.Perturbations.ErrorHonesty.Run(args);

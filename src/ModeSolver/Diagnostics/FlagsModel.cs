@@ -54,7 +54,7 @@ public enum SlowRollReference
 /// <param name="SigmaNs">sigma(n_s) = 0.0042 (Planck 2018 X, A&amp;A 641, A10).</param>
 /// <param name="SigmaR">Effective 1-sigma of r = 0.036/2: half the 95% upper bound of BICEP/Keck 2021 (PRL 127, 151301);
 /// halving a 95% bound is common practice.</param>
-/// <param name="SigmaAlphaS">sigma(alpha_s) = 0.013 (Planck 2018 X, from memory).</param>
+/// <param name="SigmaAlphaS">sigma(alpha_s) = 0.0067 (Planck 2018 X, dn_s/dln k = -0.0045 +- 0.0067 at 68%, from memory; the value the distance to the data uses).</param>
 /// <param name="SigmaNt">sigma(n_t) = sigma(r)/8 from the single-field consistency relation n_t = -r/8 (our choice:
 /// n_t itself is not measured).</param>
 /// <param name="Epsilon1Limit">Flag background phases with epsilon_1 above this inside the observable window (default 0.1).</param>
@@ -65,7 +65,7 @@ public sealed record FlagSettings(
     double PivotFraction = 0.1,
     double SigmaNs = 0.0042,
     double SigmaR = 0.036 / 2,
-    double SigmaAlphaS = 0.013,
+    double SigmaAlphaS = 0.0067,
     double SigmaNt = 0.036 / 2 / 8,
     double Epsilon1Limit = 0.1,
     double Epsilon2Limit = 1.0,

@@ -10,6 +10,9 @@ namespace ModeSolver.Perturbations;
 /// The same pass tabulates how fast the local indices nu (scalar and tensor) drift, times (aH)^3, so that a mode can
 /// find cheaply whether a fast but smooth feature lies between the depth where it could start and where it would:
 /// local vacuum data started after such a feature miss the excitation it left (see <see cref="ModeIntegrator"/>).
+/// It also counts the extrema of e2 (sign changes of d e2/dN = e2 e3 between grid points), from which
+/// <see cref="MaxOscillationFrequency"/> measures how fast the background oscillates (an oscillating term in V):
+/// modes resonate with it at -k tau ~ omega/2 and must start deeper than that.
 /// </summary>
 public sealed class FrictionScan
 {
@@ -24,6 +27,9 @@ public sealed class FrictionScan
     private readonly double[] _lnAH; // ln(aH) at unit V scale, so that one table serves every rescaled view
     private readonly double _lnSqrtScale;
     private readonly double[] _logDrift;
+    private readonly double[] _slopeE2; // d e2/dN at the grid points
+    private readonly int[] _extremaAfter; // extrema of e2 in the cells at and after each index
+    private double _lastExtremum = double.NaN; // e2 at the last extremum counted (the table fills backwards)
     private readonly double[] _sourceMax; // suffix maximum of ln G - 2 ln(aH) (unit V scale): the later sourced growth
     private readonly object _gate = new();
     private int _lo; // lowest grid index computed so far (entries at and above it are final)
@@ -43,6 +49,8 @@ public sealed class FrictionScan
         _nuT = new double[m];
         _lnAH = new double[m];
         _logDrift = new double[m - 1];
+        _slopeE2 = new double[m];
+        _extremaAfter = new int[m];
         _sourceMax = new double[m];
         _lo = m;
     }
@@ -86,7 +94,18 @@ public sealed class FrictionScan
                 _nuS[i] = ModeIntegrator.ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
                 _nuT[i] = ModeIntegrator.TensorIndexOf(p.Epsilon1);
                 _lnAH[i] = n + Math.Log(p.H) - _lnSqrtScale;
+                _slopeE2[i] = p.Epsilon2 * p.Epsilon3;
                 if (i == m - 1) { _logG[i] = 0.0; _sourceMax[i] = -2.0 * _lnAH[i]; continue; }
+                // An extremum counts when e2 has swung by more than MinSwing since the last one counted: round-off
+                // wiggles of a constant e2 (power law) are not an oscillation.
+                bool extremum = _slopeE2[i] * _slopeE2[i + 1] < 0 || (_slopeE2[i] != 0 && _slopeE2[i + 1] == 0);
+                bool counted = false;
+                if (extremum)
+                {
+                    if (double.IsNaN(_lastExtremum)) _lastExtremum = p.Epsilon2;
+                    else if (Math.Abs(p.Epsilon2 - _lastExtremum) > MinSwing) { counted = true; _lastExtremum = p.Epsilon2; }
+                }
+                _extremaAfter[i] = _extremaAfter[i + 1] + (counted ? 1 : 0);
                 // The smaller end value of F over the cell: conservative.
                 double fc = Math.Min(_f[i], _f[i + 1]);
                 _logG[i] = Math.Max(0.0, _logG[i + 1] - fc * _dn);
@@ -237,6 +256,48 @@ public sealed class FrictionScan
             if (_logDrift[i] > limit) return _n0 + i * _dn;
         return double.NaN;
     }
+
+    /// <summary>
+    /// Smallest swing of e2 between successive extrema that counts as an oscillation. A resonance of swing s moves P_s by
+    /// about (s/4) sqrt(2 pi/omega) &lt;= 0.63 s (the first-order resonant amplitude with e2 = 6 b sin), so smaller swings
+    /// matter below 1e-8 relative.
+    /// </summary>
+    public const double MinSwing = 1e-8;
+
+    /// <summary>Width in e-folds of the window over which extrema of e2 are counted.</summary>
+    public const double FrequencyWindow = 2.0;
+
+    /// <summary>Fewest extrema of e2 in one window (two periods) that count as an oscillation; fewer give frequency 0.</summary>
+    public const int MinExtrema = 4;
+
+    /// <summary>
+    /// The largest local oscillation frequency of the background (radians per e-fold) over windows of
+    /// <see cref="FrequencyWindow"/> e-folds overlapping [<paramref name="nFrom"/>, <paramref name="nTo"/>]:
+    /// pi times the extrema of e2 per e-fold (a sinusoid of frequency omega has omega/pi extrema per e-fold). 0 when no
+    /// window holds <see cref="MinExtrema"/> extrema (a smooth background). The 0.01 e-fold grid resolves omega up to
+    /// about 150; beyond that (an extremum in most cells) the count saturates and <see cref="OscillationUnresolved"/> is true.
+    /// </summary>
+    public double MaxOscillationFrequency(double nFrom, double nTo)
+    {
+        int w = (int)Math.Round(FrequencyWindow / _dn);
+        int cells = _extremaAfter.Length - 1;
+        int i0 = Math.Max(0, (int)Math.Floor((nFrom - _n0) / _dn) - w / 2);
+        int i1 = Math.Min(cells, (int)Math.Ceiling((nTo - _n0) / _dn) + w / 2);
+        if (i1 <= i0) return 0.0;
+        if (i0 < Volatile.Read(ref _lo)) ExtendTo(i0);
+        int best = 0;
+        int step = Math.Max(1, w / 8);
+        for (int a = i0; a < i1; a += step)
+        {
+            int b = Math.Min(cells, a + w);
+            best = Math.Max(best, _extremaAfter[a] - _extremaAfter[b]);
+            if (b == cells) break;
+        }
+        return best < MinExtrema ? 0.0 : Math.PI * best / (w * _dn);
+    }
+
+    /// <summary>True when a frequency this high is beyond what the scan's grid resolves (more than one extremum per three cells).</summary>
+    public bool OscillationUnresolved(double omega) => omega * _dn > Math.PI / 3;
 
     /// <summary>First N covered.</summary>
     public double NFrom => _n0;

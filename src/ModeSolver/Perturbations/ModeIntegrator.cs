@@ -17,7 +17,7 @@ namespace ModeSolver.Perturbations;
 /// The zeta form needs no e3 and keeps zeta, zeta' continuous where V_phi jumps (e2 jumps but stays finite).
 /// A reusable, single-threaded workspace: keep one per thread. The right-hand side does not allocate.
 /// </summary>
-public sealed class ModeIntegrator
+public sealed partial class ModeIntegrator
 {
     private const int MaxDim = 24;
     private readonly double[] _y = new double[MaxDim];
@@ -81,9 +81,9 @@ public sealed class ModeIntegrator
         double stepTol = settings.Tolerance * settings.StepToleranceRatio;
         var options = new OdeOptions
         {
-            RelativeTolerance = stepTol,
-            AbsoluteTolerance = stepTol,
-            AbsoluteToleranceVector = AbsoluteTolerances(stepTol, n0, scan),
+            RelativeTolerance = stepTol * DeepStepScale(xs),
+            AbsoluteTolerance = stepTol * DeepStepScale(xs),
+            AbsoluteToleranceVector = AbsoluteTolerances(stepTol * DeepStepScale(xs), n0, scan),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
             Observer = _observer,
@@ -106,7 +106,9 @@ public sealed class ModeIntegrator
             ? _scan.FeatureExcitationBefore(n0 - 1e-9, _lnK - 0.5 * Math.Log(_bg.VScale)) : 0.0;
         // Beyond this the first-order bound on the missed excitation is no bound (|beta| is no longer small).
         _startInFeature = missed > MissedExcitationLimit;
-        double err = (IntegratorErrorFactor * options.RelativeTolerance + InitialDataError(n0, xs, settings.InitialData) + _deepError + missed) * Cancellation()
+        // The integrator part is that of the nominal step tolerance: deep starts take tighter steps (DeepStepScale) so that
+        // their global error, which grows with the oscillations integrated, stays at the nominal level.
+        double err = (IntegratorErrorFactor * stepTol + InitialDataError(n0, xs, settings.InitialData) + _deepError + missed) * Cancellation()
                      + 0.1 * _stopCorrection;
         return Results(k, n0, n, xs, xf, _frozen, err);
     }
@@ -222,7 +224,8 @@ public sealed class ModeIntegrator
     /// Truncation of the initial data. The local-index Hankel data are exact for constant nu (power law); their error
     /// follows the drift of the index and falls like the cube of the start depth: about 0.2 |d nu/dN| / x^3 measured
     /// on the quadratic model (x = 4..23); reported with a factor 5 margin. The quasi-de Sitter data leave
-    /// about |nu - 3/2| / x^2 (physics.md 3 figures).
+    /// about 1.5 |nu - 3/2| / x^2 in P (the x^-2 term of the Hankel asymptotic series, Abramowitz &amp; Stegun 9.2.7,
+    /// (4 nu^2 - 1)(4 nu^2 - 9)/(128 x^2), against nu = 3/2), reported as 2 |nu - 3/2| / x^2.
     /// </summary>
     private double InitialDataError(double n0, double xs, InitialDataKind kind)
     {
@@ -247,7 +250,8 @@ public sealed class ModeIntegrator
             dNu = Math.Max(dNu, Math.Abs(TensorIndex(hi) - TensorIndex(lo)) / (hi - lo));
             dev = Math.Max(dev, Math.Abs(TensorIndex(n0) - 1.5));
         }
-        return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : dev / (xs * xs) + dNu / (xs * xs * xs);
+        dNu = Math.Max(dNu, OscillatingDrift(n0));
+        return kind == InitialDataKind.LocalIndexHankel ? dNu / (xs * xs * xs) : 2.0 * dev / (xs * xs) + dNu / (xs * xs * xs);
     }
 
     private double ScalarIndex(double n)
@@ -313,8 +317,8 @@ public sealed class ModeIntegrator
         SetInitialData(n0, settings.InitialData);
         var options = new OdeOptions
         {
-            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio,
-            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio,
+            RelativeTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
+            AbsoluteTolerance = settings.Tolerance * settings.StepToleranceRatio * DeepStepScale(xs),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
         };
@@ -373,6 +377,7 @@ public sealed class ModeIntegrator
     /// </summary>
     private double StartTime(ref double depth, double tol, InitialDataKind kind, FrictionScan? scan = null)
     {
+        _oscScan = scan ?? FrictionScan.FromStart(_bg);
         double nA = _bg.NStart;
         double lnDepthA = LnDepth(nA);
         if (lnDepthA < Math.Log(depth))
@@ -416,6 +421,7 @@ public sealed class ModeIntegrator
                 }
             }
         }
+        ResonantStart(ref n, ref depth, nA, lnDepthA, tol, kind, scan);
         var ns = _bg.NonSmoothTimes;
         for (int i = 0; i < ns.Count; i++)
         {

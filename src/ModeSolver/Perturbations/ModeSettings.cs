@@ -31,7 +31,8 @@ public sealed record ModeSettings
     /// Smallest k/aH at the start; 0 chooses it from <see cref="Tolerance"/> and <see cref="InitialData"/> (7 at 1e-6 for the
     /// Hankel data, at most 20: deeper starts add integration error to the second k-derivative, whose block is ~(k/aH)^2
     /// larger inside the horizon than after exit). The start goes deeper where the estimated initial-data error exceeds the
-    /// tolerance, and before any non-smooth point the mode is inside the horizon at.
+    /// tolerance, before any non-smooth point the mode is inside the horizon at, and to at least twice the background's
+    /// oscillation frequency per e-fold where the background oscillates (resonant features).
     /// </summary>
     public double StartDepth { get; init; }
 

@@ -195,6 +195,7 @@ public static class SpectrumPipeline
 
         if (Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) > kr.Tolerance) warnings.Add(ToleranceWarning(spectrum, kMpc, exact.ErrorEstimate, kr.Tolerance));
         if (unbounded is not null) warnings.Add(unbounded);
+        if (exact.DeepStartWarning() is string deep) warnings.Add(deep);
         var srSet = run.SlowRoll;
         var pivotSlowRoll = new PivotSlowRoll(Estimate(srSet.FirstOrder), Estimate(srSet.SecondOrder), Estimate(srSet.Potential));
 

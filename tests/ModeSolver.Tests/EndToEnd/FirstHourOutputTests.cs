@@ -182,8 +182,9 @@ public sealed class FirstHourOutputTests(FirstHourOutputTests.Runs runs) : IClas
         Assert.True(run.Code == 0, run.Err);
         var warning = (run.Out + run.Err).Split('\n').Single(l => l.Contains("P_s exceeds 1"));
         Assert.Contains("linear perturbation theory breaks down", warning);
-        // The modes through the dip miss the default tolerance: one warning line says so.
-        Assert.Single((run.Out + run.Err).Split('\n'), l => l.Contains("warning: tolerance not met: the estimated relative error reaches"));
+        // Where the modes through the dip miss the default tolerance, one warning line says so, not one per k (with the
+        // tighter steps of deep starts they now meet it: largest estimate 7.1e-7, was 2e-6 at k = 1e14 /Mpc).
+        Assert.True((run.Out + run.Err).Split('\n').Count(l => l.Contains("warning: tolerance not met: the estimated relative error reaches")) <= 1);
         var flags = run.Out.Split('\n').Where(l => l.TrimStart().StartsWith('[')).ToArray();
         Assert.InRange(flags.Length, 1, 4);
         Assert.Contains(flags, f => f.Contains("adjacent ranges merged"));

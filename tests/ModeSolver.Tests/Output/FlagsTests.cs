@@ -99,7 +99,7 @@ public class FlagsTests
         var s = FlagSettings.Default;
         Assert.Equal(0.0042, s.SigmaNs);       // Planck 2018 X, A&A 641, A10
         Assert.Equal(0.018, s.SigmaR, 15);     // BICEP/Keck 2021 95% bound 0.036, halved (common practice)
-        Assert.Equal(0.013, s.SigmaAlphaS);    // Planck 2018 X (from memory)
+        Assert.Equal(0.0067, s.SigmaAlphaS);   // Planck 2018 X, -0.0045 +- 0.0067 (from memory)
         Assert.Equal(0.01, s.SpectrumThreshold);
         Assert.Equal(0.1, s.PivotFraction);
         Assert.Throws<ArgumentException>(() => (s with { SigmaNs = -1 }).Validate());
