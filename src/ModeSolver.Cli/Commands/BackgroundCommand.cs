@@ -99,6 +99,7 @@ public static class BackgroundCommand
         output.WriteLine(string.Format(inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "exact (one mode)", e.Ps, e.Ns, e.R, e.AlphaS, e.Nt));
         foreach (var sr in new[] { run.SlowRoll.SecondOrder, run.SlowRoll.FirstOrder, run.SlowRoll.Potential })
             output.WriteLine(string.Format(inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "slow roll, " + sr.Order, sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt));
+        if (bg.ContinuationStop is string stop) output.WriteLine("  note: " + TextSafety.Printable(stop));
         if (bg.ContinuationNote is string stopped) error.WriteLine("modesolver: warning: " + TextSafety.Printable(stopped));
         return 0;
     }

@@ -30,6 +30,7 @@ public sealed class BackgroundSolution : IBackground
         public required double NEnd { get; init; }
         public required double Origin { get; init; }
         public required string? ContinuationNote { get; init; }
+        public required string? ContinuationStop { get; init; }
         public required double[] EndCrossings { get; init; }
         public required double[] RisingCrossings { get; init; }
         public required double[] NonSmoothTimes { get; init; }
@@ -93,6 +94,13 @@ public sealed class BackgroundSolution : IBackground
     /// </summary>
     public string? ContinuationNote => _shared.ContinuationNote;
 
+    /// <summary>
+    /// Null unless the continuation after the end of inflation stopped early as expected (fast oscillations about a smooth
+    /// minimum, after a stated number of oscillations): then the line saying where and why, a note
+    /// rather than a warning (the background then ends there, <see cref="NStop"/>).
+    /// </summary>
+    public string? ContinuationStop => _shared.ContinuationStop;
+
     /// <summary>True when inflation was ended by <see cref="BackgroundSettings.PhiEnd"/> rather than by epsilon_1 = 1.</summary>
     public bool EndedAtPhiEnd => _shared.EndedAtPhiEnd;
 
@@ -125,7 +133,7 @@ public sealed class BackgroundSolution : IBackground
     public double Origin => _shared.Origin;
 
     internal static BackgroundSolution Create(IInflatonTheory theory, List<BackgroundSegment> segments, double nEnd,
-        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd, string? continuationNote)
+        List<double> crossings, List<double> rising, List<double> nonSmooth, bool endedAtPhiEnd, string? continuationNote, string? continuationStop = null)
     {
         double origin = nEnd > LongBackgroundEFolds ? nEnd : 0.0;
         if (origin != 0)
@@ -161,7 +169,7 @@ public sealed class BackgroundSolution : IBackground
 
         var shared0 = new Shared
         {
-            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd, Origin = origin, ContinuationNote = continuationNote,
+            Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd, Origin = origin, ContinuationNote = continuationNote, ContinuationStop = continuationStop,
             EndCrossings = crossings.ToArray(), RisingCrossings = rising.ToArray(), NonSmoothTimes = nonSmooth.ToArray(),
             EndedAtPhiEnd = endedAtPhiEnd, GridN = gridN.ToArray(), GridPhi = new double[gridN.Count],
             GridEndIndex = endIndex, SuffixMinLnAH = new double[endIndex + 1],

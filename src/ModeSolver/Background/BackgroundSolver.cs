@@ -142,6 +142,25 @@ public static class BackgroundSolver
 
         private int _continuationSteps;
 
+        /// <summary>
+        /// Oscillations about a smooth minimum after which a fast continuation stops (see <see cref="FastOscillationRatio"/>):
+        /// enough to show the oscillation's shape and amplitude in the plots and the post-inflation epsilon_1, which are all
+        /// the continuation feeds (the pivot, the modes and the spectra end before the end of inflation).
+        /// </summary>
+        public const int ContinuationOscillations = 20;
+
+        /// <summary>
+        /// omega/H (measured from the oscillations' period in N) above which the continuation stops after
+        /// <see cref="ContinuationOscillations"/> oscillations instead of following the planned e-folds after the end: beyond
+        /// it the remaining planned e-folds would take more than ~30 oscillations per e-fold, each a dozen steps or more.
+        /// </summary>
+        public const double FastOscillationRatio = 200;
+
+        /// <summary>The fast continuation stops only when the planned e-folds left would take more oscillations than this.</summary>
+        public const double RemainingOscillationsToStop = 10 * ContinuationOscillations;
+
+        private string? _continuationStop;
+
         private OdeSolution Integrate(IOdeMethod method, RightHandSide rhs, double t0, double[] y0, double tEnd, List<EventSpec> events, int? maxSteps = null)
         {
             bool continuation = ReferenceEquals(rhs, _regular);
@@ -283,7 +302,7 @@ public static class BackgroundSolver
             int idx = _s.EndCrossing >= 0 ? _s.EndCrossing : count + _s.EndCrossing;
             if (idx < 0 || idx >= count)
                 throw new PhysicsException($"The end-crossing choice {_s.EndCrossing} does not exist: epsilon_1 rose through 1 only {count} time(s) (at N = {string.Join(", ", _rising.Select(r => r.ToString("G8")))}); choose an index in range.");
-            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false, _continuationNote);
+            return BackgroundSolution.Create(_theory, _segments, _rising[idx], _crossings, _rising, _nonSmooth, endedAtPhiEnd: false, _continuationNote, _continuationStop);
         }
 
         /// <summary>
@@ -336,6 +355,26 @@ public static class BackgroundSolver
                 $"the continuation after the end of inflation stopped {failure.T - nUp:G3} e-folds after the end (N = {failure.T:G8}, phi = {phi:G6}): {why}; the background is recorded up to N = {reached:G8}{(pending ? " and the last fall of epsilon_1 below 1 is not counted as inflation resuming" : "")}");
         }
 
+        /// <summary>
+        /// After <see cref="ContinuationOscillations"/> oscillations about a smooth minimum (no kink met since the end)
+        /// at omega/H above <see cref="FastOscillationRatio"/>, with more than
+        /// <see cref="RemainingOscillationsToStop"/> oscillations left to the planned stop: records why the continuation stops there
+        /// (a note, not a warning: this is the expected behaviour, e.g. the Palatini map at large xi, omega/H ~ sqrt(xi))
+        /// and returns true.
+        /// </summary>
+        private bool FastOscillationsStop(double nUp, double n, double stop, int dips, double firstDip, int kinksBefore)
+        {
+            if (dips < 2 * ContinuationOscillations + 1 || _nonSmooth.Count != kinksBefore || !(n > firstDip)) return false;
+            double oscillations = 0.5 * (dips - 1);
+            double omegaOverH = 2 * Math.PI * oscillations / (n - firstDip);
+            if (!(omegaOverH > FastOscillationRatio) || !(n < stop)) return false;
+            double remaining = (stop - n) * omegaOverH / (2 * Math.PI);
+            if (!(remaining > RemainingOscillationsToStop)) return false; // nearly done: cheaper to finish as planned
+            _continuationStop = string.Create(CultureInfo.InvariantCulture,
+                $"the continuation after the end of inflation stopped after {ContinuationOscillations} oscillations about the minimum, {n - nUp:G3} e-folds after the end (N = {n:G8}): omega/H ~ {omegaOverH:G3}, and the planned {_s.EFoldsAfterEnd:G3} e-folds would take ~{remaining:G2} more oscillations; the continuation only feeds the plots and the post-inflation epsilon_1, the background is recorded up to there");
+            return true;
+        }
+
         /// <summary>Runs past an end; returns whether inflation resumed, with the state (phi, phi') and N to resume from.</summary>
         private (bool Resumed, double[] Y, double N) Continue(double nUp, double[] stateAtUp)
         {
@@ -345,6 +384,8 @@ public static class BackgroundSolver
             double hsq = BackgroundEquations.ConstraintHubbleSquared(_theory, stateAtUp[0], stateAtUp[1]);
             double[] y = { stateAtUp[0], stateAtUp[1], 0.5 * Math.Log(hsq) };
             double pendingFall = double.NaN;
+            int dips = 0, kinksBefore = _nonSmooth.Count;
+            double firstDip = double.NaN;
             while (n < stop || !double.IsNaN(pendingFall))
             {
                 var specs = new List<EventSpec>();
@@ -411,6 +452,9 @@ public static class BackgroundSolver
                     case Kind.Rise:
                         pendingFall = double.NaN; // a short accelerating dip of an oscillation, not inflation
                         SetRestart(y[0], y[1], atKink: false);
+                        // epsilon_1 dips below 1 at each turning point: two dips per oscillation.
+                        if (dips++ == 0) firstDip = n;
+                        if (FastOscillationsStop(nUp, n, stop, dips, firstDip, kinksBefore)) return (false, y, n);
                         break;
                 }
             }

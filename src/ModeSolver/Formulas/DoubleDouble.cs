@@ -18,6 +18,7 @@ internal readonly struct DoubleDouble
     /// <summary>ln 2 to double-double precision (0.69314718055994530941723212145817656807...).</summary>
     private static readonly DoubleDouble Ln2 = new(0.6931471805599453, 2.3190468138462996e-17);
 
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static implicit operator DoubleDouble(double x) => new(x);
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
@@ -34,6 +35,7 @@ internal readonly struct DoubleDouble
         return (s, (a - (s - bb)) + (b - bb));
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static DoubleDouble operator +(DoubleDouble x, DoubleDouble y)
     {
         var (s, e) = TwoSum(x.Hi, y.Hi);
@@ -43,10 +45,13 @@ internal readonly struct DoubleDouble
         return QuickTwoSum(r.Hi, r.Lo + f);
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static DoubleDouble operator -(DoubleDouble x) => new(-x.Hi, -x.Lo);
 
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static DoubleDouble operator -(DoubleDouble x, DoubleDouble y) => x + -y;
 
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static DoubleDouble operator *(DoubleDouble x, DoubleDouble y)
     {
         double p = x.Hi * y.Hi;
@@ -55,6 +60,7 @@ internal readonly struct DoubleDouble
         return QuickTwoSum(p, e);
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static DoubleDouble operator /(DoubleDouble x, DoubleDouble y)
     {
         double q1 = x.Hi / y.Hi;
@@ -68,6 +74,7 @@ internal readonly struct DoubleDouble
     /// <summary>x * 2^n, exact.</summary>
     public static DoubleDouble ScaleB(DoubleDouble x, int n) => new(Math.ScaleB(x.Hi, n), Math.ScaleB(x.Lo, n));
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static DoubleDouble Sqrt(DoubleDouble a)
     {
         if (!(a.Hi > 0)) return new DoubleDouble(Math.Sqrt(a.Hi));
@@ -76,6 +83,7 @@ internal readonly struct DoubleDouble
         return y + (a - yy) / (2.0 * y); // one Newton step doubles the precision
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static DoubleDouble Exp(DoubleDouble a)
     {
         if (a.Hi > 709.7) return new DoubleDouble(double.PositiveInfinity);
@@ -95,6 +103,7 @@ internal readonly struct DoubleDouble
         return ScaleB(sum + 1.0, (int)k);
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static DoubleDouble Log(DoubleDouble a)
     {
         if (!(a.Hi > 0) || !double.IsFinite(a.Hi)) return new DoubleDouble(Math.Log(a.Hi));

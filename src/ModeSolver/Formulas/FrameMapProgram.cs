@@ -64,6 +64,7 @@ internal sealed class FrameMapProgram
     /// double evaluation loses the slope of a plateau to cancellation. About 30 times slower than <see cref="Evaluate"/>.
     /// </summary>
     [System.Runtime.CompilerServices.SkipLocalsInit]
+    [System.Runtime.CompilerServices.MethodImpl(System.Runtime.CompilerServices.MethodImplOptions.AggressiveOptimization)]
     public JetPair EvaluateExtended(double phi)
     {
         Span<DoubleDouble> s = stackalloc DoubleDouble[_program.RegisterCount * 4];

@@ -192,6 +192,7 @@ public sealed record PivotSlowRoll(SlowRollEstimate FirstOrder, SlowRollEstimate
 /// <param name="WindowStart">N at which k_min exits the horizon.</param>
 /// <param name="WindowEnd">N at which k_max exits the horizon.</param>
 /// <param name="Epsilon1Crossings">Every N where epsilon_1 crosses 1, in order.</param>
+/// <param name="ContinuationStop">Why the continuation after the end stopped early as expected (fast oscillations), or null.</param>
 public sealed record BackgroundSamples(
     ImmutableArray<double> N,
     ImmutableArray<double> Phi,
@@ -204,7 +205,8 @@ public sealed record BackgroundSamples(
     double NPivot,
     double WindowStart,
     double WindowEnd,
-    ImmutableArray<double> Epsilon1Crossings);
+    ImmutableArray<double> Epsilon1Crossings,
+    string? ContinuationStop = null);
 
 /// <summary>Exact spectrum samples, increasing k (all arrays the same length).</summary>
 /// <param name="K">k in 1/Mpc.</param>

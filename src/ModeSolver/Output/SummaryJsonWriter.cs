@@ -94,6 +94,7 @@ public static class SummaryJsonWriter
         w.WriteStartArray("epsilon_1_crossings_N");
         foreach (var x in r.Background.Epsilon1Crossings) Num(w, x);
         w.WriteEndArray();
+        if (r.Background.ContinuationStop is string stop) w.WriteString("continuation_stop", stop);
         w.WriteEndObject();
 
         var m = r.Model;

@@ -343,7 +343,7 @@ public static class SpectrumPipeline
         double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
         // Recorded in e-folds since the start whatever the background's internal origin (long backgrounds count from the end).
         return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd - a, pivot.NPivot - a,
-            windowStart - a, windowEnd - a, [.. bg.EndCrossings.Select(c => c - a)]);
+            windowStart - a, windowEnd - a, [.. bg.EndCrossings.Select(c => c - a)], bg.ContinuationStop);
     }
 
     /// <summary>
