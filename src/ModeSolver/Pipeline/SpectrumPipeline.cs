@@ -182,18 +182,19 @@ public static class SpectrumPipeline
 
         var exact = run.Exact;
         string? unbounded = UnboundedWarning(spectrum, kMpc);
+        double maxRelError = Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate);
         var pivotResults = new PivotResults(
             Ns: exact.Ns, AlphaS: exact.AlphaS, R: exact.R, Nt: exact.Nt, As: exact.Ps, KPivot: pivot.KPivot,
             NStar: pivot.NStar, PhiStar: pivot.PhiStar, HStar: pivot.HStar, EnergyScaleGeV: pivot.VStarQuarterGeV,
             VScale: pivot.VScale, NTotal: pivot.NTotal, NReh: pivot.NReh,
-            MaxRelError: Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate),
+            MaxRelError: maxRelError,
             RhsEvaluationsPerMode: spectrum.MeanRhsEvaluationsPerMode)
         {
             Errors = exact.Errors,
-            ToleranceMet = Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) <= kr.Tolerance && unbounded is null,
+            ToleranceMet = maxRelError <= kr.Tolerance && unbounded is null,
         };
 
-        if (Math.Max(spectrum.MaxRelativeError, exact.ErrorEstimate) > kr.Tolerance) warnings.Add(ToleranceWarning(spectrum, kMpc, exact.ErrorEstimate, kr.Tolerance));
+        if (maxRelError > kr.Tolerance) warnings.Add(ToleranceWarning(spectrum, kMpc, exact.ErrorEstimate, kr.Tolerance));
         if (unbounded is not null) warnings.Add(unbounded);
         if (exact.DeepStartWarning() is string deep) warnings.Add(deep);
         var srSet = run.SlowRoll;
@@ -272,7 +273,8 @@ public static class SpectrumPipeline
         }
         else if (k2 >= pivot.KMinMpc && k2 <= pivot.KMaxMpc)
         {
-            r002 = PivotValues.Compute(pivot.Background, kb, Math.Min(kr.Tolerance, 1e-6)).R;
+            // The same mode as PivotValues.Compute solves first; its tighter error check is not needed for r alone.
+            r002 = new Perturbations.ModeIntegrator().Solve(pivot.Background, kb, new Perturbations.ModeSettings { Tolerance = Math.Min(kr.Tolerance, 1e-6) }).R;
             source = "mode";
         }
         else source = string.Create(CultureInfo.InvariantCulture, $"unavailable: 0.002 /Mpc is outside the k range the background serves [{pivot.KMinMpc:G3}, {pivot.KMaxMpc:G3}] /Mpc");
