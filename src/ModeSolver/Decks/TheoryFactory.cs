@@ -65,9 +65,5 @@ public static class TheoryFactory
     }
 
     /// <summary>A formula as an <see cref="IDerivativeFunction"/> (five derivatives, enough for the metric frame map).</summary>
-    public static IDerivativeFunction Wrap(Formula formula)
-    {
-        ArgumentNullException.ThrowIfNull(formula);
-        return new DerivativeFunction(formula.EvaluateDerivatives, Math.Min(Formula.MaxOrder, 6), formula.NonSmoothPoints, formula.Text);
-    }
+    public static IDerivativeFunction Wrap(Formula formula) => DerivativeFunction.FromFormula(formula);
 }

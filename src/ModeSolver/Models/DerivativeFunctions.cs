@@ -32,6 +32,13 @@ public sealed class DerivativeFunction : IDerivativeFunction
         Text = text;
     }
 
+    /// <summary>A formula as a derivative function (six derivatives at most, enough for the metric frame map).</summary>
+    public static DerivativeFunction FromFormula(Formulas.Formula formula)
+    {
+        ArgumentNullException.ThrowIfNull(formula);
+        return new DerivativeFunction(formula.EvaluateDerivatives, Math.Min(Formulas.Formula.MaxOrder, 6), formula.NonSmoothPoints, formula.Text);
+    }
+
     /// <summary>Human-readable form (may be empty).</summary>
     public string Text { get; }
 

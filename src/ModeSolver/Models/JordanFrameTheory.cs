@@ -40,8 +40,8 @@ public sealed class JordanFrameTheory : IValidatedTheory
         ArgumentNullException.ThrowIfNull(omegaSquared);
         ArgumentNullException.ThrowIfNull(potentialJ);
         var fused = Formulas.FrameMapProgram.TryCreate(omegaSquared, kineticJ, potentialJ, palatini);
-        return new JordanFrameTheory(Decks.TheoryFactory.Wrap(omegaSquared), kineticJ is null ? null : Decks.TheoryFactory.Wrap(kineticJ),
-            Decks.TheoryFactory.Wrap(potentialJ), palatini, description, null, fused, false);
+        return new JordanFrameTheory(DerivativeFunction.FromFormula(omegaSquared), kineticJ is null ? null : DerivativeFunction.FromFormula(kineticJ),
+            DerivativeFunction.FromFormula(potentialJ), palatini, description, null, fused, false);
     }
 
     private JordanFrameTheory(IDerivativeFunction omegaSquared, IDerivativeFunction? kineticJ, IDerivativeFunction potentialJ,
