@@ -66,14 +66,14 @@ public class PipelinePhysicsTests
         Assert.True(s.Ps[^1] / s.Ps[0] > 100, "P_s must end well above its level before the dip");
 
         // Byrnes, Cole & Patil 2019 (JCAP 06, 028): P_s of a single canonical field grows no faster than ~k^4. Right after
-        // the interference dip the local index of |A - B k^2|^2 is 4 x^2/(x^2 - 1), x = k/k_dip (algebra): above 4 by
-        // 1/(x^2 - 1), e.g. 0.125 at x = 3. So compare n_s - 1 with 4 + 0.25 from 3 k_dip on; nearer the dip it is
-        // dominated by the near-zero of P_s and is not a growth rate.
+        // the interference dip the local index of |A - B k^2|^2 ~ (1 - x^2)^2, x = k/k_dip, is 2 d ln|1 - x^2|/d ln x =
+        // 4 x^2/(x^2 - 1) (algebra): above 4 by 4/(x^2 - 1), i.e. 4.5 at x = 3 and falling towards 4 beyond. So compare
+        // n_s - 1 with 4.5 from 3 k_dip on; nearer the dip it is dominated by the near-zero of P_s and is not a growth rate.
         double maxSlope = double.NegativeInfinity;
         for (int i = dip; i < s.K.Length; i++)
             if (s.K[i] >= 3 * kDip) maxSlope = Math.Max(maxSlope, s.Ns[i] - 1);
         Assert.True(maxSlope > 2.5, $"the growth after the dip should be steep (max d ln P/d ln k = {maxSlope:F3})");
-        Assert.True(maxSlope <= 4.25, $"d ln P_s / d ln k reaches {maxSlope:F3} beyond 3 k_dip");
+        Assert.True(maxSlope <= 4.5, $"d ln P_s / d ln k reaches {maxSlope:F3} beyond 3 k_dip");
 
         // Slow roll is flagged over the enhanced range and the ultra-slow-roll phase is reported.
         Assert.Contains(report.Flags, f => f.Kind == FlagKinds.SpectrumDeviation && f.Quantity == "P_s"

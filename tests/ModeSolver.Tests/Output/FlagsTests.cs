@@ -109,7 +109,7 @@ public class FlagsTests
     public void Background_phase_inside_the_window_gives_an_N_range_clipped_to_the_window()
     {
         var n = Enumerable.Range(0, 601).Select(i => i * 0.1).ToArray();
-        // epsilon_1: 0.01 with a triangular excursion to 0.31 centred on N = 20 (above 0.1 for |N - 20| < 1.3).
+        // epsilon_1: 0.01 with a triangular excursion to 0.31 centred on N = 20 (above 0.1 for |N - 20| < 1.4: 0.3 (1 - d/2) > 0.09 for d < 1.4).
         var e1 = n.Select(x => 0.01 + Math.Max(0, 0.3 * (1 - Math.Abs(x - 20) / 2.0))).ToArray();
         var flags = Flags.BackgroundPhases(n, e1, "epsilon_1", 0.1, 10, 30);
         var f = Assert.Single(flags);
