@@ -45,7 +45,7 @@ if (args.Length >= 2 && args[0] == "--warm-deck")
     int reps = args.Length >= 3 ? int.Parse(args[2], System.Globalization.CultureInfo.InvariantCulture) : 21;
     for (int i = 0; i < 40; i++) SpectrumPipeline.Run(s); // past tiered JIT
     var t = new double[reps];
-    ModeSolver.Output.RunReport? last = null;
+    ModeSolver.Report.RunReport? last = null;
     for (int i = 0; i < reps; i++) { last = SpectrumPipeline.Run(s); t[i] = last.Statistics.WallSeconds; }
     Array.Sort(t);
     Console.WriteLine(FormattableString.Invariant($"warm_ms {t[reps / 2] * 1e3:F3} modes {last!.Statistics.ModeCount} rhs_per_mode {last.Pivot.RhsEvaluationsPerMode:F1} spectrum_rhs {last.Statistics.RhsEvaluations}"));

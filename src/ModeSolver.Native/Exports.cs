@@ -1,5 +1,6 @@
 using System.Runtime.InteropServices;
 using ModeSolver.Output;
+using ModeSolver.Report;
 
 namespace ModeSolver.Native;
 

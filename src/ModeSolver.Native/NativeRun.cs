@@ -4,6 +4,7 @@ using ModeSolver.Decks;
 using ModeSolver.Output;
 using ModeSolver.Pipeline;
 using ModeSolver.Spectra;
+using ModeSolver.Report;
 
 namespace ModeSolver.Native;
 

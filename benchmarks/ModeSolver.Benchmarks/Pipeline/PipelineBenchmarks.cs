@@ -4,6 +4,7 @@ using ModeSolver.Decks;
 using ModeSolver.Diagnostics;
 using ModeSolver.Pipeline;
 using ModeSolver.Spectra;
+using ModeSolver.Estimates;
 
 namespace ModeSolver.Benchmarks.Pipeline;
 

@@ -2,6 +2,7 @@ using System.Globalization;
 using ModeSolver.Diagnostics;
 using ModeSolver.Output;
 using Spectre.Console;
+using ModeSolver.Report;
 
 namespace ModeSolver.Cli.Output;
 

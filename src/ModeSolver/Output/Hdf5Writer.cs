@@ -1,6 +1,8 @@
 using System.Collections.Immutable;
 using ModeSolver.Diagnostics;
 using PureHDF;
+using ModeSolver.Report;
+using ModeSolver.Results;
 
 namespace ModeSolver.Output;
 

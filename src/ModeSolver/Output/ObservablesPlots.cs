@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Text;
 using ModeSolver.Observables;
 using ScottPlot;
+using ModeSolver.Report;
 
 namespace ModeSolver.Output;
 

@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text;
+using ModeSolver.Report;
 
 namespace ModeSolver.Output;
 
@@ -60,30 +61,6 @@ public static class PrimordialTableWriter
         using var sw = new StreamWriter(path, false, new UTF8Encoding(false)) { NewLine = "\n" };
         Write(report, sw);
     }
-
-    /// <summary>
-    /// Log-spaced k grid from kMin to kMax (inclusive) with the given number of points per decade (at least 2 points).
-    /// The table's default density (<see cref="DefaultPointsPerDecade"/>) suits cubic-spline interpolation.
-    /// </summary>
-    public static double[] LogGrid(double kMin, double kMax, int pointsPerDecade = DefaultPointsPerDecade)
-    {
-        if (kMin > 0 && kMin == kMax && double.IsFinite(kMax)) return [kMin]; // one wavenumber asked for: one row
-        if (!(kMin > 0) || !(kMax > kMin) || !double.IsFinite(kMax))
-            throw new ArgumentException($"table k range must satisfy 0 < k_min < k_max, got [{kMin.ToString("R", Inv)}, {kMax.ToString("R", Inv)}]");
-        if (pointsPerDecade < 1)
-            throw new ArgumentException($"table density must be at least 1 point per decade, got {pointsPerDecade}");
-        double decades = Math.Log10(kMax / kMin);
-        int n = Math.Max(2, (int)Math.Ceiling(decades * pointsPerDecade) + 1);
-        var k = new double[n];
-        double l0 = Math.Log(kMin), dl = (Math.Log(kMax) - l0) / (n - 1);
-        for (int i = 0; i < n; i++) k[i] = Math.Exp(l0 + i * dl);
-        k[0] = kMin;
-        k[n - 1] = kMax;
-        return k;
-    }
-
-    /// <summary>Default table density: 50 points per decade in k.</summary>
-    public const int DefaultPointsPerDecade = 50;
 
     private static string OneLine(string s) => TextSafety.Printable(s);
 }

@@ -1,3 +1,4 @@
+using ModeSolver.Report;
 namespace ModeSolver.Output;
 
 /// <summary>One output file of a run: its plain file name and a writer that writes the whole file to a given path.</summary>

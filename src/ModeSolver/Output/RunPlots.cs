@@ -3,6 +3,8 @@ using System.Text;
 using ModeSolver.Diagnostics;
 using ScottPlot;
 using SkiaSharp;
+using ModeSolver.Report;
+using ModeSolver.Results;
 
 namespace ModeSolver.Output;
 

@@ -2,6 +2,8 @@ using System.Text;
 using System.Text.Encodings.Web;
 using System.Text.Json;
 using ModeSolver.Diagnostics;
+using ModeSolver.Report;
+using ModeSolver.Results;
 
 namespace ModeSolver.Output;
 

@@ -10,6 +10,9 @@ using ModeSolver.Observables;
 using ModeSolver.Output;
 using ModeSolver.Physics;
 using ModeSolver.Spectra;
+using ModeSolver.Estimates;
+using ModeSolver.Report;
+using ModeSolver.Results;
 
 namespace ModeSolver.Pipeline;
 
@@ -385,7 +388,7 @@ public static class SpectrumPipeline
 
     private static PrimordialTable Table(PrimordialSpectrum spectrum, PivotSolution pivot, KRangeSpec kr, int perDecade)
     {
-        var grid = PrimordialTableWriter.LogGrid(kr.KMin, kr.KMax, perDecade);
+        var grid = WavenumberGrid.LogSpaced(kr.KMin, kr.KMax, perDecade);
         var ps = new double[grid.Length];
         var pt = new double[grid.Length];
         for (int i = 0; i < grid.Length; i++)
@@ -409,9 +412,9 @@ public static class SpectrumPipeline
             ? string.Create(CultureInfo.InvariantCulture, $"{theory.Description}; V multiplied by V_scale = {vScale:G8}")
             : spec.Describe();
         var frame = spec.Coupling is null ? TheoryFrame.Einstein : spec.Palatini ? TheoryFrame.JordanPalatini : TheoryFrame.JordanMetric;
-        var parameters = ImmutableArray.CreateBuilder<Output.ModelParameter>();
+        var parameters = ImmutableArray.CreateBuilder<Report.ModelParameter>();
         foreach (var kv in spec.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
-            parameters.Add(new Output.ModelParameter(kv.Key, kv.Value));
+            parameters.Add(new Report.ModelParameter(kv.Key, kv.Value));
         if (NormalisedParameters.LambdaOverXiSquared(spec, spec.Parameters) is double lx)
             description += string.Create(CultureInfo.InvariantCulture, $" (lambda/xi^2 = {lx:G6})");
         return new ModelInfo(spec.CatalogueId ?? "formula", description, spec.Potential, spec.Kinetic ?? "1",

@@ -6,6 +6,7 @@ using ModeSolver.Models;
 using ModeSolver.Output;
 using ModeSolver.Physics;
 using ModeSolver.Pipeline;
+using ModeSolver.Results;
 
 namespace ModeSolver.Sweeps;
 

@@ -3,6 +3,8 @@ using ModeSolver.Diagnostics;
 using ModeSolver.Output;
 using ModeSolver.Pipeline;
 using ModeSolver.Tests.Decks;
+using ModeSolver.Report;
+using ModeSolver.Results;
 
 namespace ModeSolver.Tests.EndToEnd;
 

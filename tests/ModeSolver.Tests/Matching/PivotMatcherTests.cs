@@ -3,6 +3,7 @@ using ModeSolver.Diagnostics;
 using ModeSolver.Matching;
 using ModeSolver.Physics;
 using ModeSolver.Tests.Background;
+using ModeSolver.Estimates;
 
 namespace ModeSolver.Tests.Matching;
 

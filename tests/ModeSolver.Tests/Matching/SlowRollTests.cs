@@ -1,6 +1,7 @@
 using ModeSolver.Background;
 using ModeSolver.Diagnostics;
 using ModeSolver.Tests.Background;
+using ModeSolver.Estimates;
 
 namespace ModeSolver.Tests.Matching;
 

@@ -1,6 +1,7 @@
 using System.Collections.Immutable;
 using ModeSolver.Observables;
 using ModeSolver.Output;
+using ModeSolver.Results;
 
 namespace ModeSolver.Tests.Observables;
 

@@ -1,5 +1,6 @@
 using ModeSolver.Decks;
 using ModeSolver.Output;
+using ModeSolver.Spectra;
 
 namespace ModeSolver.Tests.Output;
 
@@ -160,7 +161,7 @@ public class SingleWavenumberGridTests
     [Fact]
     public void Equal_k_min_and_k_max_give_one_row()
     {
-        Assert.Equal([0.05], PrimordialTableWriter.LogGrid(0.05, 0.05));
-        Assert.Throws<ArgumentException>(() => PrimordialTableWriter.LogGrid(0.05, 0.01));
+        Assert.Equal([0.05], WavenumberGrid.LogSpaced(0.05, 0.05));
+        Assert.Throws<ArgumentException>(() => WavenumberGrid.LogSpaced(0.05, 0.01));
     }
 }

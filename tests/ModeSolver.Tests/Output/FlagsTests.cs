@@ -1,5 +1,6 @@
 using ModeSolver.Diagnostics;
 using ModeSolver.Output;
+using ModeSolver.Results;
 
 namespace ModeSolver.Tests.Output;
 

@@ -1,5 +1,6 @@
 using System.Collections.Immutable;
 using ModeSolver.Output;
+using ModeSolver.Report;
 
 namespace ModeSolver.Tests.Output;
 

@@ -1,6 +1,7 @@
 using System.Collections.Immutable;
 using ModeSolver.Output;
 using ModeSolver.Sweeps;
+using ModeSolver.Report;
 
 namespace ModeSolver.Tests.Output;
 

@@ -1,6 +1,9 @@
 using System.Collections.Immutable;
 using ModeSolver.Diagnostics;
 using ModeSolver.Output;
+using ModeSolver.Report;
+using ModeSolver.Results;
+using ModeSolver.Spectra;
 
 namespace ModeSolver.Tests.Output;
 
@@ -42,7 +45,7 @@ internal static class SyntheticReport
         var dphi = n.Select(x => -1.0 / Math.Sqrt(2 * (NEnd - x + 0.5))).ToArray();
         var h = n.Select(x => 1e-5 * Math.Sqrt(NEnd - x + 0.5)).ToArray();
 
-        var tableK = PrimordialTableWriter.LogGrid(1e-6, 10.0);
+        var tableK = WavenumberGrid.LogSpaced(1e-6, 10.0);
         var tablePs = tableK.Select(x => As * Math.Pow(x / KPivot, Ns - 1) * (1 + Bump(x, bumpHeight))).ToArray();
         var tablePt = tableK.Select(x => R * As * Math.Pow(x / KPivot, nt)).ToArray();
 

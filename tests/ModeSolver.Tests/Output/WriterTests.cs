@@ -3,6 +3,7 @@ using System.Globalization;
 using System.Text.Json;
 using ModeSolver.Output;
 using PureHDF;
+using ModeSolver.Spectra;
 
 namespace ModeSolver.Tests.Output;
 
@@ -154,12 +155,12 @@ public class WriterTests
     [Fact]
     public void Table_grid_is_log_spaced_with_the_requested_density()
     {
-        var k = PrimordialTableWriter.LogGrid(1e-6, 10, 50);
+        var k = WavenumberGrid.LogSpaced(1e-6, 10, 50);
         Assert.Equal(351, k.Length);
         Assert.Equal(1e-6, k[0]);
         Assert.Equal(10, k[^1]);
         for (int i = 1; i < k.Length; i++) Assert.Equal(0.02, Math.Log10(k[i] / k[i - 1]), 9);
-        Assert.Throws<ArgumentException>(() => PrimordialTableWriter.LogGrid(1, 0.5));
+        Assert.Throws<ArgumentException>(() => WavenumberGrid.LogSpaced(1, 0.5));
     }
 
     [Fact]

@@ -6,6 +6,7 @@ using ModeSolver.Perturbations;
 using ModeSolver.Physics;
 using ModeSolver.Spectra;
 using ModeSolver.Tests.Background;
+using ModeSolver.Estimates;
 
 namespace ModeSolver.Tests.Perturbations;
 

@@ -1,5 +1,6 @@
 using ModeSolver.Background;
 using ModeSolver.Diagnostics;
+using ModeSolver.Estimates;
 
 namespace ModeSolver.Matching;
 

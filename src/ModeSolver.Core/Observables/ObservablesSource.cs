@@ -1,6 +1,6 @@
 using System.Collections.Immutable;
-using ModeSolver.Output;
 using ModeSolver.Spectra;
+using ModeSolver.Results;
 
 namespace ModeSolver.Observables;
 

@@ -1,5 +1,7 @@
 using ModeSolver.Background;
 using ModeSolver.Diagnostics;
+using ModeSolver.Estimates;
+using ModeSolver.Results;
 
 namespace ModeSolver.Matching;
 

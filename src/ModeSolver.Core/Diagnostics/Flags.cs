@@ -1,6 +1,6 @@
 using System.Collections.Immutable;
 using System.Globalization;
-using ModeSolver.Output;
+using ModeSolver.Results;
 
 namespace ModeSolver.Diagnostics;
 

@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using ModeSolver.Spectra;
 
 namespace ModeSolver.Observables;
 
@@ -139,7 +140,7 @@ public static class InducedGravitationalWaves
         ArgumentNullException.ThrowIfNull(source);
         ArgumentNullException.ThrowIfNull(settings);
         int perDecade = Math.Max(1, settings.GwPointsPerDecade);
-        var grid = Output.PrimordialTableWriter.LogGrid(kLow, kHigh, perDecade); // the same log grid as the primordial table
+        var grid = WavenumberGrid.LogSpaced(kLow, kHigh, perDecade); // the same log grid as the primordial table
         int count = grid.Length;
         double g = settings.GStar;
         double omegaR = settings.OmegaRadiationH2 ?? RadiationEra.RadiationDensityH2;

@@ -1,5 +1,6 @@
 using System.Collections.Immutable;
 using MathNet.Numerics;
+using ModeSolver.Spectra;
 
 namespace ModeSolver.Observables;
 
@@ -101,7 +102,7 @@ public static class PrimordialBlackHoles
         ArgumentNullException.ThrowIfNull(source);
         ArgumentNullException.ThrowIfNull(settings);
         int perDecade = Math.Max(1, settings.PbhPointsPerDecade);
-        var grid = Output.PrimordialTableWriter.LogGrid(kLow, kHigh, perDecade); // the same log grid as the primordial table
+        var grid = WavenumberGrid.LogSpaced(kLow, kHigh, perDecade); // the same log grid as the primordial table
         int count = grid.Length;
         double spectrumError = source.MaxRelError;
         var kh = new double[count]; var m = new double[count]; var sig = new double[count]; var beta = new double[count];

@@ -2,7 +2,7 @@ using ModeSolver.Background;
 using ModeSolver.Models;
 using ModeSolver.Physics;
 
-namespace ModeSolver.Diagnostics;
+namespace ModeSolver.Estimates;
 
 /// <summary>
 /// Slow-roll predictions (physics.md section 4c): Hubble-flow first and second order from (H, e1, e2, e3) at k = aH

@@ -1,4 +1,4 @@
-namespace ModeSolver.Output;
+namespace ModeSolver.Report;
 
 /// <summary>Quantities users quote beside the pivot values, derived from the matched background.</summary>
 /// <param name="TRehGeV">Reheating temperature in GeV (NaN when N_* was given directly).</param>

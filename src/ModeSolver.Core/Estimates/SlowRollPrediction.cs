@@ -1,4 +1,4 @@
-namespace ModeSolver.Diagnostics;
+namespace ModeSolver.Estimates;
 
 /// <summary>A slow-roll estimate of the spectra at one k.</summary>
 /// <param name="Order">"potential", "hubble-1" or "hubble-2".</param>

@@ -1,3 +1,4 @@
+using ModeSolver.Report;
 namespace ModeSolver.Models;
 
 /// <summary>Which way the field rolls from its default start: the sign of -V_phi there.</summary>

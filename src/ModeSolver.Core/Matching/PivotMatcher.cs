@@ -2,6 +2,8 @@ using System.Globalization;
 using ModeSolver.Background;
 using ModeSolver.Diagnostics;
 using ModeSolver.Physics;
+using ModeSolver.Estimates;
+using ModeSolver.Results;
 
 namespace ModeSolver.Matching;
 

@@ -1,3 +1,4 @@
+using ModeSolver.Estimates;
 namespace ModeSolver.Diagnostics;
 
 /// <summary>
