@@ -28,7 +28,8 @@ internal sealed class BunchDaviesData
     /// </summary>
     private const double NarrowDataStep = 0.001, WideDataStep = 0.005;
 
-    private const int MaxWidth = 6 * StateLayout.MaxBlocks;
+    /// <summary>Data width allocated first (two systems of 6 complex entries: zeta and tensor); grown on demand.</summary>
+    private const int InitialWidth = 12;
 
     /// <summary>The data of every system at the points of one stencil.</summary>
     internal sealed class Stencil
@@ -36,16 +37,22 @@ internal sealed class BunchDaviesData
         public Stencil(int points)
         {
             Points = new BackgroundPoint[points];
-            Data = new Complex[points * MaxWidth];
+            Data = new Complex[points * InitialWidth];
             X2 = new double[points];
             C = new double[points];
+        }
+
+        /// <summary>Makes room for <paramref name="width"/> complex entries per point.</summary>
+        public void Reserve(int width)
+        {
+            if (Data.Length < Points.Length * width) Data = new Complex[Points.Length * width];
         }
 
         /// <summary>The background at each point.</summary>
         public readonly BackgroundPoint[] Points;
 
         /// <summary>Data of point j and slot s start at j * Width + SlotOffset(s).</summary>
-        public readonly Complex[] Data;
+        public Complex[] Data { get; private set; }
 
         /// <summary>(k/aH)^2 and c = 1/(1 - e1) at each point.</summary>
         public readonly double[] X2, C;
@@ -85,6 +92,9 @@ internal sealed class BunchDaviesData
             _slotOffset[s] = _width;
             _width += ctx.System(s).VacuumWidth;
         }
+        Point.Reserve(_width);
+        Wide.Reserve(_width);
+        Narrow.Reserve(_width);
         var p0 = bg.At(n0);
         LnRef = -1.5 * n0 - 0.5 * Math.Log(p0.H);
         _x0 = Math.Exp(ctx.LnK - n0) / p0.H;

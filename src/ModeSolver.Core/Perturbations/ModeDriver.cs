@@ -29,6 +29,7 @@ internal sealed class ModeDriver
     private FrictionScan? _scan;
     private double _segLo = double.NegativeInfinity, _segHi = double.PositiveInfinity;
     private double _deepError;
+    private double[]? _atol;
 
     /// <summary>A driver integrating with <paramref name="method"/>.</summary>
     public ModeDriver(IOdeMethod method)
@@ -208,7 +209,9 @@ internal sealed class ModeDriver
     /// </summary>
     private double[] AbsoluteTolerances(double stepTol, double n0, FrictionScan? scan)
     {
-        var atol = new double[_ctx.Layout.Dimension];
+        int dim = _ctx.Layout.Dimension;
+        if (_atol is null || _atol.Length != dim) _atol = new double[dim]; // reused: the options live for this mode only
+        var atol = _atol;
         Array.Fill(atol, stepTol);
         if (_ctx.GrowingSystem < 0) return atol;
         scan ??= ScanFrom(_ctx.Background, n0);
