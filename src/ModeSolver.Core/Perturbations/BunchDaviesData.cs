@@ -105,8 +105,9 @@ internal sealed class BunchDaviesData
             return;
         }
         double e3Slope = Epsilon3Slope(n0);
-        FillStencil(Wide, p0, e3Slope, WideDataStep / Math.Max(1.0, _x0), kind);
-        FillStencil(Narrow, p0, e3Slope, NarrowDataStep / Math.Max(1.0, _x0), kind);
+        FillStencil(Wide, p0, e3Slope, WideDataStep / Math.Max(1.0, _x0), kind, 0, StencilPoints - 1);
+        // The narrow stencil serves only the first derivative block: one 5-point difference at N0 (points 2..6).
+        FillStencil(Narrow, p0, e3Slope, NarrowDataStep / Math.Max(1.0, _x0), kind, 2, 6);
     }
 
     /// <summary>Offset of slot <paramref name="slot"/>'s data within a point.</summary>
@@ -119,11 +120,11 @@ internal sealed class BunchDaviesData
         Put(block, 0, Point.Data[d], Point.Data[d + 1]);
     }
 
-    /// <summary>The local data at N0 + (j - 4) <paramref name="dn"/>, j = 0..8, on the background's jet.</summary>
-    private void FillStencil(Stencil st, BackgroundPoint p0, double e3Slope, double dn, InitialDataKind kind)
+    /// <summary>The local data at N0 + (j - 4) <paramref name="dn"/>, j = <paramref name="first"/>..<paramref name="last"/>, on the background's jet.</summary>
+    private void FillStencil(Stencil st, BackgroundPoint p0, double e3Slope, double dn, InitialDataKind kind, int first, int last)
     {
         st.Dn = dn;
-        for (int j = 0; j < StencilPoints; j++)
+        for (int j = first; j <= last; j++)
         {
             var pj = JetPoint(p0, e3Slope, (j - 4) * dn, out double lnHRatio);
             LocalData(st, j, (j - 4) * dn, pj, lnHRatio, kind);
