@@ -26,6 +26,10 @@ internal sealed class CurvatureModeSystem : DecoupledModeSystem
     public override double FrictionSlope(in BackgroundPoint p) => -(p.Epsilon1 * p.Epsilon2) + p.Epsilon2 * p.Epsilon3;
 
     /// <inheritdoc />
+    public override void Rhs(in BackgroundPoint p, double x2, ReadOnlySpan<double> y, Span<double> dy) =>
+        Rhs(Friction(p), FrictionSlope(p), p.Epsilon1, x2, y, dy);
+
+    /// <inheritdoc />
     public override double LocalIndex(in BackgroundPoint p) => IndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
 
     /// <summary>Local index of the zeta mode from the Hubble-flow parameters (physics.md 3).</summary>

@@ -107,9 +107,15 @@ internal abstract class DecoupledModeSystem : IModeSystem
         for (int j = 0; j < fr.Length; j++) fr[j] = Friction(stencil.Points[j]);
     }
 
-    /// <inheritdoc />
-    public void Rhs(in BackgroundPoint p, double x2, ReadOnlySpan<double> y, Span<double> dy) =>
-        ScaleSubtractedBlocks.Rhs(y, dy, Friction(p), FrictionSlope(p), p.Epsilon1, x2, S1, S2, y.Length > 4);
+    /// <summary>
+    /// Right-hand side of the block. Sealed subclasses override it with the same line, so that the JIT binds their
+    /// friction directly (no virtual call per right-hand side).
+    /// </summary>
+    public abstract void Rhs(in BackgroundPoint p, double x2, ReadOnlySpan<double> y, Span<double> dy);
+
+    /// <summary>The right-hand side for friction <paramref name="f"/> and its slope <paramref name="fp"/>.</summary>
+    protected void Rhs(double f, double fp, double e1, double x2, ReadOnlySpan<double> y, Span<double> dy) =>
+        ScaleSubtractedBlocks.Rhs(y, dy, f, fp, e1, x2, S1, S2, y.Length > 4);
 
     /// <inheritdoc />
     public void Kink(in BackgroundPoint before, in BackgroundPoint after, double x2, Span<double> block)

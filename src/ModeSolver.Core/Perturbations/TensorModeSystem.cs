@@ -24,6 +24,10 @@ internal sealed class TensorModeSystem : DecoupledModeSystem
     public override double FrictionSlope(in BackgroundPoint p) => -(p.Epsilon1 * p.Epsilon2);
 
     /// <inheritdoc />
+    public override void Rhs(in BackgroundPoint p, double x2, ReadOnlySpan<double> y, Span<double> dy) =>
+        Rhs(Friction(p), FrictionSlope(p), p.Epsilon1, x2, y, dy);
+
+    /// <inheritdoc />
     public override double LocalIndex(in BackgroundPoint p) => IndexOf(p.Epsilon1);
 
     /// <summary>Local index of the tensor mode.</summary>
