@@ -53,13 +53,19 @@ internal sealed class FieldJetTable
         _exact = exact;
     }
 
+    // The lookups are compiled optimised at first call: a command-line run is over before tiered compilation would
+    // replace their unoptimised first versions.
+    private const System.Runtime.CompilerServices.MethodImplOptions Hot = System.Runtime.CompilerServices.MethodImplOptions.AggressiveOptimization;
+
     /// <summary>The jets at phi: from the table where an interval passed its check, else the exact evaluation.</summary>
+    [System.Runtime.CompilerServices.MethodImpl(Hot)]
     public JetPair Evaluate(double phi) => TryInterpolate(phi, out var jets) ? jets : _exact(phi);
 
     /// <summary>The exact jets (the table's source).</summary>
     public JetPair Exact(double phi) => _exact(phi);
 
     /// <summary>True with the interpolated jets when phi lies in an interval that passed its check (building it if needed).</summary>
+    [System.Runtime.CompilerServices.MethodImpl(Hot)]
     public bool TryInterpolate(double phi, out JetPair jets)
     {
         jets = default;
@@ -223,12 +229,17 @@ internal sealed class FieldJetTable
         }
 
         /// <summary>The jet in phi at t (phi the field value there): f' = f_u/phi, f'' = (f_uu - f_u)/phi^2, f''' = (f_uuu - 3 f_uu + 2 f_u)/phi^3.</summary>
+        [System.Runtime.CompilerServices.MethodImpl(Hot)]
         public Jet3 At(double t, double phi)
         {
-            Span<double> u = stackalloc double[4];
-            UDerivatives(t, u);
+            var f = _f;
+            var g = _g;
+            double u0 = f[0] + t * (f[1] + t * (f[2] + t * (f[3] + t * (f[4] + t * f[5]))));
+            double u1 = g[0] + t * (g[1] + t * (g[2] + t * (g[3] + t * (g[4] + t * g[5]))));
+            double u2 = (g[1] + t * (2 * g[2] + t * (3 * g[3] + t * (4 * g[4] + t * 5 * g[5])))) * InvStep;
+            double u3 = (2 * g[2] + t * (6 * g[3] + t * (12 * g[4] + t * 20 * g[5]))) * (InvStep * InvStep);
             double r = 1 / phi;
-            return new Jet3(u[0], u[1] * r, (u[2] - u[1]) * r * r, (u[3] - 3 * u[2] + 2 * u[1]) * r * r * r);
+            return new Jet3(u0, u1 * r, (u2 - u1) * r * r, (u3 - 3 * u2 + 2 * u1) * r * r * r);
         }
     }
 
