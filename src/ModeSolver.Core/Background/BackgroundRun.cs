@@ -456,7 +456,8 @@ internal sealed class BackgroundRun
         bool known = failure.State.Length >= 2 * _n;
         string where = known ? DescribeFields(_field, failure.State) : $"{_field.FieldNames[0]} = NaN";
         double vHere = known && AllFinite(failure.State.AsSpan(0, _n)) ? Potential(failure.State) : double.NaN;
-        string why = known && NonFiniteModel(failure.State) is { } bad ? $"the model is not finite there ({bad})"
+        string why = known && _cov is not null && NotPositiveDefinite(failure.State) is { } notPd ? $"the field-space metric G_IJ is not positive definite at {notPd}"
+            : known && NonFiniteModel(failure.State) is { } bad ? $"the model is not finite there ({bad})"
             : vHere < 0 ? $"V < 0 there (V = {vHere:G4}) and the field runs away"
             : failure.Failure == IntegrationFailure.StepBudgetExhausted ? $"its budget of {ContinuationStepBudget} steps ran out (very fast oscillations, or a singular or non-smooth minimum)"
             : $"the integration broke down ({failure.Failure}; the potential is singular or not smooth there)";

@@ -39,6 +39,16 @@ public static class BackgroundSolver
     {
         ArgumentNullException.ThrowIfNull(theory);
         ArgumentNullException.ThrowIfNull(settings);
+        var y0 = Start(theory, settings);
+        var run = new BackgroundRun(new SingleFieldTheory(theory), settings, EndSurface(settings),
+            settings.InflationMethod ?? DefaultMethod(), settings.ReheatingMethod ?? DefaultReheatingMethod());
+        var o = run.Execute(y0);
+        return BackgroundSolution.Create(theory, o.Segments, o.NEnd, o.Crossings, o.Rising, o.NonSmooth, o.EndedAtSurface, o.ContinuationNote, o.ContinuationStop);
+    }
+
+    /// <summary>The checked single-field start (phi0, phi'0), by default on the attractor phi' = -V_phi / (K V).</summary>
+    internal static double[] Start(IInflatonTheory theory, BackgroundSettings settings)
+    {
         double phi0 = settings.Fields0 is { Count: 1 } f ? f[0] : settings.Phi0;
         var (rangeMin, rangeMax) = theory.ValidRange;
         if (!double.IsFinite(phi0))
@@ -59,13 +69,7 @@ public static class BackgroundSolver
             throw new PhysicsException($"epsilon_1 = {e1Start:G6} >= 3 at the start (N = 0, phi = {phi0:G6}, dphi/dN = {dphi0:G6}): the kinetic start is too large (H^2 = V/(3 - epsilon_1) needs epsilon_1 < 3); {(settings.DPhi0 is null ? "the slow-roll attractor velocity -V_phi/(K V) is that large here: start where the potential is flatter, or give a smaller dphi0" : $"lower |dphi0| below {Math.Sqrt(6.0 / k0.Value):G6}")}.");
         if (!(settings.Tolerance > 0 && settings.Tolerance < 1))
             throw new ArgumentOutOfRangeException(nameof(settings), "Tolerance must lie in (0, 1).");
-
-        var inflationMethod = settings.InflationMethod ?? DefaultMethod();
-        var reheatingMethod = settings.ReheatingMethod ?? DefaultReheatingMethod();
-        var end = EndSurface(settings);
-        var run = new BackgroundRun(new SingleFieldTheory(theory), settings, end, inflationMethod, reheatingMethod);
-        var o = run.Execute(new[] { phi0, dphi0 });
-        return BackgroundSolution.Create(theory, o.Segments, o.NEnd, o.Crossings, o.Rising, o.NonSmooth, o.EndedAtSurface, o.ContinuationNote, o.ContinuationStop);
+        return new[] { phi0, dphi0 };
     }
 }
 

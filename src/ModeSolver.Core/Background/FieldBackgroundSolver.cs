@@ -22,6 +22,13 @@ public static class FieldBackgroundSolver
     {
         ArgumentNullException.ThrowIfNull(theory);
         ArgumentNullException.ThrowIfNull(settings);
+        if (theory is SingleFieldTheory single)
+        {
+            // One field: the single-field start and checks (the same numbers as BackgroundSolver).
+            var start = BackgroundSolver.Start(single.Inner, settings);
+            return FieldBackgroundSolution.Create(theory, new BackgroundRun(theory, settings, BackgroundSolver.EndSurface(settings),
+                settings.InflationMethod ?? BackgroundSolver.DefaultMethod(), settings.ReheatingMethod ?? BackgroundSolver.DefaultReheatingMethod()).Execute(start));
+        }
         int n = theory.FieldCount;
         if (n < 1) throw new ArgumentException("a field theory needs at least one field", nameof(theory));
         string names = string.Join(", ", theory.FieldNames);
