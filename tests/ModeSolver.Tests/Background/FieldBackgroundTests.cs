@@ -251,4 +251,52 @@ public class FieldBackgroundTests
         Assert.Contains("needs the field values (phi, chi)", missing.Message);
         foreach (var e in new[] { notPd, count, velocity, missing }) Assert.DoesNotContain('\n', e.Message);
     }
+    /// <summary>V = (phi^2 + chi^2)/2 + 0.5 max(0, s(phi, chi)): the slope changes on the surface s = 0.</summary>
+    private static MetricFieldTheory KinkedQuadratic(FieldSurface kink)
+        => new(new[] { "phi", "chi" }, p => 0.5 * (p[0] * p[0] + p[1] * p[1]) + 0.5 * Math.Max(0.0, kink.Value(p)),
+            gradient: (p, g) =>
+            {
+                double sign = kink.Value(p) >= 0 ? 0.5 : 0.0;
+                // ds/dphi = 1 and ds/dchi = 1 for both surfaces used below (phi - 10, and phi + chi - 17).
+                g[0] = p[0] + sign;
+                g[1] = p[1] + (kink.IsCoordinate ? 0 : sign);
+            },
+            nonSmooth: new[] { kink });
+
+    [Theory]
+    [InlineData(true)]
+    [InlineData(false)]
+    public void NonSmoothSurface_StopsAndRestartsOnIt(bool coordinate)
+    {
+        // The run stops on the kink surface and restarts there (a coordinate surface is snapped onto exactly,
+        // a general one located to the tolerance); the velocity is continuous through it.
+        var kink = coordinate ? FieldSurface.Coordinate(0, 10.0, name: "phi = 10") : FieldSurface.FromFunction("phi + chi = 17", p => p[0] + p[1] - 17);
+        var bg = FieldBackgroundSolver.Solve(KinkedQuadratic(kink), Settings(new[] { 12.0, 9.0 }, tol: 1e-11));
+        double nk = Assert.Single(bg.NonSmoothTimes);
+        Assert.True(bg.SegmentCount >= 2);
+        var at = bg.FieldsAt(nk);
+        if (coordinate) Assert.Equal(10.0, at[0]);
+        else Assert.True(Math.Abs(kink.Value(at)) < 1e-9, $"g = {kink.Value(at)} at the restart");
+        var before = new double[2];
+        var after = new double[2];
+        bg.At(nk - 1e-7, new double[2], before);
+        bg.At(nk + 1e-7, new double[2], after);
+        Assert.Equal(before[0], after[0], 1e-8);
+        Assert.Equal(before[1], after[1], 1e-8);
+        Assert.True(bg.NEnd > nk);
+    }
+
+    [Fact]
+    public void LeavingTheValidRegion_IsAOneLineError()
+    {
+        // The double quadratic with m2 = 2 m1 bends towards the phi axis (chi falls like phi^4) and crosses phi = 2 chi.
+        var theory = new MetricFieldTheory(new[] { "phi", "chi" }, p => 0.5 * p[0] * p[0] + 2 * p[1] * p[1],
+            boundaries: new[] { FieldSurface.FromFunction("phi - 2 chi = 0", p => p[0] - 2 * p[1], SurfaceCrossing.Rising) });
+        var ex = Assert.Throws<PhysicsException>(() => FieldBackgroundSolver.Solve(theory, Settings(new[] { 10.0, 8.0 })));
+        Assert.DoesNotContain('\n', ex.Message);
+        Assert.Contains("left the theory's valid range", ex.Message);
+        Assert.Contains("phi - 2 chi = 0", ex.Message);
+        var outside = Assert.Throws<PhysicsException>(() => FieldBackgroundSolver.Solve(theory, Settings(new[] { 12.0, 3.0 })));
+        Assert.Contains("outside the theory's valid region", outside.Message);
+    }
 }
