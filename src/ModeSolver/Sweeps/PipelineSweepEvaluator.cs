@@ -232,6 +232,8 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             else if (key.StartsWith(ParamPrefix, StringComparison.Ordinal)) o.Parameters[key[ParamPrefix.Length..]] = at;
             else if (SettingsSchema.FindSweep(key) is { Kind: SettingKind.NumberOrNone } amount) o.SetValue(amount, new Located<double?>(v, at.Key));
             else if (SettingsSchema.FindSweep(key) is { Kind: SettingKind.Number } number) o.SetValue(number, at);
+            else if (SettingsSchema.FindSweep(key) is { Kind: SettingKind.Whole } whole)
+                o.SetValue(whole, v == Math.Floor(v) && Math.Abs(v) < 1e15 ? new Located<long>((long)v, at.Key) : throw at.Error("must be a whole number"));
             else throw new SweepException($"sweep key '{key}' is not understood");
         }
         return SettingsResolver.Resolve(RunInput.Merge(_deck, o));
