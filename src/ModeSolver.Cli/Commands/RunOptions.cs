@@ -35,8 +35,7 @@ public sealed class RunOptions
     // NAME=VALUE; everything else a text-valued option, checked by Overrides.
     private static Option Create(SettingDef def)
     {
-        string doc = char.ToUpperInvariant(def.Doc[0]) + def.Doc[1..];
-        if (def.Unit.Length > 0) doc += $" ({def.Unit})";
+        string doc = HelpText(def);
         string deckKey = def.Section.Length == 0 ? def.Path : $"{def.DocKey.Replace("NAME", "", StringComparison.Ordinal).TrimEnd()}";
         if (def.Kind == SettingKind.Table)
             return new Option<string[]>(def.Option) { Description = $"{doc}. Deck {deckKey}.", AllowMultipleArgumentsPerToken = false, Arity = ArgumentArity.ZeroOrMore };
@@ -44,6 +43,18 @@ public sealed class RunOptions
             return new Option<bool>(def.Option) { Description = $"{doc}. Deck {deckKey}." };
         string tail = def.Kind == SettingKind.Switch ? "; without a value: true" : "";
         return Opt(def.Option, $"{doc}. Deck {deckKey}{tail}.");
+    }
+
+    // The schema's documentation line as help text: capitalised (unless it starts with a symbol such as g_reh), with
+    // the unit and the default, without the markdown of the docs (links, code quotes).
+    private static string HelpText(SettingDef def)
+    {
+        string doc = System.Text.RegularExpressions.Regex.Replace(def.Doc, @"\[([^\[\]]+)\]\([^)]+\)", "$1").Replace("`", "", StringComparison.Ordinal).TrimEnd('.');
+        string first = doc.Split(' ')[0];
+        if (first.All(c => char.IsLetter(c) || c == '-')) doc = char.ToUpperInvariant(doc[0]) + doc[1..];
+        if (def.Unit.Length > 0 && !doc.Contains(def.Unit, StringComparison.Ordinal)) doc += $" ({def.Unit})";
+        if (def.Default != "—" && def.Family != SettingFamily.Observable) doc += $"; default {def.Default.Replace("`", "", StringComparison.Ordinal)}";
+        return doc;
     }
 
     /// <summary>The option of an [observables] key: "--obs-" and the key with '_' as '-'.</summary>
