@@ -168,7 +168,7 @@ public static class ModelCatalogue
         return null;
     }
 
-    /// <summary>The entry with this id; throws <see cref="KeyNotFoundException"/> naming the valid ids otherwise.</summary>
+    /// <summary>The entry with this id; throws <see cref="TheoryException"/> (exit code 2) naming the valid ids otherwise.</summary>
     public static ModelEntry Get(string id) =>
-        Find(id) ?? throw new KeyNotFoundException($"unknown model '{id}' (catalogue: {string.Join(", ", Ids)})");
+        Find(id) ?? throw new TheoryException($"unknown model '{id}' (catalogue: {string.Join(", ", Ids)})");
 }

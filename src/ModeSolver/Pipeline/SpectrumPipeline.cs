@@ -246,14 +246,7 @@ public static class SpectrumPipeline
         var bg = pivot.Background;
         double NAtExit(double kMpc) => bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kMpc), out double n) ? n : double.NaN;
         var source = ObservablesSource.From(spectrum, pivotResults, NAtExit, bg.NEnd);
-        try
-        {
-            return ObservablesStage.Compute(source, settings);
-        }
-        catch (ArgumentException e)
-        {
-            throw new PhysicsException(e.Message);
-        }
+        return ObservablesStage.Compute(source, settings);
     }
 
     /// <summary>

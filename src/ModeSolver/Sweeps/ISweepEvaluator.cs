@@ -4,9 +4,11 @@ namespace ModeSolver.Sweeps;
 public interface ISweepEvaluator
 {
     /// <summary>
-    /// Evaluates the point. Exceptions are caught by the runner and recorded as a failed point with their one-line
-    /// message (an <see cref="OperationCanceledException"/> while <paramref name="ct"/> is cancelled is not: the point
-    /// then stays unfinished and is computed again on resume).
+    /// Evaluates the point. Physics and input errors (a <see cref="Physics.ModeSolverException"/> with exit code 2 or 3)
+    /// are caught by the runner and recorded as a failed point with their one-line message; any other exception (an
+    /// <see cref="ArgumentException"/> included) is a bug and stops the sweep with exit code 1. An
+    /// <see cref="OperationCanceledException"/> while <paramref name="ct"/> is cancelled leaves the point unfinished,
+    /// to be computed again on resume.
     /// </summary>
     SweepPointResult Evaluate(SweepPoint point, CancellationToken ct);
 }

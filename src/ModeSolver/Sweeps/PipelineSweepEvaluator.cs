@@ -288,9 +288,10 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 Flags = FlagNames(flags),
             };
         }
-        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or Formulas.FormulaException or TheoryException)
+        catch (Exception e) when (SweepRunner.IsPointFailure(e))
         {
-            // Only physics and input errors make a failed point; anything else is a bug and stops the sweep (SweepRunner).
+            // Only physics and input errors make a failed point; anything else (an ArgumentException included) is a
+            // bug and stops the sweep with exit code 1 (SweepRunner).
             return SweepPointResult.Failed(SweepDeck.OneLine(e.Message));
         }
     }
