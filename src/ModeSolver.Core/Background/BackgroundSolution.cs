@@ -241,7 +241,7 @@ public sealed class BackgroundSolution : IBackground
             double a = gp[i] - phi, b = gp[i + 1] - phi;
             if (a == 0) return gn[i];
             if (a * b < 0 || b == 0)
-                return Roots.Bracketed(x => At(x).Phi - phi, gn[i], gn[i + 1], a, b, 1e-14);
+                return Numerics.Roots.Brent(x => At(x).Phi - phi, gn[i], gn[i + 1], a, b, 1e-14);
         }
         // Dense check inside steps would only matter for non-monotone field motion within one step; the grid is fine enough.
         throw new PhysicsException($"The field never takes the value phi = {phi:G6} between N = {NStart:G6} and {NStop:G6}; choose a value the field passes through.");
@@ -272,8 +272,19 @@ public sealed class BackgroundSolution : IBackground
         double fb = b + Math.Log(At(b).H) - _halfLnScale - lnk;
         if (fb == 0) { n = b; return true; }
         if (fa > 0) fa = -1e-300; // guard rounding at the bracket edge
-        n = Roots.SafeNewton(this, lnk + _halfLnScale, a, b, fa, fb);
+        var exit = new LnAHMinus(this, lnk + _halfLnScale);
+        n = Numerics.Roots.SafeNewton(ref exit, a, b, fa, fb, 1e-14);
         return true;
+    }
+
+    /// <summary>ln(aH)(N) - target = N + ln H - target and its exact derivative 1 - e1 (allocation-free).</summary>
+    private readonly struct LnAHMinus(BackgroundSolution bg, double target) : Numerics.IRootFunctionWithDerivative
+    {
+        public (double Value, double Derivative) Evaluate(double x)
+        {
+            var p = bg.At(x);
+            return (x + Math.Log(p.H) - target, 1.0 - p.Epsilon1);
+        }
     }
 
     /// <summary>As <see cref="TryNAtHorizonExit"/>, throwing <see cref="PhysicsException"/> when k is outside the range served.</summary>

@@ -23,7 +23,7 @@ public static class HorizonExit
         {
             double a = Math.Max(background.NStart, b - step);
             double fa = F(a);
-            if (fa < 0) return Roots.Bracketed(F, a, b, fa, fb, 1e-13);
+            if (fa < 0) return Numerics.Roots.Brent(F, a, b, fa, fb, 1e-13);
             if (fa == 0) return a;
             b = a; fb = fa;
         }
