@@ -17,7 +17,7 @@ internal sealed record BackgroundSegment(double Start, double Stop, OdeSolution 
 /// The shape (phi(N), e_n(N)) does not depend on the scale of V; <see cref="WithVScale"/> gives a rescaled view
 /// sharing the same storage, in which only H (and V) change.
 /// </summary>
-public sealed class BackgroundSolution : IBackground
+public sealed class BackgroundSolution : IShapeSharedBackground, IHorizonExitLookup
 {
     private readonly Shared _shared;
 
@@ -41,18 +41,21 @@ public sealed class BackgroundSolution : IBackground
         public required int GridEndIndex { get; init; }     // GridN[GridEndIndex] == NEnd
         public required double[] SuffixMinLnAH { get; init; } // suffix minimum of ln(aH) (unscaled) over [0, NEnd]
         // One derived table that does not depend on the V scale (built once, shared by every view and thread).
-        public object? ScaleFreeTable;
+        public object? ShapeTable;
     }
 
-    /// <summary>
-    /// A table derived from the shape of this background only (not from the V scale), built on first use by
-    /// <paramref name="create"/> and then shared by every rescaled view and thread. One slot: one table type per background.
-    /// </summary>
-    internal T ScaleFreeTable<T>(Func<BackgroundSolution, T> create) where T : class
+    /// <inheritdoc/>
+    public T ShapeTable<T>(Func<IBackground, T> create) where T : class
     {
-        if (Volatile.Read(ref _shared.ScaleFreeTable) is T existing) return existing;
-        Interlocked.CompareExchange(ref _shared.ScaleFreeTable, create(this), null);
-        return (T)_shared.ScaleFreeTable!;
+        ArgumentNullException.ThrowIfNull(create);
+        object? held = Volatile.Read(ref _shared.ShapeTable);
+        if (held is null)
+        {
+            Interlocked.CompareExchange(ref _shared.ShapeTable, create(this), null);
+            held = _shared.ShapeTable!;
+        }
+        return held as T ?? throw new InvalidOperationException(
+            $"this background already holds a shape table of type {held.GetType().Name}; it has one slot");
     }
 
     private BackgroundSolution(Shared shared, double vScale)

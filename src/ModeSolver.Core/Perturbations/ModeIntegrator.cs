@@ -62,7 +62,7 @@ public sealed partial class ModeIntegrator
     public ModeResult Solve(IBackground background, double k, ModeSettings settings, FrictionScan? scan = null)
     {
         Setup(background, k, settings);
-        scan ??= background is BackgroundSolution ? FrictionScan.FromStart(background) : null;
+        scan ??= background is IShapeSharedBackground ? FrictionScan.FromStart(background) : null;
         double xs = settings.EffectiveStartDepth;
         double xStop = settings.EffectiveStopDepth;
         double nEnd = background.NEnd;
@@ -176,7 +176,7 @@ public sealed partial class ModeIntegrator
         var atol = new double[_dim];
         Array.Fill(atol, stepTol);
         if (!_scalar) return atol;
-        scan ??= _bg is BackgroundSolution ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n0);
+        scan ??= _bg is IShapeSharedBackground ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n0);
         _scan = scan;
         double g = Math.Exp(scan.MaxLogGrowthAfter(n0));
         double primes = double.IsFinite(g) && g > 1 ? stepTol / g : stepTol;
@@ -332,7 +332,7 @@ public sealed partial class ModeIntegrator
         y.CopyTo(_y);
         var p = _bg.At(n);
         double x = Math.Exp(_lnK - n) / p.H;
-        _scan ??= _bg is BackgroundSolution ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n);
+        _scan ??= _bg is IShapeSharedBackground ? FrictionScan.FromStart(_bg) : FrictionScan.Build(_bg, n);
         if (!(x * x * Math.Exp(_scan.LogGrowthAfter(n)) <= _stopTol)) return false;
         if (!(_scan.LogSourcedGrowthAfter(n, _lnK - 0.5 * Math.Log(_bg.VScale)) <= Math.Log(_stopTol))) return false;
         Rhs(n, _y, _k1);
