@@ -283,7 +283,7 @@ public static class TheoryRun
     {
         ArgumentNullException.ThrowIfNull(theory);
         return new ModelInfo("theory", theory.Description, theory.Description, theory.IsCanonical ? "1" : "(given by the theory)", null,
-            ImmutableArray<Report.ModelParameter>.Empty, TheoryFrame.Einstein);
+            ImmutableArray<ModelParameter>.Empty, TheoryFrame.Einstein);
     }
 
     /// <summary>The report's settings list of a request (the same keys as a deck where the request has the setting).</summary>

@@ -180,9 +180,9 @@ public static class SpectrumPipeline
             ? string.Create(CultureInfo.InvariantCulture, $"{theory.Description}; V multiplied by V_scale = {vScale:G8}")
             : spec.Describe();
         var frame = spec.Coupling is null ? TheoryFrame.Einstein : spec.Palatini ? TheoryFrame.JordanPalatini : TheoryFrame.JordanMetric;
-        var parameters = ImmutableArray.CreateBuilder<Report.ModelParameter>();
+        var parameters = ImmutableArray.CreateBuilder<Models.ModelParameter>();
         foreach (var kv in spec.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
-            parameters.Add(new Report.ModelParameter(kv.Key, kv.Value));
+            parameters.Add(new Models.ModelParameter(kv.Key, kv.Value));
         if (NormalisedParameters.LambdaOverXiSquared(spec, spec.Parameters) is double lx)
             description += string.Create(CultureInfo.InvariantCulture, $" (lambda/xi^2 = {lx:G6})");
         return new ModelInfo(spec.CatalogueId ?? "formula", description, spec.Potential, spec.Kinetic ?? "1",

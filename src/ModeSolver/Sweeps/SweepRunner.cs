@@ -212,7 +212,7 @@ public static class SweepRunner
     public static SweepRecord? EvaluatePoint(SweepSpec spec, ISweepEvaluator evaluator, long index, CancellationToken ct)
     {
         var point = spec.GetPoint(index);
-        SweepPointResult result;
+        SweepRecord result;
         try
         {
             result = evaluator.Evaluate(point, ct) ?? throw new SweepInternalException($"sweep point {point}: the evaluator returned no result");
@@ -223,14 +223,14 @@ public static class SweepRunner
         }
         catch (Exception e) when (IsPointFailure(e))
         {
-            result = SweepPointResult.Failed(e.Message);
+            result = SweepRecord.Failure(index, e.Message);
         }
         catch (Exception e) when (e is not SweepInternalException)
         {
             throw new SweepInternalException($"internal error at sweep point {point} ({e.GetType().Name}): {SweepDeck.OneLine(e.Message)}", e);
         }
         // Store exactly what a resumed run would read back from the journal.
-        var line = SweepRecord.FromResult(index, result, spec.Spectra).ToJsonLine();
+        var line = result.ForJournal(index, spec.Spectra).ToJsonLine();
         return SweepRecord.FromJson(line.AsSpan(0, line.Length - 1));
     }
 

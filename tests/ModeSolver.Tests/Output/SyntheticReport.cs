@@ -68,7 +68,7 @@ internal static class SyntheticReport
              new Setting("reheating", "instant")],
             flagSettings);
         var model = new ModelInfo("demo-plateau", "Synthetic plateau for output tests", "V0*(1 - exp(-sqrt(2/3)*phi))^2", "1", null,
-            [new ModelParameter("V0", 1e-10)], TheoryFrame.Einstein);
+            [new ModeSolver.Models.ModelParameter("V0", 1e-10)], TheoryFrame.Einstein);
         return new RunReport(model, settings, pivot, sr, background, spectrum, srs,
             new PrimordialTable([.. tableK], [.. tablePs], [.. tablePt]), flags, "exact",
             new RunStatistics(1.25, [new StageTiming("background", 0.05), new StageTiming("modes", 1.1)], modes, 293520, 2),

@@ -105,7 +105,7 @@ public class ExceptionBaseTests
 
     private sealed class ThrowingEvaluator(Func<Exception> make) : ISweepEvaluator
     {
-        public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct) => throw make();
+        public SweepRecord Evaluate(SweepPoint point, CancellationToken ct) => throw make();
     }
 
     private static bool IsPrivateHelper(Type t) => t.IsNestedPrivate;
