@@ -201,7 +201,7 @@ public static class TheoryRun
         if (unbounded is not null) warnings.Add(unbounded);
         if (exact.DeepStartWarning() is string deep) warnings.Add(deep);
         var srSet = run.SlowRoll;
-        var pivotSlowRoll = new PivotSlowRoll(Estimate(srSet.FirstOrder), Estimate(srSet.SecondOrder), Estimate(srSet.Potential));
+        var pivotSlowRoll = new PivotSlowRoll(srSet.FirstOrder, srSet.SecondOrder, srSet.Potential);
 
         var background = SampleBackground(bg, pivot, kr, request.BackgroundSamples);
         var spectrumSamples = new SpectrumSamples(Imm(kMpc), Imm(spectrum.Ps), Imm(spectrum.Pt), Imm(spectrum.R),
@@ -332,8 +332,6 @@ public static class TheoryRun
                 "both depths follow the tolerance); narrow k_min/k_max, or start the field further up the potential (phi0) for smaller k",
                 kr.KMin, kr.KMax, loMpc * 1.0001, hiMpc * 0.9999, s.Tolerance, s.ModeSettings().EffectiveStartDepth, s.ModeSettings().EffectiveStopDepth));
     }
-
-    private static SlowRollEstimate Estimate(SlowRollPrediction p) => new(p.Ps, p.Ns, p.R, p.AlphaS, p.Nt);
 
     private static ImmutableArray<double> Imm(double[] a) => ImmutableArray.Create(a);
 

@@ -281,8 +281,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             var results = new PivotResults(exact.Ns, exact.AlphaS, exact.R, exact.Nt, exact.Ps, pivot.KPivot, pivot.NStar, pivot.PhiStar,
                 pivot.HStar, pivot.VStarQuarterGeV, pivot.VScale, pivot.NTotal, pivot.NReh, exact.ErrorEstimate, double.NaN);
             var sr = run.SlowRoll.SecondOrder;
-            var reference = new SlowRollEstimate(sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt);
-            var flags = Flags.PivotDeviations(results, reference, "second-order slow roll", _options.Flags ?? settings.Flags);
+            var flags = Flags.PivotDeviations(results, sr, "second-order slow roll", _options.Flags ?? settings.Flags);
             return new SweepRecord
             {
                 Index = point.Index, Ok = true,
