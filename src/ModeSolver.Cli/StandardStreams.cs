@@ -4,8 +4,11 @@ namespace ModeSolver.Cli;
 
 /// <summary>Standard output or standard error could not be written (full, closed, read-only): exit 2, one line if stderr works.</summary>
 internal sealed class StandardStreamException(string stream, Exception inner)
-    : IOException($"cannot write to {stream}: {ModeSolver.Output.OutputTransaction.Reason(inner)}", inner)
+    : ModeSolver.Physics.ModeSolverException($"cannot write to {stream}: {ModeSolver.Output.OutputTransaction.Reason(inner)}", inner)
 {
+    /// <inheritdoc/>
+    public override int ExitCode => ModeSolver.Physics.ExitCodes.Input;
+
     /// <summary>"standard output" or "standard error".</summary>
     public string Stream { get; } = stream;
 }

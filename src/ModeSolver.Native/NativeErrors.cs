@@ -1,8 +1,3 @@
-using ModeSolver.Decks;
-using ModeSolver.Formulas;
-using ModeSolver.Integrators;
-using ModeSolver.Models;
-using ModeSolver.Output;
 using ModeSolver.Physics;
 
 namespace ModeSolver.Native;
@@ -15,28 +10,27 @@ namespace ModeSolver.Native;
 internal static class NativeErrors
 {
     /// <summary>Success.</summary>
-    public const int Ok = 0;
+    public const int Ok = ExitCodes.Ok;
 
     /// <summary>An internal error (a bug: please report it).</summary>
-    public const int Internal = 1;
+    public const int Internal = ExitCodes.Internal;
 
     /// <summary>Bad input: deck, formula, key, value, range.</summary>
-    public const int Input = 2;
+    public const int Input = ExitCodes.Input;
 
     /// <summary>Physics that cannot be computed.</summary>
-    public const int Physics = 3;
+    public const int Physics = ExitCodes.Physics;
 
     /// <summary>Misuse of the interface: a null pointer, a result asked for before the run that makes it, a buffer too small.</summary>
-    public const int Usage = 4;
+    public const int Usage = ExitCodes.Usage;
 
-    /// <summary>The code and one-line message of <paramref name="e"/>, classified as the command line does.</summary>
+    /// <summary>
+    /// The code and one-line message of <paramref name="e"/>, classified as the command line does: through
+    /// <see cref="ModeSolverException.ExitCode"/> only.
+    /// </summary>
     public static (int Code, string Message) Classify(Exception e) => e switch
     {
-        UsageException u => (Usage, u.Message),
-        KeyNotFoundException k => (Input, k.Message.Trim('\'', '"')),
-        DeckException or TheoryException or FormulaException or OutputException => (Input, e.Message),
-        IntegrationException ie => (Physics, $"the integration could not go on at t = {ie.T:G8}: {ie.Message}"),
-        PhysicsException => (Physics, e.Message),
+        ModeSolverException m => (m.ExitCode, m.UserMessage),
         _ => (Internal, $"internal error ({e.GetType().Name}): {e.Message}"),
     };
 
@@ -45,4 +39,8 @@ internal static class NativeErrors
 }
 
 /// <summary>Misuse of the C interface (code 4).</summary>
-internal sealed class UsageException(string message) : Exception(message);
+internal sealed class UsageException(string message) : ModeSolverException(message)
+{
+    /// <inheritdoc/>
+    public override int ExitCode => ExitCodes.Usage;
+}

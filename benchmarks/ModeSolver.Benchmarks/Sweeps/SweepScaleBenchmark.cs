@@ -126,7 +126,7 @@ internal static class SweepScaleBenchmark
 
         public long Count => Interlocked.Read(ref _count);
 
-        public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
+        public SweepRecord Evaluate(SweepPoint point, CancellationToken ct)
         {
             Interlocked.Increment(ref _count);
             return inner.Evaluate(point, ct);
@@ -138,7 +138,7 @@ internal static class SweepScaleBenchmark
     {
         private int Count { get; } = Math.Max(2, count);
 
-        public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
+        public SweepRecord Evaluate(SweepPoint point, CancellationToken ct)
         {
             double a = point.Values[0], e = point.Values[1];
             double[]? k = null, ps = null, pt = null;
@@ -147,7 +147,7 @@ internal static class SweepScaleBenchmark
                 k = new double[Count]; ps = new double[Count]; pt = new double[Count];
                 for (int i = 0; i < Count; i++) { k[i] = 1e-4 * Math.Pow(1e4, i / (Count - 1.0)); ps[i] = 2.1e-9 * Math.Pow(k[i] / 0.05, -2 / e); pt[i] = 12 * a / (e * e) * ps[i]; }
             }
-            return new SweepPointResult { Ns = 1 - 2 / e, R = 12 * a / (e * e), AlphaS = -2 / (e * e), Nt = -1.5 * a / (e * e), As = 2.1e-9, NStar = e, VScale = 1e-10 * a, K = k, Ps = ps, Pt = pt };
+            return new SweepRecord { Index = point.Index, Ok = true, Ns = 1 - 2 / e, R = 12 * a / (e * e), AlphaS = -2 / (e * e), Nt = -1.5 * a / (e * e), As = 2.1e-9, NStar = e, VScale = 1e-10 * a, K = k, Ps = ps, Pt = pt };
         }
     }
 }

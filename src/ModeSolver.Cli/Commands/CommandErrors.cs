@@ -1,27 +1,25 @@
 using ModeSolver.Decks;
-using ModeSolver.Formulas;
-using ModeSolver.Integrators;
-using ModeSolver.Models;
 using ModeSolver.Output;
 using ModeSolver.Physics;
 
 namespace ModeSolver.Cli.Commands;
 
 /// <summary>
-/// Maps exceptions to exit codes with one line on stderr: 2 for bad user input (deck, formula, option, range,
-/// an output directory that cannot be written, standard output or error that cannot be written), 3 for physics that cannot be computed, 1 for anything else
-/// (a bug: please report it). Stack traces only with --debug.
+/// Maps exceptions to exit codes with one line on stderr, through <see cref="ModeSolverException.ExitCode"/> only
+/// (<see cref="ExitCodes.Of"/>): 2 for bad user input (deck, formula, option, range, an output directory that cannot be
+/// written, standard output or error that cannot be written), 3 for physics that cannot be computed, 1 for anything
+/// that is not a <see cref="ModeSolverException"/> (a bug: please report it). Stack traces only with --debug.
 /// </summary>
 internal static class CommandErrors
 {
     /// <summary>Exit code for bad user input.</summary>
-    public const int UserError = 2;
+    public const int UserError = ExitCodes.Input;
 
     /// <summary>Exit code for physics that cannot be computed.</summary>
-    public const int PhysicsError = 3;
+    public const int PhysicsError = ExitCodes.Physics;
 
     /// <summary>Exit code for an internal error.</summary>
-    public const int InternalError = 1;
+    public const int InternalError = ExitCodes.Internal;
 
     /// <summary>Runs <paramref name="body"/> and turns its failures into exit codes and one-line messages.</summary>
     public static int Guard(Func<int> body)
@@ -37,8 +35,7 @@ internal static class CommandErrors
             int code = Classify(e);
             string msg = e switch
             {
-                KeyNotFoundException k => k.Message.Trim('\'', '"'),
-                IntegrationException ie => $"the integration could not go on at t = {ie.T:G8}: {ie.Message}",
+                ModeSolverException m => m.UserMessage,
                 OperationCanceledException => "interrupted",
                 _ when code == InternalError => $"internal error ({e.GetType().Name}): {e.Message} (run again with --debug for details)",
                 _ => e.Message,
@@ -89,12 +86,7 @@ internal static class CommandErrors
         }
     }
 
-    private static int Classify(Exception e) => e switch
-    {
-        DeckException or TheoryException or FormulaException or KeyNotFoundException or OutputException or StandardStreamException => UserError,
-        PhysicsException or IntegrationException => PhysicsError,
-        _ => InternalError,
-    };
+    private static int Classify(Exception e) => ExitCodes.Of(e);
 
     private static int Report(Exception e, string message, int code)
     {

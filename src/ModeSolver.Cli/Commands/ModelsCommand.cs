@@ -38,7 +38,7 @@ public static class ModelsCommand
         foreach (var e in ModelCatalogue.All)
         {
             string formula = e.Coupling is null ? "V = " + e.Potential : "V_J = " + e.Potential;
-            rows.Add([e.Id, formula, string.Join(", ", e.Parameters.Select(p => $"{p.Name}={G(p.Default)}")), e.Source]);
+            rows.Add([e.Id, formula, string.Join(", ", e.Parameters.Select(p => $"{p.Name}={G(p.Value)}")), e.Source]);
             if (e.Coupling is not null) rows.Add(["", "Omega^2 = " + e.Coupling + (e.Palatini ? "  (Palatini)" : "  (metric)"), "", ""]);
             if (e.Kinetic is not null) rows.Add(["", (e.Coupling is null ? "K = " : "K_J = ") + e.Kinetic, "", ""]);
         }
@@ -74,7 +74,7 @@ public static class ModelsCommand
         }
         sb.AppendLine("  parameters:");
         int w = e.Parameters.Max(p => p.Name.Length);
-        foreach (var p in e.Parameters) sb.AppendLine($"    {p.Name.PadRight(w)} = {G(p.Default),-10} {p.Meaning}");
+        foreach (var p in e.Parameters) sb.AppendLine($"    {p.Name.PadRight(w)} = {G(p.Value),-10} {p.Meaning}");
         if (e.DefaultStartEfolds is double ne)
             sb.AppendLine($"  start (default) = {G(ne)} e-folds before the end (start.efolds; phi0 solved for), on the side of phi0 = {G(e.DefaultPhi0)}, rolls towards {(e.Roll == RollDirection.Decreasing ? "smaller" : "larger")} phi");
         else

@@ -38,7 +38,7 @@ public static class MpiCheckCommand
             catch (MessagePassingException e)
             {
                 Console.Error.WriteLine($"modesolver: {CommandErrors.OneLine(e.Message)}");
-                return 2;
+                return e.ExitCode;
             }
         });
         return command;

@@ -2,6 +2,7 @@ using System.CommandLine;
 using System.Runtime.InteropServices;
 using ModeSolver.Cluster;
 using ModeSolver.Output;
+using ModeSolver.Physics;
 using ModeSolver.Sweeps;
 using Spectre.Console;
 
@@ -112,22 +113,22 @@ public static class SweepCommand
             Console.WriteLine(TextSafety.Printable($"sweep: {summary.Total} points, {summary.Done - summary.Failed} ok, {summary.Failed} failed ({summary.Resumed} from an earlier run) -> {dir}"));
             return 0;
         }
-        catch (Exception e) when (e is SweepException or MessagePassingException or ModeSolver.Decks.DeckException)
-        {
-            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}");
-            return 2;
-        }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}");
-            return 2;
-        }
         catch (SweepInternalException e)
         {
             // A bug, not a failed point: the finished points stay in the journal (and the snapshots), exit 1.
             Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}; the sweep stopped (run again with --debug for details)");
             if (CliApp.Debug) Console.Error.WriteLine(e.InnerException?.ToString() ?? e.ToString());
             return CommandErrors.InternalError;
+        }
+        catch (ModeSolverException e)
+        {
+            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.UserMessage)}");
+            return e.ExitCode;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            Console.Error.WriteLine($"modesolver: {SweepDeckMessage(e.Message)}");
+            return CommandErrors.UserError;
         }
         finally
         {

@@ -26,10 +26,10 @@ public static class SweepMergeCommand
                 Console.WriteLine(TextSafety.Printable($"sweep-merge: {summary.Done} points ({summary.Failed} failed) -> {outDir}"));
                 return 0;
             }
-            catch (Exception e) when (e is SweepException or IOException or UnauthorizedAccessException)
+            catch (Exception e) when (e is ModeSolver.Physics.ModeSolverException or IOException or UnauthorizedAccessException)
             {
                 Console.Error.WriteLine("modesolver: " + TextSafety.Printable(e.Message));
-                return 2;
+                return e is ModeSolver.Physics.ModeSolverException m ? m.ExitCode : CommandErrors.UserError;
             }
         }));
         return command;

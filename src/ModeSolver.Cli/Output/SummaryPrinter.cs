@@ -62,7 +62,7 @@ public static class SummaryPrinter
         table.AddColumn(new TableColumn("SR potential").RightAligned());
         table.AddColumn(new TableColumn("diff").RightAligned());
         var e = p.Errors;
-        Row(table, "A_s", p.As, e.As, sr.FirstOrder.As, sr.SecondOrder.As, sr.Potential.As, relative: true);
+        Row(table, "A_s", p.As, e.As, sr.FirstOrder.Ps, sr.SecondOrder.Ps, sr.Potential.Ps, relative: true);
         Row(table, "n_s", p.Ns, e.Ns, sr.FirstOrder.Ns, sr.SecondOrder.Ns, sr.Potential.Ns);
         Row(table, "alpha_s", p.AlphaS, e.AlphaS, sr.FirstOrder.AlphaS, sr.SecondOrder.AlphaS, sr.Potential.AlphaS);
         Row(table, "r", p.R, e.R, sr.FirstOrder.R, sr.SecondOrder.R, sr.Potential.R);

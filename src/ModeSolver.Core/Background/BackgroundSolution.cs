@@ -17,7 +17,7 @@ internal sealed record BackgroundSegment(double Start, double Stop, OdeSolution 
 /// The shape (phi(N), e_n(N)) does not depend on the scale of V; <see cref="WithVScale"/> gives a rescaled view
 /// sharing the same storage, in which only H (and V) change.
 /// </summary>
-public sealed class BackgroundSolution : IBackground
+public sealed class BackgroundSolution : IShapeSharedBackground, IHorizonExitLookup
 {
     private readonly Shared _shared;
 
@@ -41,18 +41,21 @@ public sealed class BackgroundSolution : IBackground
         public required int GridEndIndex { get; init; }     // GridN[GridEndIndex] == NEnd
         public required double[] SuffixMinLnAH { get; init; } // suffix minimum of ln(aH) (unscaled) over [0, NEnd]
         // One derived table that does not depend on the V scale (built once, shared by every view and thread).
-        public object? ScaleFreeTable;
+        public object? ShapeTable;
     }
 
-    /// <summary>
-    /// A table derived from the shape of this background only (not from the V scale), built on first use by
-    /// <paramref name="create"/> and then shared by every rescaled view and thread. One slot: one table type per background.
-    /// </summary>
-    internal T ScaleFreeTable<T>(Func<BackgroundSolution, T> create) where T : class
+    /// <inheritdoc/>
+    public T ShapeTable<T>(Func<IBackground, T> create) where T : class
     {
-        if (Volatile.Read(ref _shared.ScaleFreeTable) is T existing) return existing;
-        Interlocked.CompareExchange(ref _shared.ScaleFreeTable, create(this), null);
-        return (T)_shared.ScaleFreeTable!;
+        ArgumentNullException.ThrowIfNull(create);
+        object? held = Volatile.Read(ref _shared.ShapeTable);
+        if (held is null)
+        {
+            Interlocked.CompareExchange(ref _shared.ShapeTable, create(this), null);
+            held = _shared.ShapeTable!;
+        }
+        return held as T ?? throw new InvalidOperationException(
+            $"this background already holds a shape table of type {held.GetType().Name}; it has one slot");
     }
 
     private BackgroundSolution(Shared shared, double vScale)
@@ -241,7 +244,7 @@ public sealed class BackgroundSolution : IBackground
             double a = gp[i] - phi, b = gp[i + 1] - phi;
             if (a == 0) return gn[i];
             if (a * b < 0 || b == 0)
-                return Roots.Bracketed(x => At(x).Phi - phi, gn[i], gn[i + 1], a, b, 1e-14);
+                return Numerics.Roots.Brent(x => At(x).Phi - phi, gn[i], gn[i + 1], a, b, 1e-14);
         }
         // Dense check inside steps would only matter for non-monotone field motion within one step; the grid is fine enough.
         throw new PhysicsException($"The field never takes the value phi = {phi:G6} between N = {NStart:G6} and {NStop:G6}; choose a value the field passes through.");
@@ -272,8 +275,19 @@ public sealed class BackgroundSolution : IBackground
         double fb = b + Math.Log(At(b).H) - _halfLnScale - lnk;
         if (fb == 0) { n = b; return true; }
         if (fa > 0) fa = -1e-300; // guard rounding at the bracket edge
-        n = Roots.SafeNewton(this, lnk + _halfLnScale, a, b, fa, fb);
+        var exit = new LnAHMinus(this, lnk + _halfLnScale);
+        n = Numerics.Roots.SafeNewton(ref exit, a, b, fa, fb, 1e-14);
         return true;
+    }
+
+    /// <summary>ln(aH)(N) - target = N + ln H - target and its exact derivative 1 - e1 (allocation-free).</summary>
+    private readonly struct LnAHMinus(BackgroundSolution bg, double target) : Numerics.IRootFunctionWithDerivative
+    {
+        public (double Value, double Derivative) Evaluate(double x)
+        {
+            var p = bg.At(x);
+            return (x + Math.Log(p.H) - target, 1.0 - p.Epsilon1);
+        }
     }
 
     /// <summary>As <see cref="TryNAtHorizonExit"/>, throwing <see cref="PhysicsException"/> when k is outside the range served.</summary>

@@ -6,13 +6,13 @@ namespace ModeSolver.Background;
 public static class HorizonExit
 {
     /// <summary>
-    /// The last N in [NStart, NEnd] with k = aH (a = e^N, H in M_pl; k in background units). Uses the fast table of a
-    /// <see cref="BackgroundSolution"/>; for other backgrounds scans back from NEnd in quarter e-folds and refines.
+    /// The last N in [NStart, NEnd] with k = aH (a = e^N, H in M_pl; k in background units). Uses the fast lookup of an
+    /// <see cref="IHorizonExitLookup"/> (a <see cref="BackgroundSolution"/>); for other backgrounds scans back from NEnd in quarter e-folds and refines.
     /// Throws <see cref="PhysicsException"/> when k never leaves the horizon in that range.
     /// </summary>
     public static double Find(IBackground background, double kBackground)
     {
-        if (background is BackgroundSolution bs) return bs.NAtHorizonExit(kBackground);
+        if (background is IHorizonExitLookup fast) return fast.NAtHorizonExit(kBackground);
         double lnk = Math.Log(kBackground);
         double F(double n) => n + Math.Log(background.At(n).H) - lnk;
         double b = background.NEnd, fb = F(b);
@@ -23,7 +23,7 @@ public static class HorizonExit
         {
             double a = Math.Max(background.NStart, b - step);
             double fa = F(a);
-            if (fa < 0) return Roots.Bracketed(F, a, b, fa, fb, 1e-13);
+            if (fa < 0) return Numerics.Roots.Brent(F, a, b, fa, fb, 1e-13);
             if (fa == 0) return a;
             b = a; fb = fa;
         }

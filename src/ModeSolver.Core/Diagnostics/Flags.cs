@@ -1,5 +1,6 @@
 using System.Collections.Immutable;
 using System.Globalization;
+using ModeSolver.Estimates;
 using ModeSolver.Results;
 
 namespace ModeSolver.Diagnostics;
@@ -100,7 +101,7 @@ public static class Flags
     /// <see cref="FlagSettings.PivotFraction"/> times its sigma. A_s is not compared (the potential is normalised to it).
     /// Quantities where either value is not finite are skipped.
     /// </summary>
-    public static List<Flag> PivotDeviations(PivotResults pivot, SlowRollEstimate slowRoll, string referenceName, FlagSettings settings)
+    public static List<Flag> PivotDeviations(PivotResults pivot, SlowRollPrediction slowRoll, string referenceName, FlagSettings settings)
     {
         ArgumentNullException.ThrowIfNull(pivot);
         ArgumentNullException.ThrowIfNull(slowRoll);

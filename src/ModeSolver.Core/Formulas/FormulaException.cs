@@ -1,10 +1,12 @@
+using ModeSolver.Physics;
+
 namespace ModeSolver.Formulas;
 
 /// <summary>
 /// A formula could not be parsed or resolved. <see cref="Exception.Message"/> is one line, e.g.
 /// <c>formula error at column 7: expected ')' after 'sin(phi'</c>; <see cref="Pointer"/> gives the text with a caret under the column.
 /// </summary>
-public sealed class FormulaException : Exception
+public sealed class FormulaException : ModeSolverException
 {
     /// <summary>Creates the exception.</summary>
     /// <param name="text">The formula text.</param>
@@ -17,6 +19,9 @@ public sealed class FormulaException : Exception
         Column = column;
         Expected = expected;
     }
+
+    /// <inheritdoc/>
+    public override int ExitCode => ExitCodes.Input;
 
     /// <summary>The formula text.</summary>
     public string Text { get; }

@@ -96,8 +96,9 @@ public enum IntegrationFailure
 }
 
 /// <summary>An integration that could not go on. Carries the time and the state where it stopped.</summary>
-public sealed class IntegrationException : Exception
+public sealed class IntegrationException : Physics.ModeSolverException
 {
+    /// <summary>Creates the exception.</summary>
     public IntegrationException(IntegrationFailure failure, double t, double[] state, string message)
         : base(message)
     {
@@ -105,6 +106,12 @@ public sealed class IntegrationException : Exception
         T = t;
         State = state;
     }
+
+    /// <inheritdoc/>
+    public override int ExitCode => Physics.ExitCodes.Physics;
+
+    /// <inheritdoc/>
+    public override string UserMessage => $"the integration could not go on at t = {T:G8}: {Message}";
 
     /// <summary>What went wrong.</summary>
     public IntegrationFailure Failure { get; }

@@ -210,61 +210,23 @@ internal static class OdeDriver
     }
 
     /// <summary>
-    /// Brent's method (R.P. Brent, Algorithms for Minimization without Derivatives, 1973, ch. 4) for g(t, y(t)) = 0
-    /// on the step's interpolant, bracket [a, b] with g(a) g(b) &lt; 0, to a few ulps of t.
+    /// g(t, y(t)) = 0 on the step's interpolant, bracket [a, b] with g(a) g(b) &lt; 0, to a few ulps of t: Brent's
+    /// method from <see cref="Numerics.Roots.Brent{TF}"/> with tol = 2 eps |t| + 1e-15 max(|a|, |b|).
     /// </summary>
     internal static double LocateRoot(EventFunction g, Stepper st, double[] y, double a, double fa, double b, double fb)
     {
-        double c = a, fc = fa, d = b - a, e = d;
         double scale = Math.Max(Math.Abs(a), Math.Abs(b));
-        for (int iter = 0; iter < 200; iter++)
+        var f = new EventOnInterpolant(g, st, y);
+        return Numerics.Roots.Brent(ref f, a, fa, b, fb, 2.0 * 2.220446049250313e-16, 1e-15 * scale);
+    }
+
+    /// <summary>The event function along the step's interpolant (fills <c>y</c> at each trial time).</summary>
+    private readonly struct EventOnInterpolant(EventFunction g, Stepper st, double[] y) : Numerics.IRootFunction
+    {
+        public double Evaluate(double t)
         {
-            if (Math.Sign(fb) == Math.Sign(fc))
-            {
-                c = a; fc = fa; d = b - a; e = d;
-            }
-            if (Math.Abs(fc) < Math.Abs(fb))
-            {
-                a = b; b = c; c = a;
-                fa = fb; fb = fc; fc = fa;
-            }
-            double tol = 2.0 * 2.220446049250313e-16 * Math.Abs(b) + 1e-15 * scale;
-            double m = 0.5 * (c - b);
-            if (Math.Abs(m) <= tol || fb == 0) return b;
-            if (Math.Abs(e) >= tol && Math.Abs(fa) > Math.Abs(fb))
-            {
-                double s = fb / fa, p, q;
-                if (a == c)
-                {
-                    p = 2 * m * s;
-                    q = 1 - s;
-                }
-                else
-                {
-                    double qq = fa / fc, r = fb / fc;
-                    p = s * (2 * m * qq * (qq - r) - (b - a) * (r - 1));
-                    q = (qq - 1) * (r - 1) * (s - 1);
-                }
-                if (p > 0) q = -q; else p = -p;
-                if (2 * p < Math.Min(3 * m * q - Math.Abs(tol * q), Math.Abs(e * q)))
-                {
-                    e = d;
-                    d = p / q;
-                }
-                else
-                {
-                    d = m; e = m;
-                }
-            }
-            else
-            {
-                d = m; e = m;
-            }
-            a = b; fa = fb;
-            b += Math.Abs(d) > tol ? d : (m > 0 ? tol : -tol);
-            st.Interpolate(b, y);
-            fb = g(b, y);
+            st.Interpolate(t, y);
+            return g(t, y);
         }
-        return b;
     }
 }

@@ -93,7 +93,7 @@ public static class PivotMatcher
         else
         {
             // N_* from the reheating history depends on H_* and rho_end, hence on the V scale that normalises the pivot:
-            // the root of g(x) = N_*(reheating; x, V scale(x)) - x, bracketed and then solved by Roots.Bracketed.
+            // the root of g(x) = N_*(reheating; x, V scale(x)) - x, bracketed and then solved by Brent's method (Numerics.Roots).
             double G(double x)
             {
                 Normalise(x);
@@ -144,7 +144,7 @@ public static class PivotMatcher
                         widen = 1 + 0.25 * (widen - 1);
                     }
                 }
-                root = Roots.Bracketed(G, a, b, fa, fb, settings.Tolerance);
+                root = Numerics.Roots.Brent(G, a, b, fa, fb, settings.Tolerance);
             }
             nStar = root;
             Normalise(nStar);

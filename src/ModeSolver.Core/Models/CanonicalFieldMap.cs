@@ -80,18 +80,14 @@ public sealed class CanonicalFieldMap
         double lo = _nodes[i - 1], hi = _nodes[i];
         double flo = _chiAt[i - 1] - chi, fhi = _chiAt[i] - chi;
         double x = lo + (hi - lo) * (-flo) / (fhi - flo);
-        for (int it = 0; it < 100; it++)
-        {
-            double f = ChiFromSegment(i - 1, x) - chi;
-            if (f == 0) return x;
-            if (f < 0) lo = x; else hi = x;
-            double s = SqrtK(x);
-            double xn = x - f / s;
-            if (!(xn > lo && xn < hi)) xn = 0.5 * (lo + hi);
-            if (Math.Abs(xn - x) <= 1e-15 * Math.Max(1.0, Math.Abs(x)) || hi - lo <= 1e-15 * Math.Max(1.0, Math.Abs(x))) return xn;
-            x = xn;
-        }
-        return x;
+        var f = new ChiOnSegment(this, i - 1, chi);
+        return Numerics.Roots.SafeNewton(ref f, lo, hi, flo, fhi, 1e-15, start: x);
+    }
+
+    /// <summary>chi(phi) - chi on one segment, with d chi/d phi = sqrt(K).</summary>
+    private readonly struct ChiOnSegment(CanonicalFieldMap map, int segment, double chi) : Numerics.IRootFunctionWithDerivative
+    {
+        public (double Value, double Derivative) Evaluate(double x) => (map.ChiFromSegment(segment, x) - chi, map.SqrtK(x));
     }
 
     /// <summary>V as a function of chi (Einstein frame).</summary>

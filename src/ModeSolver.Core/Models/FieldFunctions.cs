@@ -1,26 +1,6 @@
 namespace ModeSolver.Models;
 
 /// <summary>
-/// A function of the field and its first three derivatives at one point: f, f', f'', f'''.
-/// Produced by exact (automatic) differentiation, never by finite differences.
-/// </summary>
-public readonly record struct Jet3(double Value, double D1, double D2, double D3)
-{
-    /// <summary>The constant function c.</summary>
-    public static Jet3 Constant(double c) => new(c, 0, 0, 0);
-}
-
-/// <summary>A smooth-by-pieces function of the field with exact derivatives.</summary>
-public interface IFieldFunction
-{
-    /// <summary>f and its derivatives at <paramref name="phi"/>. Allocation-free.</summary>
-    Jet3 Evaluate(double phi);
-
-    /// <summary>Field values where f or one of its first three derivatives is not continuous (kinks, steps), sorted ascending.</summary>
-    IReadOnlyList<double> NonSmoothPoints { get; }
-}
-
-/// <summary>
 /// An inflaton theory in the Einstein frame: S = int sqrt(-g) [R/2 - K(phi)(d phi)^2/2 - V(phi)], reduced Planck units.
 /// phi is the field as the user wrote it (for a Jordan-frame input, the Jordan-frame field); K carries the frame change.
 /// </summary>
@@ -48,5 +28,3 @@ public interface IInflatonTheory
     (double Min, double Max) ValidRange { get; }
 }
 
-/// <summary>Two jets from one fused evaluation: the Einstein-frame V and K of a theory at one field value.</summary>
-public readonly record struct JetPair(Jet3 Potential, Jet3 Kinetic);

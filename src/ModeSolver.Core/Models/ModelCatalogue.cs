@@ -11,8 +11,12 @@ public enum RollDirection
     Increasing,
 }
 
-/// <summary>A named model parameter with its default value and a one-line meaning.</summary>
-public sealed record ModelParameter(string Name, double Default, string Meaning);
+/// <summary>
+/// A named model parameter and its value (in the units of the model's formulas): the default of a catalogue entry,
+/// or the value a run used (the report's model parameters). <see cref="Meaning"/> is the catalogue's one-line
+/// description (empty in a report).
+/// </summary>
+public sealed record ModelParameter(string Name, double Value, string Meaning = "");
 
 /// <summary>
 /// One catalogue model. <see cref="Potential"/> is V(phi) (Einstein frame) or, when <see cref="Coupling"/> is set,
@@ -59,7 +63,7 @@ public sealed record ModelEntry(
         get
         {
             var d = new Dictionary<string, double>(StringComparer.Ordinal);
-            foreach (var p in Parameters) d[p.Name] = p.Default;
+            foreach (var p in Parameters) d[p.Name] = p.Value;
             return d;
         }
     }
@@ -168,7 +172,7 @@ public static class ModelCatalogue
         return null;
     }
 
-    /// <summary>The entry with this id; throws <see cref="KeyNotFoundException"/> naming the valid ids otherwise.</summary>
+    /// <summary>The entry with this id; throws <see cref="TheoryException"/> (exit code 2) naming the valid ids otherwise.</summary>
     public static ModelEntry Get(string id) =>
-        Find(id) ?? throw new KeyNotFoundException($"unknown model '{id}' (catalogue: {string.Join(", ", Ids)})");
+        Find(id) ?? throw new TheoryException($"unknown model '{id}' (catalogue: {string.Join(", ", Ids)})");
 }

@@ -99,12 +99,8 @@ public static class SlowRollStart
             {
                 // The step passed the minimum (V_phi changed sign) inside a narrow end region, e.g. width 1/sqrt(xi) of a
                 // Palatini map at large xi: find the minimum, then approach it geometrically until epsilon_V reaches 1.
-                double l0 = x, r0 = y, sx = signX;
-                for (int i = 0; i < 200 && Math.Abs(r0 - l0) > 1e-15 * Math.Max(1e-300, Math.Abs(l0)); i++)
-                {
-                    double m = 0.5 * (l0 + r0);
-                    if (Math.Sign(theory.Potential(m).D1) == sx) l0 = m; else r0 = m;
-                }
+                var side = new SlopeSignAs(theory, signX);
+                var (l0, r0) = Numerics.Roots.Bisect(ref side, x, y, 1e-15, maxIterations: 200, scaleFloor: 1e-300);
                 double minimum = 0.5 * (l0 + r0);
                 for (int k = 1; k <= 60 && ey < 1; k++)
                 {
@@ -118,13 +114,8 @@ public static class SlowRollStart
             if (!(ey < 1))
             {
                 // Bisect the crossing of epsilon_V = 1 (a non-finite value counts as above 1).
-                double l = x, r = y;
-                for (int i = 0; i < 100 && Math.Abs(r - l) > 1e-14 * Math.Max(1.0, Math.Abs(l)); i++)
-                {
-                    double m = 0.5 * (l + r);
-                    if (EpsilonV(theory, m) < 1) l = m; else r = m;
-                }
-                return l;
+                var below = new EpsilonVBelowOne(theory);
+                return Numerics.Roots.Bisect(ref below, x, y, 1e-14).Inside;
             }
             x = y;
             signX = signY;
@@ -160,5 +151,17 @@ public static class SlowRollStart
             if (v.Value > 0 && -Math.Sign(v.D1) == -side && EpsilonV(theory, x) < 1) return x;
         }
         throw new PhysicsException($"the field does not roll towards phi_end = {phiEnd:G6} from either side; give phi0 instead");
+    }
+
+    /// <summary>V_phi has the sign <c>sign</c> (the side of the minimum the bracket's inside end is on).</summary>
+    private readonly struct SlopeSignAs(IInflatonTheory theory, int sign) : Numerics.IBoundaryTest
+    {
+        public bool IsInside(double phi) => Math.Sign(theory.Potential(phi).D1) == sign;
+    }
+
+    /// <summary>epsilon_V &lt; 1 (false for a non-finite epsilon_V).</summary>
+    private readonly struct EpsilonVBelowOne(IInflatonTheory theory) : Numerics.IBoundaryTest
+    {
+        public bool IsInside(double phi) => EpsilonV(theory, phi) < 1;
     }
 }

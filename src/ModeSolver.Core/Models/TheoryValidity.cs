@@ -102,14 +102,13 @@ internal static class TheoryValidity
     /// <summary>Between a valid point and an invalid one, returns the last valid point (to about 1e-13 relative).</summary>
     private static double Bisect(IValidatedTheory theory, double valid, double invalid)
     {
-        for (int i = 0; i < 200; i++)
-        {
-            double mid = 0.5 * (valid + invalid);
-            if (mid == valid || mid == invalid) break;
-            if (Math.Abs(invalid - valid) <= 1e-13 * Math.Max(1.0, Math.Abs(mid))) break;
-            if (theory.InvalidReason(mid) is null) valid = mid; else invalid = mid;
-        }
-        return valid;
+        var test = new IsValid(theory);
+        return Numerics.Roots.Bisect(ref test, valid, invalid, 1e-13, maxIterations: 200).Inside;
+    }
+
+    private readonly struct IsValid(IValidatedTheory theory) : Numerics.IBoundaryTest
+    {
+        public bool IsInside(double phi) => theory.InvalidReason(phi) is null;
     }
 
     public static string Interval((double Min, double Max) r) => $"({F(r.Min)}, {F(r.Max)})";

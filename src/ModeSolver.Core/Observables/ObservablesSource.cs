@@ -46,7 +46,7 @@ public sealed record ObservablesSource(
         }
     }
 
-    /// <summary>Checks lengths, ordering and positivity (one sample is valid; interpolation needs two); throws <see cref="ArgumentException"/> with a one-line message.</summary>
+    /// <summary>Checks lengths, ordering and positivity (one sample is valid; interpolation needs two); throws <see cref="ArgumentException"/> (a bug in the caller) or, for a P_s that is not positive and finite, <see cref="Physics.PhysicsException"/>, with a one-line message.</summary>
     public void Validate()
     {
         int n = K.Length;
@@ -56,7 +56,7 @@ public sealed record ObservablesSource(
         for (int i = 0; i < n; i++)
         {
             if (!(K[i] > 0) || (i > 0 && !(K[i] > K[i - 1]))) throw new ArgumentException($"observables: k is not positive and increasing at index {i}");
-            if (!(Ps[i] > 0) || !double.IsFinite(Ps[i])) throw new ArgumentException($"observables: P_s is not positive and finite at k = {K[i]:G6} /Mpc");
+            if (!(Ps[i] > 0) || !double.IsFinite(Ps[i])) throw new Physics.PhysicsException($"observables: P_s is not positive and finite at k = {K[i]:G6} /Mpc");
         }
     }
 

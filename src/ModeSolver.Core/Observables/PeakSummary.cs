@@ -65,11 +65,8 @@ public static class PeakFinder
         if (source.SlopeAt(kPeak) > 0) lo = kPeak; else hi = kPeak;
         if (source.SlopeAt(lo) > 0 && source.SlopeAt(hi) < 0)
         {
-            for (int it = 0; it < 100 && hi / lo - 1 > 1e-13; it++)
-            {
-                double mid = Math.Sqrt(lo * hi);
-                if (source.SlopeAt(mid) > 0) lo = mid; else hi = mid;
-            }
+            var rising = new Rising(source);
+            (lo, hi) = Numerics.Roots.BisectGeometric(ref rising, lo, hi, 1e-13);
             double c = Math.Sqrt(lo * hi);
             if (source.PsAt(c) > p[best]) kPeak = c;
         }
@@ -96,13 +93,18 @@ public static class PeakFinder
     // P_s - level changes sign between a and b (ln P_s is monotone there to the accuracy that matters): bisection in ln k.
     private static double Crossing(ObservablesSource s, double a, double b, double level)
     {
-        double fa = s.PsAt(a) - level;
-        for (int it = 0; it < 100 && b / a - 1 > 1e-12; it++)
-        {
-            double m = Math.Sqrt(a * b);
-            double fm = s.PsAt(m) - level;
-            if (Math.Sign(fm) == Math.Sign(fa)) { a = m; fa = fm; } else b = m;
-        }
+        var side = new SameSideAs(s, level, Math.Sign(s.PsAt(a) - level));
+        (a, b) = Numerics.Roots.BisectGeometric(ref side, a, b, 1e-12);
         return Math.Sqrt(a * b);
+    }
+
+    private readonly struct Rising(ObservablesSource s) : Numerics.IBoundaryTest
+    {
+        public bool IsInside(double k) => s.SlopeAt(k) > 0;
+    }
+
+    private readonly struct SameSideAs(ObservablesSource s, double level, int sign) : Numerics.IBoundaryTest
+    {
+        public bool IsInside(double k) => Math.Sign(s.PsAt(k) - level) == sign;
     }
 }

@@ -65,7 +65,7 @@ public sealed class FrictionScan
     }
 
     /// <summary>
-    /// The scan of <paramref name="background"/> from its start: for a <see cref="BackgroundSolution"/> one table shared
+    /// The scan of <paramref name="background"/> from its start: for an <see cref="IShapeSharedBackground"/> one table shared
     /// by all its rescaled views and threads (F and the indices depend on e1, e2, e3 only, not on the V scale; the drift
     /// table uses ln aH, which a V scale shifts by a constant that the caller's ln k carries too), filled backwards from
     /// the end only as far as the queries reach (the same grid and values as <see cref="Build"/>); otherwise built now.
@@ -73,8 +73,8 @@ public sealed class FrictionScan
     public static FrictionScan FromStart(IBackground background)
     {
         ArgumentNullException.ThrowIfNull(background);
-        return background is BackgroundSolution b
-            ? b.ScaleFreeTable(static x => new FrictionScan(x, x.NStart, 0.01))
+        return background is IShapeSharedBackground b
+            ? b.ShapeTable(static x => new FrictionScan(x, x.NStart, 0.01))
             : Build(background, background.NStart);
     }
 

@@ -72,7 +72,7 @@ internal sealed class ModeDriver
     internal const double SwitchDepth = 1.05 * OscillatoryRegime.MinArgument;
 
     // The one place that asks whether a background can share one friction scan between its rescaled views and threads.
-    private static FrictionScan? SharedScan(IBackground background) => background is BackgroundSolution ? FrictionScan.FromStart(background) : null;
+    private static FrictionScan? SharedScan(IBackground background) => background is IShapeSharedBackground ? FrictionScan.FromStart(background) : null;
     private static FrictionScan ScanFrom(IBackground background, double n) => SharedScan(background) ?? FrictionScan.Build(background, n);
 
     /// <summary>

@@ -6,10 +6,13 @@ namespace ModeSolver.Physics;
 /// range, or an integration that broke down. The message is one line saying what happened, where (N, phi) and what
 /// to change. The command line maps it to exit code 3.
 /// </summary>
-public sealed class PhysicsException : Exception
+public sealed class PhysicsException : ModeSolverException
 {
     /// <summary>Creates the exception with a one-line message.</summary>
     public PhysicsException(string message) : base(message) { }
+
+    /// <inheritdoc/>
+    public override int ExitCode => ExitCodes.Physics;
 
     /// <summary>Creates the exception with a one-line message and the underlying cause.</summary>
     public PhysicsException(string message, Exception inner) : base(message, inner) { }

@@ -1,6 +1,7 @@
 using System.Collections.Immutable;
 using System.Reflection;
 using ModeSolver.Diagnostics;
+using ModeSolver.Models;
 
 using ModeSolver.Results;
 using ModeSolver.Estimates;
@@ -87,9 +88,6 @@ public static class TheoryFrameText
         _ => throw new ArgumentOutOfRangeException(nameof(frame), frame, "unknown theory frame"),
     };
 }
-
-/// <summary>A named model parameter and its value (in the units of the model's formulas).</summary>
-public sealed record ModelParameter(string Name, double Value);
 
 /// <summary>The theory that was run.</summary>
 /// <param name="Id">Catalogue id of the model, or "formula" for a user formula.</param>

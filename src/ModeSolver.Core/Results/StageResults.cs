@@ -1,3 +1,4 @@
+using ModeSolver.Estimates;
 using System.Collections.Immutable;
 
 namespace ModeSolver.Results;
@@ -45,16 +46,11 @@ public sealed record PivotResults(
     public bool ToleranceMet { get; init; } = true;
 }
 
-/// <summary>One slow-roll estimate at the pivot. Quantities the approximation does not give are NaN.</summary>
-/// <param name="As">Scalar power P_s at the pivot.</param>
-/// <param name="Ns">n_s.</param>
-/// <param name="R">r.</param>
-/// <param name="AlphaS">alpha_s.</param>
-/// <param name="Nt">n_t.</param>
-public sealed record SlowRollEstimate(double As, double Ns, double R, double AlphaS, double Nt);
-
-/// <summary>Slow-roll predictions at the pivot (physics.md section 4c).</summary>
-public sealed record PivotSlowRoll(SlowRollEstimate FirstOrder, SlowRollEstimate SecondOrder, SlowRollEstimate Potential);
+/// <summary>
+/// Slow-roll predictions at the pivot (physics.md section 4c), each the Estimates stage's
+/// <see cref="SlowRollPrediction"/> (A_s is its P_s); quantities an approximation does not give are NaN.
+/// </summary>
+public sealed record PivotSlowRoll(SlowRollPrediction FirstOrder, SlowRollPrediction SecondOrder, SlowRollPrediction Potential);
 
 /// <summary>Background samples (all arrays the same length, increasing N) and markers.</summary>
 /// <param name="N">e-folds N = ln a.</param>

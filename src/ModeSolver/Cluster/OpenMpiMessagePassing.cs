@@ -3,10 +3,13 @@ using System.Runtime.InteropServices;
 namespace ModeSolver.Cluster;
 
 /// <summary>MPI could not be started or an MPI call failed. The message is one line.</summary>
-public sealed class MessagePassingException : Exception
+public sealed class MessagePassingException : Physics.ModeSolverException
 {
     /// <summary>Creates the error.</summary>
     public MessagePassingException(string message) : base(message) { }
+
+    /// <inheritdoc/>
+    public override int ExitCode => Physics.ExitCodes.Input;
 }
 
 /// <summary>Chooses the message-passing layer: MPI when launched by mpirun (or a PMIx launcher), else serial.</summary>

@@ -51,7 +51,7 @@ public static class SettingsResolver
         CheckText(input.Coupling, "is empty");
 
         var pars = new Dictionary<string, double>(StringComparer.Ordinal);
-        if (entry is not null) foreach (var p in entry.Parameters) pars[p.Name] = p.Default;
+        if (entry is not null) foreach (var p in entry.Parameters) pars[p.Name] = p.Value;
         foreach (var (name, v) in input.Parameters)
         {
             if (!double.IsFinite(v.Value)) throw v.Error($"must be finite (got {v.Value})");

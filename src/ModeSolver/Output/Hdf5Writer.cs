@@ -200,10 +200,10 @@ public static class Hdf5Writer
     /// <summary>Writes the report to an HDF5 file (overwriting).</summary>
     public static void Write(RunReport report, string path) => Build(report).Write(path);
 
-    private static H5Group Estimate(SlowRollEstimate e)
+    private static H5Group Estimate(Estimates.SlowRollPrediction e)
     {
         var g = new H5Group();
-        g.Attributes["A_s"] = e.As;
+        g.Attributes["A_s"] = e.Ps;
         g.Attributes["n_s"] = e.Ns;
         g.Attributes["r"] = e.R;
         g.Attributes["alpha_s"] = e.AlphaS;

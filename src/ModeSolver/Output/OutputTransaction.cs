@@ -1,7 +1,11 @@
 namespace ModeSolver.Output;
 
 /// <summary>An output file could not be written; the message names the file and the reason in one line.</summary>
-public sealed class OutputException(string message, Exception? inner = null) : IOException(message, inner);
+public sealed class OutputException(string message, Exception? inner = null) : Physics.ModeSolverException(message, inner)
+{
+    /// <inheritdoc/>
+    public override int ExitCode => Physics.ExitCodes.Input;
+}
 
 /// <summary>
 /// All-or-nothing output of one run, with the file-safety rules in one place:

@@ -181,10 +181,10 @@ public static class SummaryJsonWriter
         _ => "second_order",
     };
 
-    private static void Estimate(Utf8JsonWriter w, string name, SlowRollEstimate e)
+    private static void Estimate(Utf8JsonWriter w, string name, Estimates.SlowRollPrediction e)
     {
         w.WriteStartObject(name);
-        Num(w, "A_s", e.As);
+        Num(w, "A_s", e.Ps);
         Num(w, "n_s", e.Ns);
         Num(w, "r", e.R);
         Num(w, "alpha_s", e.AlphaS);

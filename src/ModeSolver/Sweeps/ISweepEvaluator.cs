@@ -4,11 +4,14 @@ namespace ModeSolver.Sweeps;
 public interface ISweepEvaluator
 {
     /// <summary>
-    /// Evaluates the point. Exceptions are caught by the runner and recorded as a failed point with their one-line
-    /// message (an <see cref="OperationCanceledException"/> while <paramref name="ct"/> is cancelled is not: the point
-    /// then stays unfinished and is computed again on resume).
+    /// Evaluates the point: a <see cref="SweepRecord"/> with the point's index (or <see cref="SweepRecord.Failure"/>);
+    /// the runner stores it as the journal reads it back (<see cref="SweepRecord.ForJournal"/>). Physics and input errors (a <see cref="Physics.ModeSolverException"/> with exit code 2 or 3)
+    /// are caught by the runner and recorded as a failed point with their one-line message; any other exception (an
+    /// <see cref="ArgumentException"/> included) is a bug and stops the sweep with exit code 1. An
+    /// <see cref="OperationCanceledException"/> while <paramref name="ct"/> is cancelled leaves the point unfinished,
+    /// to be computed again on resume.
     /// </summary>
-    SweepPointResult Evaluate(SweepPoint point, CancellationToken ct);
+    SweepRecord Evaluate(SweepPoint point, CancellationToken ct);
 }
 
 /// <summary>One point of a sweep: its stable index and the ordered (key, value) settings.</summary>
@@ -61,37 +64,3 @@ public sealed class SweepPoint
         $"#{Index} " + string.Join(", ", Settings.Select(kv => $"{kv.Key}={SweepAxis.Fmt(kv.Value)}"));
 }
 
-/// <summary>The pivot results of one point, or its failure reason.</summary>
-public sealed class SweepPointResult
-{
-    /// <summary>Scalar spectral index at the pivot.</summary>
-    public double Ns { get; init; } = double.NaN;
-    /// <summary>Tensor-to-scalar ratio at the pivot.</summary>
-    public double R { get; init; } = double.NaN;
-    /// <summary>Running of the scalar index.</summary>
-    public double AlphaS { get; init; } = double.NaN;
-    /// <summary>Tensor spectral index.</summary>
-    public double Nt { get; init; } = double.NaN;
-    /// <summary>Scalar amplitude at the pivot.</summary>
-    public double As { get; init; } = double.NaN;
-    /// <summary>e-folds from pivot crossing to the end of inflation.</summary>
-    public double NStar { get; init; } = double.NaN;
-    /// <summary>Overall potential scale fixed by the normalisation.</summary>
-    public double VScale { get; init; } = double.NaN;
-    /// <summary>Diagnostic flags (short words without ';').</summary>
-    public IReadOnlyList<string> Flags { get; init; } = [];
-    /// <summary>Wavenumbers of the spectrum (1/Mpc), when asked for.</summary>
-    public double[]? K { get; init; }
-    /// <summary>Scalar power spectrum at <see cref="K"/>.</summary>
-    public double[]? Ps { get; init; }
-    /// <summary>Tensor power spectrum at <see cref="K"/>.</summary>
-    public double[]? Pt { get; init; }
-    /// <summary>Why the point failed, or null when it succeeded.</summary>
-    public string? FailureReason { get; init; }
-
-    /// <summary>True when the point produced results.</summary>
-    public bool Succeeded => FailureReason is null;
-
-    /// <summary>A failed point with its reason.</summary>
-    public static SweepPointResult Failed(string reason) => new() { FailureReason = reason };
-}

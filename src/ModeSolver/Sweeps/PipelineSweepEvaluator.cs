@@ -245,7 +245,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
         key == ModelKey && _modelIds is not null && v >= 0 && v < _modelIds.Count ? $"sweep value {key} = {_modelIds[(int)v]}" : SweptValueName(key, v);
 
     /// <inheritdoc />
-    public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
+    public SweepRecord Evaluate(SweepPoint point, CancellationToken ct)
     {
         ct.ThrowIfCancellationRequested();
         try
@@ -256,8 +256,9 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             {
                 var report = SpectrumPipeline.Run(settings, _options);
                 var p = report.Pivot;
-                return new SweepPointResult
+                return new SweepRecord
                 {
+                    Index = point.Index, Ok = true,
                     Ns = p.Ns, R = p.R, AlphaS = p.AlphaS, Nt = p.Nt, As = p.As, NStar = p.NStar, VScale = p.VScale,
                     Flags = FlagNames(report.Flags),
                     K = [.. report.Spectrum.K], Ps = [.. report.Spectrum.Ps], Pt = [.. report.Spectrum.Pt],
@@ -269,18 +270,19 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             var results = new PivotResults(exact.Ns, exact.AlphaS, exact.R, exact.Nt, exact.Ps, pivot.KPivot, pivot.NStar, pivot.PhiStar,
                 pivot.HStar, pivot.VStarQuarterGeV, pivot.VScale, pivot.NTotal, pivot.NReh, exact.ErrorEstimate, double.NaN);
             var sr = run.SlowRoll.SecondOrder;
-            var reference = new SlowRollEstimate(sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt);
-            var flags = Flags.PivotDeviations(results, reference, "second-order slow roll", _options.Flags ?? settings.Flags);
-            return new SweepPointResult
+            var flags = Flags.PivotDeviations(results, sr, "second-order slow roll", _options.Flags ?? settings.Flags);
+            return new SweepRecord
             {
+                Index = point.Index, Ok = true,
                 Ns = exact.Ns, R = exact.R, AlphaS = exact.AlphaS, Nt = exact.Nt, As = exact.Ps, NStar = pivot.NStar, VScale = pivot.VScale,
                 Flags = FlagNames(flags),
             };
         }
-        catch (Exception e) when (e is PhysicsException or IntegrationException or DeckException or Formulas.FormulaException or TheoryException)
+        catch (Exception e) when (SweepRunner.IsPointFailure(e))
         {
-            // Only physics and input errors make a failed point; anything else is a bug and stops the sweep (SweepRunner).
-            return SweepPointResult.Failed(SweepDeck.OneLine(e.Message));
+            // Only physics and input errors make a failed point; anything else (an ArgumentException included) is a
+            // bug and stops the sweep with exit code 1 (SweepRunner).
+            return SweepRecord.Failure(point.Index, e.Message);
         }
     }
 

@@ -3,7 +3,10 @@ using System.Text.Json;
 
 namespace ModeSolver.Sweeps;
 
-/// <summary>A finished point as stored in the journal and the outputs (the evaluator's result, or its failure).</summary>
+/// <summary>
+/// One point's result: what the evaluator returns, and, after <see cref="ForJournal"/>, the finished point as stored in
+/// the journal and the outputs (its pivot results, or its failure).
+/// </summary>
 public sealed class SweepRecord
 {
     /// <summary>The point index.</summary>
@@ -35,15 +38,18 @@ public sealed class SweepRecord
     /// <summary>Tensor spectrum, if stored.</summary>
     public double[]? Pt { get; init; }
 
-    /// <summary>Builds the record of an evaluator result.</summary>
-    public static SweepRecord FromResult(long index, SweepPointResult r, bool keepSpectrum)
+    /// <summary>
+    /// The record as the journal stores it, at <paramref name="index"/>: flags on one line without ';', the failure
+    /// message on one line, the spectrum arrays only when the sweep keeps them.
+    /// </summary>
+    public SweepRecord ForJournal(long index, bool keepSpectrum)
     {
-        if (!r.Succeeded) return Failure(index, r.FailureReason!);
+        if (!Ok) return Failure(index, Message);
         return new SweepRecord
         {
-            Index = index, Ok = true, Ns = r.Ns, R = r.R, AlphaS = r.AlphaS, Nt = r.Nt, As = r.As, NStar = r.NStar, VScale = r.VScale,
-            Flags = r.Flags.Select(f => SweepDeck.OneLine(f).Replace(';', ',')).ToArray(),
-            K = keepSpectrum ? r.K : null, Ps = keepSpectrum ? r.Ps : null, Pt = keepSpectrum ? r.Pt : null,
+            Index = index, Ok = true, Ns = Ns, R = R, AlphaS = AlphaS, Nt = Nt, As = As, NStar = NStar, VScale = VScale,
+            Flags = Flags.Select(f => SweepDeck.OneLine(f).Replace(';', ',')).ToArray(),
+            K = keepSpectrum ? K : null, Ps = keepSpectrum ? Ps : null, Pt = keepSpectrum ? Pt : null,
         };
     }
 

@@ -48,10 +48,13 @@ public sealed record SweepSummary(long Total, long Done, long Failed, long Resum
 /// A programmer error inside a sweep (an exception that is neither physics nor bad input): the sweep stops, the
 /// finished points stay in the journal, and the command exits with code 1. The message names the point.
 /// </summary>
-public sealed class SweepInternalException : Exception
+public sealed class SweepInternalException : Physics.ModeSolverException
 {
     /// <summary>Creates the error.</summary>
     public SweepInternalException(string message, Exception? inner = null) : base(message, inner) { }
+
+    /// <inheritdoc/>
+    public override int ExitCode => Physics.ExitCodes.Internal;
 }
 
 /// <summary>
@@ -200,8 +203,7 @@ public static class SweepRunner
     /// this point); anything else is a programmer error and stops the sweep.
     /// </summary>
     public static bool IsPointFailure(Exception e) =>
-        e is Physics.PhysicsException or Integrators.IntegrationException or Decks.DeckException or Formulas.FormulaException
-            or Models.TheoryException or SweepException;
+        e is Physics.ModeSolverException { ExitCode: Physics.ExitCodes.Input or Physics.ExitCodes.Physics };
 
     /// <summary>
     /// Evaluates one point, turning physics and input errors into failed results; returns null when cancelled.
@@ -210,7 +212,7 @@ public static class SweepRunner
     public static SweepRecord? EvaluatePoint(SweepSpec spec, ISweepEvaluator evaluator, long index, CancellationToken ct)
     {
         var point = spec.GetPoint(index);
-        SweepPointResult result;
+        SweepRecord result;
         try
         {
             result = evaluator.Evaluate(point, ct) ?? throw new SweepInternalException($"sweep point {point}: the evaluator returned no result");
@@ -221,14 +223,14 @@ public static class SweepRunner
         }
         catch (Exception e) when (IsPointFailure(e))
         {
-            result = SweepPointResult.Failed(e.Message);
+            result = SweepRecord.Failure(index, e.Message);
         }
         catch (Exception e) when (e is not SweepInternalException)
         {
             throw new SweepInternalException($"internal error at sweep point {point} ({e.GetType().Name}): {SweepDeck.OneLine(e.Message)}", e);
         }
         // Store exactly what a resumed run would read back from the journal.
-        var line = SweepRecord.FromResult(index, result, spec.Spectra).ToJsonLine();
+        var line = result.ForJournal(index, spec.Spectra).ToJsonLine();
         return SweepRecord.FromJson(line.AsSpan(0, line.Length - 1));
     }
 

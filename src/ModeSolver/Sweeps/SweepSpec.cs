@@ -4,10 +4,13 @@ using System.Text;
 namespace ModeSolver.Sweeps;
 
 /// <summary>A user error in a sweep specification, its journal or its outputs. The message is one line and names the key or file.</summary>
-public sealed class SweepException : Exception
+public sealed class SweepException : Physics.ModeSolverException
 {
     /// <summary>Creates the error with its one-line message.</summary>
     public SweepException(string message) : base(message) { }
+
+    /// <inheritdoc/>
+    public override int ExitCode => Physics.ExitCodes.Input;
 }
 
 /// <summary>How an axis' values were given in the deck.</summary>

@@ -86,7 +86,7 @@ public class FlagsTests
 
         // Defaults: r limit 0.1 * 0.018 = 1.8e-3, alpha_s limit 1.3e-3, n_t limit 0.1 * 0.018/8 = 2.25e-4.
         var pivot = new PivotResults(0.965, -1e-3, 0.010, -0.0013, 2.1e-9, 0.05, 55, 5, 1e-5, 1e16, 1, 60, 0, 1e-6, 1000);
-        var sr = new SlowRollEstimate(2.1e-9, 0.965, 0.0121, 0.0005, -0.00125);
+        var sr = new ModeSolver.Estimates.SlowRollPrediction("hubble-2", 2.1e-9, 0.0121 * 2.1e-9, 0.965, 0.0121, -0.00125, 0.0005);
         var flags = Flags.PivotDeviations(pivot, sr, "second-order slow roll", s);
         Assert.Equal(["r", "alpha_s"], flags.Select(x => x.Quantity).ToArray());
 

@@ -52,9 +52,9 @@ internal static class SyntheticReport
         var pivot = new PivotResults(Ns, -6.5e-4, R, nt, As, KPivot, NStar: 55.2, PhiStar: 10.6, HStar: 2.3e-5,
             EnergyScaleGeV: 1.38e16, VScale: 4.1e-10, NTotal: 61.75, NReh: 0.0, MaxRelError: 3.2e-6, RhsEvaluationsPerMode: 1834.5);
         var sr = new PivotSlowRoll(
-            new SlowRollEstimate(2.08e-9, 0.9652, 0.00402, double.NaN, -0.000502),
-            new SlowRollEstimate(2.1e-9, 0.96505, 0.00399, -6.3e-4, -0.0005),
-            new SlowRollEstimate(2.09e-9, 0.9648, 0.0041, -6.6e-4, -0.00051));
+            new ModeSolver.Estimates.SlowRollPrediction("hubble-1", 2.08e-9, 0.00402 * 2.08e-9, 0.9652, 0.00402, -0.000502, double.NaN),
+            new ModeSolver.Estimates.SlowRollPrediction("hubble-2", 2.1e-9, 0.00399 * 2.1e-9, 0.96505, 0.00399, -0.0005, -6.3e-4),
+            new ModeSolver.Estimates.SlowRollPrediction("potential", 2.09e-9, 0.0041 * 2.09e-9, 0.9648, 0.0041, -0.00051, -6.6e-4));
         var background = new BackgroundSamples(
             [.. n], [.. phi], [.. dphi], [.. h], [.. e1], [.. e2], [.. e3],
             NEnd, NPivot: NEnd - 55.2, WindowStart: 3.0, WindowEnd: 12.2, Epsilon1Crossings: [NEnd]);
@@ -68,7 +68,7 @@ internal static class SyntheticReport
              new Setting("reheating", "instant")],
             flagSettings);
         var model = new ModelInfo("demo-plateau", "Synthetic plateau for output tests", "V0*(1 - exp(-sqrt(2/3)*phi))^2", "1", null,
-            [new ModelParameter("V0", 1e-10)], TheoryFrame.Einstein);
+            [new ModeSolver.Models.ModelParameter("V0", 1e-10)], TheoryFrame.Einstein);
         return new RunReport(model, settings, pivot, sr, background, spectrum, srs,
             new PrimordialTable([.. tableK], [.. tablePs], [.. tablePt]), flags, "exact",
             new RunStatistics(1.25, [new StageTiming("background", 0.05), new StageTiming("modes", 1.1)], modes, 293520, 2),

@@ -18,7 +18,7 @@ public class FormulaFuzzTests
         .ToArray();
 
     private static readonly Dictionary<string, double> Parameters = ModelCatalogue.All
-        .SelectMany(e => e.Parameters).GroupBy(p => p.Name).ToDictionary(g => g.Key, g => g.First().Default);
+        .SelectMany(e => e.Parameters).GroupBy(p => p.Name).ToDictionary(g => g.Key, g => g.First().Value);
 
     private const string Alphabet = "phi0123456789.eE+-*/^(),<>= abcdfgklmnorstuvwxyz_\t$#[]{}\"'\\;:!?&|~%@é∞²";
 

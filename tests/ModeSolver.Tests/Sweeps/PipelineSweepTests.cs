@@ -144,7 +144,7 @@ public class PipelineSweepTests
         var point = spec.GetPoint(0);
         // Default thresholds (0.1 sigma): exact and second-order slow roll agree for the T-model, no flag.
         var quiet = new PipelineSweepEvaluator(runDeck, spec.Keys, "deck.toml").Evaluate(point, CancellationToken.None);
-        Assert.True(quiet.Succeeded, quiet.FailureReason);
+        Assert.True(quiet.Ok, quiet.Message);
         Assert.Empty(quiet.Flags);
         // Thresholds far below the exact-vs-slow-roll difference (a 1e-9 fraction of sigma): every compared quantity flags.
         var strict = new ModeSolver.Diagnostics.FlagSettings(PivotFraction: 1e-9);

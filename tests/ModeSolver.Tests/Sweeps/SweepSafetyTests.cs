@@ -133,7 +133,7 @@ public class SweepSafetyTests
     {
         private readonly SyntheticEvaluator _inner = new();
 
-        public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct) =>
+        public SweepRecord Evaluate(SweepPoint point, CancellationToken ct) =>
             point.Index == 4 ? throw new IndexOutOfRangeException("a deliberate bug") : _inner.Evaluate(point, ct);
     }
 }

@@ -26,7 +26,7 @@ internal sealed class SyntheticEvaluator : ISweepEvaluator
 
     public ConcurrentBag<long> Evaluated { get; } = [];
 
-    public SweepPointResult Evaluate(SweepPoint point, CancellationToken ct)
+    public SweepRecord Evaluate(SweepPoint point, CancellationToken ct)
     {
         if (_seed != 0)
         {
@@ -50,8 +50,9 @@ internal sealed class SyntheticEvaluator : ISweepEvaluator
             ps = k.Select(x => 2.1e-9 * Math.Pow(x / 0.05, ns - 1)).ToArray();
             pt = ps.Select(x => r * x).ToArray();
         }
-        return new SweepPointResult
+        return new SweepRecord
         {
+            Index = point.Index, Ok = true,
             Ns = ns, R = r, AlphaS = -2 / (n * n), Nt = -r / 8, As = 2.1e-9, NStar = n, VScale = 1e-10 * alpha,
             Flags = alpha > 10 ? ["large-alpha"] : [], K = k, Ps = ps, Pt = pt,
         };
