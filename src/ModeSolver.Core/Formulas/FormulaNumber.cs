@@ -5,7 +5,7 @@ namespace ModeSolver.Formulas;
 /// <summary>
 /// The arithmetic a formula kernel is written in (<see cref="Kernels"/>): the four operations, the elementary functions
 /// and the few helpers the switching functions need. Implemented by <see cref="Real"/> (plain double: the interpreter),
-/// <see cref="DoubleDouble"/> (the extended-precision interpreter) and the code generator's expression type
+/// <see cref="Extended"/> (double-double: the extended-precision interpreter) and the code generator's expression type
 /// (<see cref="ProgramJit"/>), so every kernel is written once and the interpreter and the generated code perform the
 /// same floating-point operations in the same order (bit-identical by construction).
 /// </summary>

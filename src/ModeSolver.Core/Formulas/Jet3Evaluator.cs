@@ -6,7 +6,7 @@ namespace ModeSolver.Formulas;
 /// <summary>
 /// The order-3 interpreter: the program run on 4-coefficient Taylor series (<see cref="Series3{T}"/>), each instruction
 /// by its kernel in <see cref="Kernels.Jet"/>. The same loop serves plain doubles (<see cref="Real"/>) and
-/// double-double arithmetic; the generated code (<see cref="ProgramJit"/>) runs the same kernels.
+/// double-double arithmetic (<see cref="Extended"/>); the generated code (<see cref="ProgramJit"/>) runs the same kernels.
 /// </summary>
 internal static unsafe class Jet3Evaluator
 {
@@ -46,11 +46,18 @@ internal static unsafe class Jet3Evaluator
         return new Jet3(x.C0.V, x.C1.V, 2 * x.C2.V, 6 * x.C3.V);
     }
 
+    /// <summary>Register <paramref name="register"/> of a finished extended-precision run, rounded to double.</summary>
+    public static Jet3 Read(ReadOnlySpan<Series3<Extended>> r, int register)
+    {
+        ref readonly var x = ref r[register];
+        return new Jet3(x.C0.V.ToDouble(), x.C1.V.ToDouble(), 2 * x.C2.V.ToDouble(), 6 * x.C3.V.ToDouble());
+    }
+
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static double ToDouble<T>(T x) where T : struct, IFormulaNumber<T>
     {
         if (typeof(T) == typeof(Real)) return Unsafe.As<T, Real>(ref x).V;
-        if (typeof(T) == typeof(DoubleDouble)) return Unsafe.As<T, DoubleDouble>(ref x).Hi;
+        if (typeof(T) == typeof(Extended)) return Unsafe.As<T, Extended>(ref x).V.Hi;
         throw new NotSupportedException($"no comparison for {typeof(T).Name}");
     }
 }

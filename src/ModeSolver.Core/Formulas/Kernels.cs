@@ -249,6 +249,11 @@ internal static class Kernels
     /// One instruction on order-3 series: <paramref name="a"/> and <paramref name="b"/> are the operands, <paramref name="c"/>
     /// the instruction constant, <paramref name="n"/> its integer exponent. Not for jumps.
     /// </summary>
+    /// <remarks>
+    /// Compiled optimised at its first call: a command-line run is over before tiered compilation would replace the
+    /// unoptimised first version (whose un-inlined double-double operators made the extended path about ten times slower).
+    /// </remarks>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static Series3<T> Jet<T>(Op op, in Series3<T> a, in Series3<T> b, T c, int n) where T : struct, IFormulaNumber<T>
     {
         switch (op)
