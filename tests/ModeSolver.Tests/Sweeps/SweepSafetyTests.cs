@@ -85,11 +85,24 @@ public class SweepSafetyTests
             [sweep]
             [[sweep.axis]]
             key = "efolds"
-            linear = [46, 64, 5000]
+            linear = [46, 64, 100000]
             """);
+        // Long enough (minutes) that it cannot finish before the signal even on a loaded machine; killed if the test fails.
         var outDir = Path.Combine(dir, "out");
         string[] args = ["sweep", deck, "--out", outDir, "--quiet", "--threads", "1"];
         using var first = Process.Start(CliProcess.StartInfo(args))!;
+        try
+        {
+            await OverlapThenInterrupt(first, args, outDir);
+        }
+        finally
+        {
+            if (!first.HasExited) first.Kill(entireProcessTree: true);
+        }
+    }
+
+    private static async Task OverlapThenInterrupt(Process first, string[] args, string outDir)
+    {
         var firstOut = first.StandardOutput.ReadToEndAsync();
         var firstErr = first.StandardError.ReadToEndAsync();
         var clock = Stopwatch.StartNew();
