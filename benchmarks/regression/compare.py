@@ -4,7 +4,9 @@
 Usage: compare.py BEFORE AFTER [--rel 1e-9]. Every number in every summary.json of BEFORE must be in AFTER at the
 same path and agree to the relative tolerance (absolute below 1e-300); keys present on one side only, strings that
 differ and timing or version entries (paths containing 'seconds', 'timing', 'version', 'statistics', 'rhs') are
-listed separately. Exit status 1 when a number differs or a run is missing."""
+listed separately. Exit status 1 when a number differs or a run is missing. With --errors, each run's pivot
+quantities (A_s, n_s, alpha_s, r, n_t) are also printed with their change against the sum of the two runs' reported
+errors (summary.json `errors`); a change beyond that sum counts as a failure, a change within it does not."""
 import json, math, os, sys
 
 SKIP = ("seconds", "timing", "version", "statistics", "rhs", "wall", "workers", "created")
@@ -20,6 +22,7 @@ def walk(node, path, out):
         out[path] = node
 
 def main():
+    errors_mode = "--errors" in sys.argv
     args = [a for a in sys.argv[1:] if not a.startswith("--")]
     rel = float(sys.argv[sys.argv.index("--rel") + 1]) if "--rel" in sys.argv else 1e-9
     if "--rel" in sys.argv:
@@ -33,9 +36,24 @@ def main():
         if not name.endswith(".json"):
             continue
         b, a = {}, {}
-        walk(json.load(open(os.path.join(before, name))), "", b)
-        walk(json.load(open(a_path)), "", a)
+        bj, aj = json.load(open(os.path.join(before, name))), json.load(open(a_path))
+        walk(bj, "", b)
+        walk(aj, "", a)
         worst = 0.0
+        within = set()
+        if errors_mode:
+            for q in ("A_s", "n_s", "alpha_s", "r", "n_t"):
+                bv, av = bj.get(q), aj.get(q)
+                be, ae = (bj.get("errors") or {}).get(q), (aj.get("errors") or {}).get(q)
+                if not all(isinstance(x, (int, float)) for x in (bv, av, be, ae)):
+                    continue
+                d, e = abs(av - bv), be + ae
+                ok = d <= e
+                print(f"{name}: {q}: {bv!r} -> {av!r}: change {d:.2e} {'within' if ok else 'BEYOND'} the errors {e:.2e} (rel change {d / max(abs(bv), 1e-300):.1e})")
+                if ok:
+                    within.add(q)
+                else:
+                    bad += 1
         for key, bv in b.items():
             if any(s in key.lower() for s in SKIP):
                 continue
@@ -47,6 +65,8 @@ def main():
                     continue
                 d = abs(av - bv) / max(abs(bv), abs(av), 1e-300)
                 worst = max(worst, d)
+                if d > rel and key in within:
+                    continue
                 if d > rel:
                     print(f"{name}: {key}: {bv!r} -> {av!r} (rel {d:.2e})"); bad += 1
             elif bv != av:

@@ -2,6 +2,7 @@
 # Runs every demo deck of runs/ (the spectrum decks, not the sweeps) and every catalogue model at its defaults,
 # and keeps each run's summary.json under OUT/<name>.json, so that two builds can be compared number by number
 # with compare.py. Usage: benchmarks/regression/snapshot.sh OUT [path to ModeSolver.Cli.dll]
+# PALATINI_XI="1e6 1e9 1e12" adds higgs-like-palatini at those couplings (model-higgs-like-palatini-xi<value>.json).
 set -euo pipefail
 out=${1:?usage: snapshot.sh OUT [ModeSolver.Cli.dll]}
 root=$(cd "$(dirname "$0")/../.." && pwd)
@@ -27,5 +28,8 @@ for deck in "$root"/runs/*.toml; do
 done
 for id in $(dotnet "$dll" models | awk 'NR>1 && $1 ~ /^[a-z]/ && NF>2 {print $1}'); do
   run "model-$id" --model "$id"
+done
+for xi in ${PALATINI_XI:-}; do
+  run "model-higgs-like-palatini-xi$xi" --model higgs-like-palatini --param "xi=$xi"
 done
 ls "$out" | wc -l

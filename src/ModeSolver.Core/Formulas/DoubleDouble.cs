@@ -13,29 +13,35 @@ internal readonly struct DoubleDouble
 {
     public readonly double Hi, Lo;
 
+    // Inlined where the caller's inlining budget allows, else compiled optimised at first call: a large caller (the
+    // evaluator's switch) leaves some operators as calls, and their unoptimised first versions would run for the whole
+    // of a short command-line run before tiered compilation replaces them.
+    private const MethodImplOptions Hot = MethodImplOptions.AggressiveInlining | MethodImplOptions.AggressiveOptimization;
+
+    [MethodImpl(Hot)]
     public DoubleDouble(double hi, double lo = 0) { Hi = hi; Lo = lo; }
 
     /// <summary>ln 2 to double-double precision (0.69314718055994530941723212145817656807...).</summary>
     private static readonly DoubleDouble Ln2 = new(0.6931471805599453, 2.3190468138462996e-17);
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     public static implicit operator DoubleDouble(double x) => new(x);
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     private static DoubleDouble QuickTwoSum(double a, double b)
     {
         double s = a + b;
         return new DoubleDouble(s, b - (s - a));
     }
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     private static (double S, double E) TwoSum(double a, double b)
     {
         double s = a + b, bb = s - a;
         return (s, (a - (s - bb)) + (b - bb));
     }
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     public static DoubleDouble operator +(DoubleDouble x, DoubleDouble y)
     {
         var (s, e) = TwoSum(x.Hi, y.Hi);
@@ -45,13 +51,13 @@ internal readonly struct DoubleDouble
         return QuickTwoSum(r.Hi, r.Lo + f);
     }
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     public static DoubleDouble operator -(DoubleDouble x) => new(-x.Hi, -x.Lo);
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     public static DoubleDouble operator -(DoubleDouble x, DoubleDouble y) => x + -y;
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     public static DoubleDouble operator *(DoubleDouble x, DoubleDouble y)
     {
         double p = x.Hi * y.Hi;
@@ -60,7 +66,7 @@ internal readonly struct DoubleDouble
         return QuickTwoSum(p, e);
     }
 
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    [MethodImpl(Hot)]
     public static DoubleDouble operator /(DoubleDouble x, DoubleDouble y)
     {
         double q1 = x.Hi / y.Hi;
@@ -111,5 +117,6 @@ internal readonly struct DoubleDouble
         return y + a * Exp(-y) - 1.0; // one Newton step on exp(y) = a
     }
 
+    [MethodImpl(Hot)]
     public double ToDouble() => Hi + Lo;
 }

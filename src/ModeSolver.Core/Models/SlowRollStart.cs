@@ -66,15 +66,16 @@ public static class SlowRollStart
     /// <summary>dN/dphi on the attractor, K V / |V_phi|.</summary>
     private static double Rate(IInflatonTheory theory, double phi)
     {
-        var v = theory.Potential(phi);
-        double k = theory.Kinetic(phi).Value;
-        return k * v.Value / Math.Abs(v.D1);
+        var (v, k) = theory.Jets(phi); // V and K from one evaluation of the theory
+        return k.Value * v.Value / Math.Abs(v.D1);
     }
 
-    private static double EpsilonV(IInflatonTheory theory, double phi)
+    private static double EpsilonV(IInflatonTheory theory, double phi) => EpsilonV(theory.Jets(phi));
+
+    private static double EpsilonV(JetPair jets)
     {
-        var v = theory.Potential(phi);
-        double k = theory.Kinetic(phi).Value;
+        var (v, kj) = jets;
+        double k = kj.Value;
         double e = v.D1 / v.Value;
         return v.Value > 0 && k > 0 ? e * e / (2 * k) : double.PositiveInfinity;
     }
@@ -82,19 +83,23 @@ public static class SlowRollStart
     private static double FindEnd(IInflatonTheory theory, double from, double dir, double a, double b)
     {
         double step = 1e-3 * Math.Max(1.0, Math.Abs(from));
-        double x = from, ex = EpsilonV(theory, x);
+        var jx = theory.Jets(from);
+        double x = from, ex = EpsilonV(jx);
         if (!(ex < 1)) throw new PhysicsException($"epsilon_V = {ex:G4} >= 1 at phi = {from:G6}: this is not an inflating region; give phi0 instead");
+        int signX = Math.Sign(jx.Potential.D1);
         while (true)
         {
             double y = x + dir * step;
             if (y <= a || y >= b)
                 throw new PhysicsException($"inflation does not end by slow roll before the edge of the field range (phi = {(dir > 0 ? b : a):G6}); give model.phi_end or phi0");
-            double ey = EpsilonV(theory, y);
-            if (ey < 1 && Math.Sign(theory.Potential(y).D1) != Math.Sign(theory.Potential(x).D1))
+            var jy = theory.Jets(y); // epsilon_V and the sign of V_phi from one evaluation
+            double ey = EpsilonV(jy);
+            int signY = ey < 1 ? Math.Sign(jy.Potential.D1) : 0; // V_phi is finite where epsilon_V < 1
+            if (ey < 1 && signY != signX)
             {
                 // The step passed the minimum (V_phi changed sign) inside a narrow end region, e.g. width 1/sqrt(xi) of a
                 // Palatini map at large xi: find the minimum, then approach it geometrically until epsilon_V reaches 1.
-                double l0 = x, r0 = y, sx = Math.Sign(theory.Potential(x).D1);
+                double l0 = x, r0 = y, sx = signX;
                 for (int i = 0; i < 200 && Math.Abs(r0 - l0) > 1e-15 * Math.Max(1e-300, Math.Abs(l0)); i++)
                 {
                     double m = 0.5 * (l0 + r0);
@@ -122,6 +127,7 @@ public static class SlowRollStart
                 return l;
             }
             x = y;
+            signX = signY;
             step = Math.Min(step * 1.2, 0.05 * Math.Max(1.0, Math.Abs(x)));
         }
     }
