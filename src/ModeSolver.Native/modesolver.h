@@ -72,16 +72,18 @@ int ms_run_load_deck_file(ms_run *run, const char *path);
 
 /* Sets one deck key to a number, with the command line's override rules (the value set wins over the deck's; a
  * model source replaces the deck's; pivot.efolds replaces the deck's reheating and a reheating key replaces
- * pivot.efolds; start.efolds and start.phi0 replace each other). Keys: model.phi_end, model.parameters.NAME,
- * start.phi0, start.dphi0, start.efolds, pivot.k, pivot.efolds, reheating.w, reheating.temperature_gev,
- * reheating.efolds, reheating.dof, normalisation.a_s, normalisation.ln_10_10_a_s, modes.k_min,
- * modes.k_max, modes.count (a whole number), modes.tolerance. Values are checked when the run runs (or at
+ * pivot.efolds; start.efolds and start.phi0 replace each other). Keys: every deck key whose value is a number
+ * (the settings table of docs/models-and-decks.md, made from the settings schema: [model], [start], [pivot],
+ * [reheating], [normalisation] a_s and ln_10_10_a_s, [modes] (count a whole number), [output] table_h, the [flags]
+ * thresholds, the numeric [observables] keys) and model.parameters.NAME. Values are checked when the run runs (or at
  * ms_run_check), with the deck's messages. The deck is not parsed again: this is the call for samplers. */
 int ms_run_set_number(ms_run *run, const char *key, double value);
 
-/* Sets one deck key to text (same rules). Keys: title, model.catalogue, model.potential, model.kinetic,
- * model.coupling, model.palatini ("true" or "false"), normalisation.a_s ("none": no normalisation),
- * normalisation.solve_for (a parameter name: normalise by solving for it instead of rescaling V).
+/* Sets one deck key to text (same rules). Keys: every deck key whose value is text, a switch ("true" or "false")
+ * or a list (comma-separated, output.formats): title, model.catalogue, model.potential, model.kinetic,
+ * model.coupling, model.palatini, normalisation.a_s ("none": no normalisation), normalisation.solve_for (a parameter
+ * name: normalise by solving for it instead of rescaling V), output.dir, output.formats, flags.reference and the
+ * [observables] keys (numbers as text too).
  * A model given by formulas: model.potential (and model.kinetic, model.coupling), model.parameters.NAME, start.phi0. */
 int ms_run_set_text(ms_run *run, const char *key, const char *value);
 

@@ -1,15 +1,34 @@
 using ModeSolver.Integrators;
+using ModeSolver.Models;
 
 namespace ModeSolver.Background;
 
 /// <summary>Inputs of one background integration. Field values are in the user's field, M_pl = 1.</summary>
 public sealed record BackgroundSettings
 {
-    /// <summary>Initial field value.</summary>
-    public required double Phi0 { get; init; }
+    /// <summary>Initial field value of a single-field run (NaN when not given; n-field runs give <see cref="Fields0"/>).</summary>
+    public double Phi0 { get; init; } = double.NaN;
 
     /// <summary>Initial d phi / dN; null starts on the slow-roll attractor phi' = -V_phi / (K V).</summary>
     public double? DPhi0 { get; init; }
+
+    /// <summary>
+    /// Initial field values phi^I of an n-field run, in field order (null: the single-field <see cref="Phi0"/>). With one
+    /// entry it takes the place of <see cref="Phi0"/>.
+    /// </summary>
+    public IReadOnlyList<double>? Fields0 { get; init; }
+
+    /// <summary>
+    /// Initial d phi^I / dN of an n-field run (null: the slow-roll attractor direction -G^IJ V_J / V, physics.md section 7;
+    /// for one field <see cref="DPhi0"/> when given).
+    /// </summary>
+    public IReadOnlyList<double>? Velocity0 { get; init; }
+
+    /// <summary>
+    /// When set, inflation ends where the fields cross this surface g(phi) = 0 (in its <see cref="FieldSurface.Crossing"/>
+    /// direction) and the integration stops there; takes the place of <see cref="PhiEnd"/>.
+    /// </summary>
+    public FieldSurface? EndSurface { get; init; }
 
     /// <summary>Relative tolerance of the integration (absolute tolerance is a hundredth of it).</summary>
     public double Tolerance { get; init; } = 1e-10;

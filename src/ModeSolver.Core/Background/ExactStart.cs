@@ -21,11 +21,11 @@ public static class ExactStart
     {
         ArgumentNullException.ThrowIfNull(theory);
         ArgumentNullException.ThrowIfNull(settings);
-        double phi0 = settings.Phi0;
+        double phi0 = settings.Fields0 is { Count: 1 } f ? f[0] : settings.Phi0;
         BackgroundSolution? bg = null;
         for (int i = 0; i < MaxIterations; i++)
         {
-            bg = BackgroundSolver.Solve(theory, settings with { Phi0 = phi0, DPhi0 = null });
+            bg = BackgroundSolver.Solve(theory, settings with { Phi0 = phi0, DPhi0 = null, Fields0 = null, Velocity0 = null });
             double miss = efolds - bg.NTotal;
             if (Math.Abs(miss) <= Tolerance) return bg;
             double velocity = bg.At(bg.NStart).DPhi;

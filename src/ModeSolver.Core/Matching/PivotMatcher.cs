@@ -47,13 +47,15 @@ public static class PivotMatcher
 
         // The V scale that normalises the pivot placed N_* = x before the end: P_s is exactly proportional to the V scale
         // at fixed N (the shape of the background does not depend on it), so this is one amplitude evaluation and one
-        // rescaling. Sets sAt and psPivot.
-        double normalisedAt = double.NaN;
+        // rescaling. Sets sAt and psPivot. Each N_* is solved once: the root finder may return a point it evaluated
+        // before the last one (Brent's b after a swap), and the final Normalise then reuses that step's V scale.
+        var solved = new List<(double X, double Scale)>();
         void Normalise(double x)
         {
             double nPiv = nEnd - x;
             if (settings.ScalarAmplitude is not double target) { sAt = s; return; }
-            if (x == normalisedAt) return;
+            foreach (var (xSolved, scale) in solved)
+                if (xSolved == x) { sAt = scale; psPivot = target; return; }
             if (++iterations > settings.MaxIterations)
                 throw new PhysicsException($"The pivot matching did not converge in {settings.MaxIterations} amplitude evaluations (last N_* = {x:G8}, V scale = {sAt:G6}); give N_* directly or check the amplitude provider.");
             var bgs = background.WithVScale(s);
@@ -78,7 +80,7 @@ public static class PivotMatcher
             if (!(sAt > 0) || !double.IsFinite(sAt))
                 throw new PhysicsException($"Normalising to A_s = {target:G4} needs the potential scaled by {target / ps:G3}, beyond the double-precision range (P_s = {ps:G3} at the pivot before scaling); give the potential a scale nearer A_s.");
             psPivot = target;
-            normalisedAt = x;
+            solved.Add((x, sAt));
         }
 
         double nStar;

@@ -91,8 +91,8 @@ public sealed class FrictionScan
                 double n = Math.Min(_nEnd, _n0 + i * _dn);
                 var p = _background.At(n);
                 _f[i] = 3.0 - p.Epsilon1 + p.Epsilon2;
-                _nuS[i] = ModeIntegrator.ScalarIndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
-                _nuT[i] = ModeIntegrator.TensorIndexOf(p.Epsilon1);
+                _nuS[i] = CurvatureModeSystem.IndexOf(p.Epsilon1, p.Epsilon2, p.Epsilon3);
+                _nuT[i] = TensorModeSystem.IndexOf(p.Epsilon1);
                 _lnAH[i] = n + Math.Log(p.H) - _lnSqrtScale;
                 _slopeE2[i] = p.Epsilon2 * p.Epsilon3;
                 if (i == m - 1) { _logG[i] = 0.0; _sourceMax[i] = -2.0 * _lnAH[i]; continue; }

@@ -33,10 +33,9 @@ internal sealed class OscillatoryRegime
     private readonly PropagatorStep _step;
     private IBackground _bg = null!;
     private double _lnK, _tol;
-    private bool _scalar, _tensor, _derivs;
-    private int _tOff;
+    private ModeContext _ctx = null!;
     private int _evaluations;
-    private readonly int[] _scaleIndex = new int[24];
+    private int[] _scaleIndex = new int[24];
 
     public OscillatoryRegime() => _step = Step;
 
@@ -44,30 +43,32 @@ internal sealed class OscillatoryRegime
     public int BackgroundEvaluations => _evaluations;
 
     /// <summary>
-    /// Advances the mode state <paramref name="y"/> (the layout of <see cref="ModeIntegrator"/>: scalar blocks then
-    /// tensor blocks at <paramref name="tensorOffset"/>, each value block [Re f, Im f, Re f', Im f'] followed by the
-    /// two derivative blocks when <paramref name="derivatives"/>) from <paramref name="n0"/> towards <paramref name="n1"/>.
+    /// Advances the mode state <paramref name="y"/> (laid out by <paramref name="ctx"/>: one block per system, every
+    /// system a <see cref="DecoupledModeSystem"/>, each value block [Re f, Im f, Re f', Im f'] followed by the two
+    /// derivative blocks when it carries k-derivatives) from <paramref name="n0"/> towards <paramref name="n1"/>.
     /// Returns the run (where it stopped, steps, error estimates).
     /// </summary>
     public PropagatorRun Advance(IBackground background, double lnK, double n0, double n1, Span<double> y,
-        bool scalar, bool tensor, bool derivatives, int tensorOffset, double tolerance, int maxSteps)
+        ModeContext ctx, double tolerance, int maxSteps)
     {
         _bg = background;
         _lnK = lnK;
-        _scalar = scalar;
-        _tensor = tensor;
-        _derivs = derivatives;
-        _tOff = tensorOffset;
+        _ctx = ctx;
         _tol = tolerance;
         _evaluations = 0;
+        if (_scaleIndex.Length < y.Length) _scaleIndex = new int[y.Length];
         // Errors of every block (value and k-derivatives) are measured against the value block: an error in the
         // k-derivative block Z_j, which is ~(k/aH)^j larger than Z_0 inside the horizon, reaches n_s and alpha_s
         // after exit undiminished. Values against |f|, N-derivatives against |f'|.
-        for (int i = 0; i < y.Length; i++)
+        var layout = ctx.Layout;
+        for (int s = 0; s < layout.Count; s++)
         {
-            int block = i < tensorOffset || !tensor ? 0 : tensorOffset;
-            int within = (i - block) % 4;
-            _scaleIndex[i] = block + (within < 2 ? 0 : 2);
+            var b = layout[s];
+            for (int i = b.Offset; i < b.Offset + b.Size; i++)
+            {
+                int within = (i - b.Offset) % 4;
+                _scaleIndex[i] = b.Offset + (within < 2 ? 0 : 2);
+            }
         }
         return _stepper.Advance(_step, n0, n1, FirstStep, y, _scaleIndex.AsSpan(0, y.Length), tolerance, maxSteps);
     }
@@ -86,15 +87,12 @@ internal sealed class OscillatoryRegime
         if (!(x1 >= MinArgument)) return false;
         double diff = 2.0 * xm * Math.Sinh(half);
         Span<Jet2> phi = stackalloc Jet2[4];
-        if (_scalar)
+        var layout = _ctx.Layout;
+        for (int s = 0; s < layout.Count; s++)
         {
-            if (!Propagator((3.0 - e1 + p.Epsilon2) / (2.0 * c), c, x0, x1, diff, phi)) return false;
-            Apply(phi, y, yOut, 0);
-        }
-        if (_tensor)
-        {
-            if (!Propagator((3.0 - e1) / (2.0 * c), c, x0, x1, diff, phi)) return false;
-            Apply(phi, y, yOut, _tOff);
+            var sys = (DecoupledModeSystem)_ctx.System(s);
+            if (!Propagator(sys.Friction(p) / (2.0 * c), c, x0, x1, diff, phi)) return false;
+            Apply(phi, y, yOut, layout[s].Offset, layout[s].Size > 4);
         }
         return true;
     }
@@ -128,7 +126,7 @@ internal sealed class OscillatoryRegime
     }
 
     /// <summary>Applies the lifted step matrix to the blocks at <paramref name="off"/>.</summary>
-    private void Apply(ReadOnlySpan<Jet2> phi, ReadOnlySpan<double> y, Span<double> yOut, int off)
+    private static void Apply(ReadOnlySpan<Jet2> phi, ReadOnlySpan<double> y, Span<double> yOut, int off, bool derivatives)
     {
         Jet2 p11 = phi[0], p12 = phi[1], p21 = phi[2], p22 = phi[3];
         for (int part = 0; part < 2; part++)
@@ -137,7 +135,7 @@ internal sealed class OscillatoryRegime
             double z0 = y[a], dz0 = y[b];
             yOut[a] = p11.C0 * z0 + p12.C0 * dz0;
             yOut[b] = p21.C0 * z0 + p22.C0 * dz0;
-            if (!_derivs) continue;
+            if (!derivatives) continue;
             double z1 = y[a + 4], dz1 = y[b + 4], z2 = y[a + 8], dz2 = y[b + 8];
             yOut[a + 4] = p11.C0 * z1 + p12.C0 * dz1 + p11.D1 * z0 + p12.D1 * dz0;
             yOut[b + 4] = p21.C0 * z1 + p22.C0 * dz1 + p21.D1 * z0 + p22.D1 * dz0;

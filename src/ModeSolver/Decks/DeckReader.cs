@@ -13,27 +13,13 @@ namespace ModeSolver.Decks;
 public static class DeckReader
 {
     /// <summary>The numeric keys of the [flags] table (thresholds of the slow-roll disagreement flags).</summary>
-    public static IReadOnlyList<string> FlagKeys { get; } =
-        ["spectrum_threshold", "pivot_fraction", "sigma_n_s", "sigma_r", "sigma_alpha_s", "sigma_n_t", "epsilon_1_limit", "epsilon_2_limit"];
+    public static IReadOnlyList<string> FlagKeys => SettingsSchema.FlagKeys;
 
-    /// <summary>Sections and their keys.</summary>
-    public static IReadOnlyDictionary<string, string[]> Schema { get; } = new Dictionary<string, string[]>(StringComparer.Ordinal)
-    {
-        ["model"] = ["catalogue", "potential", "kinetic", "coupling", "palatini", "phi_end", "parameters"],
-        ["start"] = ["phi0", "dphi0", "efolds"],
-        ["pivot"] = ["k", "efolds"],
-        ["reheating"] = ["w", "temperature_gev", "efolds", "dof"],
-        ["normalisation"] = ["a_s", "ln_10_10_a_s", "solve_for"],
-        ["modes"] = ["k_min", "k_max", "count", "tolerance"],
-        ["output"] = ["dir", "formats", "table_h"],
-        ["flags"] = [.. FlagKeys, "reference"],
-        ["observables"] = [.. ObservablesKeys.Names],
-    };
+    /// <summary>Sections and their keys (from <see cref="SettingsSchema.All"/>).</summary>
+    public static IReadOnlyDictionary<string, string[]> Schema => SettingsSchema.Sections;
 
     /// <summary>Converts ln(10^10 A_s), the form papers quote, to A_s.</summary>
     public static double AmplitudeFromLog(double ln1010As) => Math.Exp(ln1010As) * 1e-10;
-
-    private static readonly string[] TopLevelKeys = ["title"];
 
     /// <summary>The largest deck accepted, 1 MiB: decks are short text files; anything larger is refused before it is read whole.</summary>
     public const int MaxDeckBytes = 1 << 20;
@@ -132,13 +118,13 @@ public static class DeckReader
                     if (value is not TomlTable table) throw Error(root, key, key, "must be a table ([" + key + "])");
                     ReadSection(key, table);
                 }
-                else if (key == "title")
+                else if (SettingsSchema.Find(key) is { } def && def.Section.Length == 0)
                 {
-                    _input.Title = new Located<string>(String(root, key, key, value), key, file, LineOf(root, key));
+                    Value(def, root, key, value);
                 }
                 else
                 {
-                    throw Error(root, key, key, $"is not a deck section or key (valid: {string.Join(", ", TopLevelKeys.Concat(Schema.Keys.Select(k => "[" + k + "]")))})");
+                    throw Error(root, key, key, $"is not a deck section or key (valid: {string.Join(", ", SettingsSchema.TopLevelKeys.Concat(Schema.Keys.Select(k => "[" + k + "]")))})");
                 }
             }
             return _input;
@@ -152,71 +138,57 @@ public static class DeckReader
                 string full = section + "." + key;
                 if (!valid.Contains(key))
                     throw Error(table, key, full, $"is not a key of [{section}] (valid: {string.Join(", ", valid)})");
-                int? line = LineOf(table, key);
-                switch (full)
-                {
-                    case "model.catalogue": _input.ModelId = new(String(table, key, full, value), full, file, line); break;
-                    case "model.potential": _input.Potential = new(String(table, key, full, value), full, file, line); break;
-                    case "model.kinetic": _input.Kinetic = new(String(table, key, full, value), full, file, line); break;
-                    case "model.coupling": _input.Coupling = new(String(table, key, full, value), full, file, line); break;
-                    case "model.palatini":
-                        if (value is not bool b) throw Error(table, key, full, $"must be true or false (got {Describe(value)})");
-                        _input.Palatini = new(b, full, file, line);
-                        break;
-                    case "model.phi_end": _input.PhiEnd = Number(table, key, full, value); break;
-                    case "model.parameters":
-                        if (value is not TomlTable pars) throw Error(table, key, full, "must be a table ([model.parameters])");
-                        foreach (var (name, pv) in pars)
-                            _input.Parameters[name] = Number(pars, name, full + "." + name, pv);
-                        break;
-                    case "start.phi0": _input.Phi0 = Number(table, key, full, value); break;
-                    case "start.dphi0": _input.DPhi0 = Number(table, key, full, value); break;
-                    case "start.efolds": _input.StartEfolds = Number(table, key, full, value); break;
-                    case "pivot.k": _input.KPivot = Number(table, key, full, value); break;
-                    case "pivot.efolds": _input.Efolds = Number(table, key, full, value); break;
-                    case "reheating.w": _input.ReheatW = Number(table, key, full, value); break;
-                    case "reheating.temperature_gev": _input.ReheatTemperature = Number(table, key, full, value); break;
-                    case "reheating.efolds": _input.ReheatEfolds = Number(table, key, full, value); break;
-                    case "reheating.dof": _input.ReheatDof = Number(table, key, full, value); break;
-                    case "normalisation.a_s":
-                        if (value is string s && string.Equals(s.Trim(), "none", StringComparison.OrdinalIgnoreCase))
-                            _input.Amplitude = new(null, full, file, line);
-                        else
-                        {
-                            var n = Number(table, key, full, value, "a number or \"none\"");
-                            _input.Amplitude = new(n.Value, full, file, line);
-                        }
-                        break;
-                    case "normalisation.ln_10_10_a_s":
-                        if (table.ContainsKey("a_s")) throw Error(table, key, full, "cannot be combined with normalisation.a_s; give A_s in one form");
-                        _input.Amplitude = new(AmplitudeFromLog(Number(table, key, full, value).Value), full, file, line);
-                        break;
-                    case "normalisation.solve_for": _input.SolveFor = new(String(table, key, full, value), full, file, line); break;
-                    case "output.table_h": _input.TableH = Number(table, key, full, value); break;
-                    case "flags.reference": _input.FlagReference = new(String(table, key, full, value), full, file, line); break;
-                    case "modes.k_min": _input.KMin = Number(table, key, full, value); break;
-                    case "modes.k_max": _input.KMax = Number(table, key, full, value); break;
-                    case "modes.count":
-                        if (value is not long count) throw Error(table, key, full, $"must be a whole number (got {Describe(value)})");
-                        _input.KCount = new(count, full, file, line);
-                        break;
-                    case "modes.tolerance": _input.Tolerance = Number(table, key, full, value); break;
-                    case "output.dir": _input.OutDir = new(String(table, key, full, value), full, file, line); break;
-                    case "output.formats":
-                        if (value is not TomlArray arr) throw Error(table, key, full, $"must be an array of strings, e.g. [\"hdf5\", \"table\"] (got {Describe(value)})");
-                        var list = new List<string>();
-                        foreach (var item in arr)
-                        {
-                            if (item is not string f) throw Error(table, key, full, $"must be an array of strings (found {Describe(item)})");
-                            list.Add(f);
-                        }
-                        _input.Formats = new(list, full, file, line);
-                        break;
-                    default:
-                        if (section == "flags") _input.FlagValues[key] = Number(table, key, full, value);
-                        else if (section == "observables") _input.ObservableValues[key] = Observable(table, key, full, value);
-                        break;
-                }
+                Value(SettingsSchema.Get(full), table, key, value);
+            }
+        }
+
+        // One value of a setting, checked for its TOML type and stored where the setting keeps it.
+        private void Value(SettingDef def, TomlTable table, string key, object? value)
+        {
+            string full = def.Path;
+            int? line = LineOf(table, key);
+            if (def.FormOf is { } target)
+            {
+                var other = SettingsSchema.Get(target);
+                if (table.ContainsKey(other.Name)) throw Error(table, key, full, $"cannot be combined with {other.Path}; {def.BothFormsHint}");
+                _input.SetValue(other, new Located<double?>(def.ToTarget!(Number(table, key, full, value).Value), full, file, line));
+                return;
+            }
+            if (def.Family == SettingFamily.Flag) { _input.FlagValues[def.Name] = Number(table, key, full, value); return; }
+            if (def.Family == SettingFamily.Observable) { _input.ObservableValues[def.Name] = Observable(table, key, full, value); return; }
+            switch (def.Kind)
+            {
+                case SettingKind.Text: _input.SetValue(def, new Located<string>(String(table, key, full, value), full, file, line)); break;
+                case SettingKind.Number: _input.SetValue(def, Number(table, key, full, value)); break;
+                case SettingKind.Switch:
+                    if (value is not bool b) throw Error(table, key, full, $"must be true or false (got {Describe(value)})");
+                    _input.SetValue(def, new Located<bool>(b, full, file, line));
+                    break;
+                case SettingKind.Whole:
+                    if (value is not long count) throw Error(table, key, full, $"must be a whole number (got {Describe(value)})");
+                    _input.SetValue(def, new Located<long>(count, full, file, line));
+                    break;
+                case SettingKind.NumberOrNone:
+                    if (value is string s && string.Equals(s.Trim(), "none", StringComparison.OrdinalIgnoreCase))
+                        _input.SetValue(def, new Located<double?>(null, full, file, line));
+                    else
+                        _input.SetValue(def, new Located<double?>(Number(table, key, full, value, "a number or \"none\"").Value, full, file, line));
+                    break;
+                case SettingKind.Table:
+                    if (value is not TomlTable pars) throw Error(table, key, full, $"must be a table ([{full}])");
+                    foreach (var (name, pv) in pars)
+                        _input.Parameters[name] = Number(pars, name, full + "." + name, pv);
+                    break;
+                case SettingKind.List:
+                    if (value is not TomlArray arr) throw Error(table, key, full, $"must be an array of strings, e.g. [\"hdf5\", \"table\"] (got {Describe(value)})");
+                    var list = new List<string>();
+                    foreach (var item in arr)
+                    {
+                        if (item is not string f) throw Error(table, key, full, $"must be an array of strings (found {Describe(item)})");
+                        list.Add(f);
+                    }
+                    _input.SetValue(def, new Located<IReadOnlyList<string>>(list, full, file, line));
+                    break;
             }
         }
 

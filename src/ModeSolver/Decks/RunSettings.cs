@@ -24,6 +24,9 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>Non-fatal remarks found while resolving (unused parameters, ...), one line each.</summary>
     public IReadOnlyList<string> Warnings { get; init; } = [];
 
+    /// <summary>The numbers of the settings as given or defaulted, checked by the schema's validators (<see cref="SettingValues"/>).</summary>
+    public SettingValues Values { get; init; } = SettingValues.Empty;
+
     /// <summary>Thresholds of the slow-roll disagreement flags (deck table [flags]).</summary>
     public Diagnostics.FlagSettings Flags { get; init; } = Diagnostics.FlagSettings.Default;
 

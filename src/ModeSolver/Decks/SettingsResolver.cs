@@ -88,8 +88,7 @@ public static class SettingsResolver
             warnings.Add($"{Where(v)}{v.Key} is not used by the model's formulas");
         }
 
-        double? phiEnd = input.PhiEnd?.Value ?? entry?.PhiEnd;
-        if (input.PhiEnd is { } pe && !double.IsFinite(pe.Value)) throw pe.Error($"must be finite (got {pe.Value})");
+        double? phiEnd = Check("model.phi_end", input.PhiEnd) ?? entry?.PhiEnd;
         var model = new ModelSpec(entry?.Id, potential, kinetic, coupling, palatini, pars, phiEnd);
 
         // ---- start ----
@@ -99,14 +98,12 @@ public static class SettingsResolver
         {
             if (input.Phi0 is { } both) throw both.Error($"cannot be combined with {se.Key}: start at a field value or a number of e-folds before the end, not both");
             if (input.DPhi0 is { } dv) throw dv.Error($"cannot be combined with {se.Key}: a start given in e-folds is on the slow-roll attractor");
-            if (!(se.Value > 0 && se.Value < 1000)) throw se.Error($"must be a number of e-folds between 0 and 1000 (got {se.Value})");
-            startEfolds = se.Value;
+            startEfolds = Check("start.efolds", se);
             phi0 = StartGuess(model, se, entry);
         }
         else if (input.Phi0 is { } ph)
         {
-            if (!double.IsFinite(ph.Value)) throw ph.Error($"must be finite (got {ph.Value})");
-            phi0 = ph.Value;
+            phi0 = Check("start.phi0", ph)!.Value;
         }
         else if (entry?.DefaultStartEfolds is double catalogueStart && input.DPhi0 is null)
         {
@@ -115,39 +112,33 @@ public static class SettingsResolver
         }
         else if (entry is not null) phi0 = entry.DefaultPhi0;
         else throw new DeckException($"{where}: start.phi0 or start.efolds (or --phi0 or --start-efolds) is required when the model is given by formulas", "start.phi0");
-        if (input.DPhi0 is { } dp && !double.IsFinite(dp.Value)) throw dp.Error($"must be finite (got {dp.Value})");
-        var initial = new InitialConditions(phi0, input.DPhi0?.Value) { StartEfolds = startEfolds };
+        var initial = new InitialConditions(phi0, Check("start.dphi0", input.DPhi0)) { StartEfolds = startEfolds };
 
         // ---- pivot and reheating ----
-        double kPivot = Positive(input.KPivot) ?? Constants.DefaultPivotK;
+        double kPivot = Check("pivot.k", input.KPivot)!.Value;
         double? efolds = null;
         if (input.Efolds is { } ef)
         {
-            if (!(ef.Value > 0 && ef.Value < 1000)) throw ef.Error($"must be a number of e-folds between 0 and 1000 (got {ef.Value})");
-            efolds = ef.Value;
+            efolds = Check("pivot.efolds", ef);
             var clash = input.ReheatTemperature ?? input.ReheatEfolds ?? input.ReheatW;
             if (clash is { } c) throw c.Error($"cannot be combined with {ef.Key}: N_* is either given or computed from reheating");
         }
-        double dof = Positive(input.ReheatDof) ?? Constants.DefaultReheatingDof;
+        double dof = Check("reheating.dof", input.ReheatDof)!.Value;
         ReheatingSpec reheating;
         if (input.ReheatTemperature is { } t && input.ReheatEfolds is { } n)
             throw n.Error($"cannot be combined with {t.Key}: give the reheating temperature or its duration, not both");
         double w = 0.0;
         if (input.ReheatW is { } ww)
         {
-            if (!(ww.Value > -1.0 / 3.0 && ww.Value <= 1.0)) throw ww.Error($"must satisfy -1/3 < w <= 1 (got {ww.Value})");
-            w = ww.Value;
+            w = Check("reheating.w", ww)!.Value;
         }
         if (input.ReheatTemperature is { } temp)
         {
-            if (!(temp.Value >= MinReheatingTemperatureGeV) || !double.IsFinite(temp.Value))
-                throw temp.Error($"must be at least {MinReheatingTemperatureGeV} GeV (nucleosynthesis) and finite (got {temp.Value})");
-            reheating = new ReheatingSpec(ReheatingKind.Temperature, w, temp.Value, null, dof);
+            reheating = new ReheatingSpec(ReheatingKind.Temperature, w, Check("reheating.temperature_gev", temp), null, dof);
         }
         else if (input.ReheatEfolds is { } nr)
         {
-            if (!(nr.Value >= 0 && nr.Value < 200)) throw nr.Error($"must be a number of e-folds between 0 and 200 (got {nr.Value})");
-            reheating = new ReheatingSpec(ReheatingKind.Efolds, w, null, nr.Value, dof);
+            reheating = new ReheatingSpec(ReheatingKind.Efolds, w, null, Check("reheating.efolds", nr), dof);
         }
         else
         {
@@ -178,15 +169,9 @@ public static class SettingsResolver
         }
 
         // ---- k range ----
-        var kd = KRangeSpec.Default;
-        double kMin = Positive(input.KMin) ?? kd.KMin;
-        double kMax = Positive(input.KMax) ?? kd.KMax;
-        long count = kd.Count;
-        if (input.KCount is { } kc)
-        {
-            if (kc.Value < 1 || kc.Value > 1_000_000) throw kc.Error($"must be a whole number from 1 to 1000000 (got {kc.Value})");
-            count = kc.Value;
-        }
+        double kMin = Check("modes.k_min", input.KMin)!.Value;
+        double kMax = Check("modes.k_max", input.KMax)!.Value;
+        long count = (long)Check("modes.count", input.KCount?.WithKey())!.Value;
         if (kMin > kMax)
         {
             var blame = input.KMin ?? input.KMax!.Value;
@@ -196,14 +181,7 @@ public static class SettingsResolver
             throw (input.KCount!.Value).Error($"= 1 needs k_min = k_max (got {kMin} and {kMax})");
         if (count > 1 && kMin == kMax)
             throw (input.KMin ?? input.KMax ?? input.KCount!.Value.WithKey()).Error($"gives k_min = k_max = {kMin} with {count} wavenumbers");
-        double tol = kd.Tolerance;
-        if (input.Tolerance is { } tt)
-        {
-            // Below MinTolerance the mode integrator's step tolerance (tolerance/6) nears the 1e-15 round-off floor
-            // and the run fails after minutes instead of at once.
-            if (!(tt.Value >= MinTolerance && tt.Value < 0.1)) throw tt.Error($"must lie in (0, 0.1), at least {MinTolerance:G3} (the double-precision limit of the modes), e.g. 1e-5 (got {tt.Value})");
-            tol = tt.Value;
-        }
+        double tol = Check("modes.tolerance", input.Tolerance)!.Value;
         var kRange = new KRangeSpec(kMin, kMax, (int)count, tol) { KMinIsDefault = input.KMin is null };
 
         // ---- output ----
@@ -228,12 +206,7 @@ public static class SettingsResolver
             if (list.Count == 0) throw fm.Error($"is empty (valid: {string.Join(", ", OutputSpec.KnownFormats)})");
             formats = list;
         }
-        double? tableH = null;
-        if (input.TableH is { } th)
-        {
-            if (!(th.Value >= 0.2 && th.Value <= 2)) throw th.Error($"is the dimensionless Hubble parameter h and must lie in [0.2, 2] (got {th.Value})");
-            tableH = th.Value;
-        }
+        double? tableH = Check("output.table_h", input.TableH);
         var output = new OutputSpec(dir, formats) { TableH = tableH };
 
         var settings = new RunSettings(model, initial, pivot, amplitude, kRange, output)
@@ -243,6 +216,9 @@ public static class SettingsResolver
             Warnings = warnings,
             Flags = FlagSettingsFor(input),
             Observables = ObservablesKeys.Resolve(input.ObservableValues),
+            // Every number of the schema checked (the ones above were checked where they are used, so this pass adds
+            // no new message for them) and kept for the stage that reads it.
+            Values = SettingValues.From(input),
         };
         CheckTheory(settings, input, entry);
         return settings;
@@ -304,7 +280,7 @@ public static class SettingsResolver
         var f = FlagSettings.Default;
         foreach (var (key, v) in input.FlagValues)
         {
-            if (!(v.Value > 0) || !double.IsFinite(v.Value)) throw v.Error($"must be a finite positive number (got {v.Value})");
+            if (SettingsSchema.Find("flags." + key) is { Family: SettingFamily.Flag } def) SettingsSchema.Checked(def, v);
             f = key switch
             {
                 "spectrum_threshold" => f with { SpectrumThreshold = v.Value },
@@ -364,12 +340,8 @@ public static class SettingsResolver
         if (s is { } v && string.IsNullOrWhiteSpace(v.Value)) throw v.Error(problem);
     }
 
-    private static double? Positive(Located<double>? v)
-    {
-        if (v is not { } x) return null;
-        if (!(x.Value > 0) || !double.IsFinite(x.Value)) throw x.Error($"must be a positive number (got {x.Value})");
-        return x.Value;
-    }
+    // The value (or the schema's default when absent) checked by the setting's validator in the schema.
+    private static double? Check(string path, Located<double>? v) => SettingsSchema.Checked(SettingsSchema.Get(path), v);
 
     private static string Where<T>(Located<T> v) => v.File is null ? "" : v.Line is int l ? $"{v.File}:{l}: " : $"{v.File}: ";
 }

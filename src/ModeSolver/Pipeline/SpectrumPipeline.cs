@@ -421,47 +421,12 @@ public static class SpectrumPipeline
             spec.Coupling, parameters.ToImmutable(), frame);
     }
 
+    // The settings list the outputs record, made from the settings schema (SettingsSchema.ReportEntries).
     private static ReportSettings ReportSettingsFor(RunSettings s, FlagSettings flags)
     {
-        var inv = CultureInfo.InvariantCulture;
-        string F(double x) => x.ToString("R", inv);
-        string? Opt(double? x) => x is { } v ? F(v) : null;
         var e = ImmutableArray.CreateBuilder<Setting>();
-        void Add(string key, string? value, bool number = false) { if (value is not null) e.Add(new Setting(key, value, number && IsNumeric(value))); }
-        Add("title", s.Title.Length > 0 ? s.Title : null);
-        Add("deck", s.DeckPath);
-        Add("model.catalogue", s.Model.CatalogueId);
-        Add("model.potential", s.Model.Potential);
-        Add("model.kinetic", s.Model.Kinetic);
-        Add("model.coupling", s.Model.Coupling);
-        Add("model.palatini", s.Model.Coupling is null ? null : s.Model.Palatini ? "true" : "false");
-        foreach (var kv in s.Model.Parameters.OrderBy(kv => kv.Key, StringComparer.Ordinal))
-            Add("model.parameters." + kv.Key, F(kv.Value), true);
-        Add("model.phi_end", Opt(s.Model.PhiEnd), true);
-        Add("start.phi0", F(s.Initial.Phi0), true);
-        Add("start.efolds", Opt(s.Initial.StartEfolds), true);
-        Add("start.dphi0", Opt(s.Initial.DPhi0) ?? "attractor", true);
-        Add("pivot.k", F(s.Pivot.KPivot), true);
-        Add("pivot.efolds", Opt(s.Pivot.Efolds), true);
-        Add("reheating.kind", s.Pivot.Efolds is null ? s.Pivot.Reheating.Kind.ToString().ToLowerInvariant() : null);
-        Add("reheating.w", s.Pivot.Efolds is null && s.Pivot.Reheating.Kind != ReheatingKind.Instantaneous ? F(s.Pivot.Reheating.W) : null, true);
-        Add("reheating.temperature_gev", Opt(s.Pivot.Reheating.TemperatureGeV), true);
-        Add("reheating.efolds", Opt(s.Pivot.Reheating.Efolds), true);
-        Add("reheating.dof", F(s.Pivot.Reheating.Dof), true);
-        Add("normalisation.a_s", s.Amplitude.ScalarAmplitude is { } a ? F(a) : "none", true);
-        Add("normalisation.solve_for", s.Amplitude.SolveFor);
-        Add("modes.k_min", F(s.KRange.KMin), true);
-        Add("modes.k_max", F(s.KRange.KMax), true);
-        Add("modes.count", s.KRange.Count.ToString(inv), true);
-        Add("modes.tolerance", F(s.KRange.Tolerance), true);
-        Add("output.dir", s.Output.Directory);
-        Add("output.formats", string.Join(",", s.Output.Formats));
-        Add("output.table_h", Opt(s.Output.TableH), true);
-        foreach (var (key, value, number) in ObservablesKeys.Entries(s.Observables)) Add("observables." + key, value, number);
+        foreach (var (key, value, number) in SettingsSchema.ReportEntries(s)) e.Add(new Setting(key, value, number));
         return new ReportSettings(e.ToImmutable(), flags);
     }
 
-    // Settings whose text is a number (round-trip form) are written as numbers; formulas, paths and words stay text.
-    private static bool IsNumeric(string value) =>
-        double.TryParse(value, NumberStyles.Float, CultureInfo.InvariantCulture, out double x) && double.IsFinite(x);
 }

@@ -20,9 +20,8 @@ namespace ModeSolver.Sweeps;
 /// </summary>
 public sealed class PipelineSweepEvaluator : ISweepEvaluator
 {
-    /// <summary>The keys a sweep axis may name (<c>param.NAME</c> stands for any model parameter).</summary>
-    public static IReadOnlyList<string> KnownKeys { get; } =
-        ["param.NAME", "model", "efolds", "reheat.w", "reheat.T", "reheat.efolds", "reheat.dof", "phi0", "start.efolds", "phi_end", "k_pivot", "amplitude"];
+    /// <summary>The keys a sweep axis may name (<c>param.NAME</c> stands for any model parameter): the settings of <see cref="SettingsSchema"/> with a sweep key.</summary>
+    public static IReadOnlyList<string> KnownKeys => SettingsSchema.SweepKeys;
 
     /// <summary>The key of the axis over catalogue ids (its values are names: <see cref="SweepAxis.Named"/>).</summary>
     public const string ModelKey = "model";
@@ -225,27 +224,17 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             string key = point.Keys[i];
             double v = point.Values[i];
             var at = new Located<double>(v, SweptValueName(key, v));
-            switch (key)
+            if (key == ModelKey)
             {
-                case "efolds": o.Efolds = at; break;
-                case "reheat.w": o.ReheatW = at; break;
-                case "reheat.T": o.ReheatTemperature = at; break;
-                case "reheat.efolds": o.ReheatEfolds = at; break;
-                case "reheat.dof": o.ReheatDof = at; break;
-                case "phi0": o.Phi0 = at; break;
-                case "start.efolds": o.StartEfolds = at; break;
-                case "phi_end": o.PhiEnd = at; break;
-                case ModelKey:
-                    if (_modelIds is null) throw new SweepException($"sweep key '{ModelKey}' needs the axis' catalogue ids");
-                    o.ModelId = new Located<string>(_modelIds[(int)v], ModelValueName(key, v));
-                    break;
-                case "k_pivot": o.KPivot = at; break;
-                case "amplitude": o.Amplitude = new Located<double?>(v, at.Key); break;
-                default:
-                    if (!key.StartsWith(ParamPrefix, StringComparison.Ordinal)) throw new SweepException($"sweep key '{key}' is not understood");
-                    o.Parameters[key[ParamPrefix.Length..]] = at;
-                    break;
+                if (_modelIds is null) throw new SweepException($"sweep key '{ModelKey}' needs the axis' catalogue ids");
+                o.ModelId = new Located<string>(_modelIds[(int)v], ModelValueName(key, v));
             }
+            else if (key.StartsWith(ParamPrefix, StringComparison.Ordinal)) o.Parameters[key[ParamPrefix.Length..]] = at;
+            else if (SettingsSchema.FindSweep(key) is { Kind: SettingKind.NumberOrNone } amount) o.SetValue(amount, new Located<double?>(v, at.Key));
+            else if (SettingsSchema.FindSweep(key) is { Kind: SettingKind.Number } number) o.SetValue(number, at);
+            else if (SettingsSchema.FindSweep(key) is { Kind: SettingKind.Whole } whole)
+                o.SetValue(whole, v == Math.Floor(v) && Math.Abs(v) < 1e15 ? new Located<long>((long)v, at.Key) : throw at.Error("must be a whole number"));
+            else throw new SweepException($"sweep key '{key}' is not understood");
         }
         return SettingsResolver.Resolve(RunInput.Merge(_deck, o));
     }

@@ -1,4 +1,3 @@
-using System.Collections;
 using System.CommandLine;
 using ModeSolver.Cli;
 using ModeSolver.Cli.Commands;
@@ -7,9 +6,9 @@ using ModeSolver.Decks;
 namespace ModeSolver.Tests.Decks;
 
 /// <summary>
-/// Every deck key has a command-line option and every run option a deck key, both from the one list
-/// <see cref="RunOptions.DeckKeyOptions"/>; each pair is checked to set the same field of <see cref="RunInput"/>, so a
-/// key added to the deck reader without its option (or an option wired to another field) fails here.
+/// Every deck key has a command-line option and every run option a deck key, both from the settings schema
+/// (<see cref="RunOptions.DeckKeyOptions"/>); each pair is checked to set the same setting of <see cref="RunInput"/>, so
+/// an option wired to another setting fails here.
 /// </summary>
 public class DeckKeyOptionTests
 {
@@ -135,19 +134,14 @@ public class DeckKeyOptionTests
         return o.Overrides(parse);
     }
 
-    // The RunInput fields that hold a value (a dictionary field by its entries' names).
+    // The settings of the schema that hold a value in the input (the parameters by "model.parameters[*]").
     private static SortedSet<string> FieldsSet(RunInput input)
     {
         var set = new SortedSet<string>(StringComparer.Ordinal);
-        foreach (var p in typeof(RunInput).GetProperties())
+        foreach (var def in SettingsSchema.All)
         {
-            if (p.Name == nameof(RunInput.DeckPath)) continue;
-            object? v = p.GetValue(input);
-            if (v is IDictionary d)
-            {
-                foreach (var k in d.Keys) set.Add($"{p.Name}[{(p.Name == nameof(RunInput.Parameters) ? "*" : k)}]");
-            }
-            else if (v is not null) set.Add(p.Name);
+            if (def.FormOf is not null) continue; // stored under the setting it is a form of
+            if (input.GetValue(def) is not null) set.Add(def.Kind == SettingKind.Table ? def.Path + "[*]" : def.Slot);
         }
         return set;
     }

@@ -134,4 +134,33 @@ public class PivotMatcherTests
         Assert.Contains("above the temperature at the end of inflation", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithTemperature(0, 1e18) })).Message);
         Assert.Contains("below 0.004 GeV", Assert.Throws<PhysicsException>(() => Match(new PivotSettings { Reheating = ReheatingHistory.WithEFolds(0, 200) })).Message);
     }
+
+    /// <summary>Counts the amplitude evaluations and the distinct (background, k) pairs they were asked for.</summary>
+    private sealed class CountingAmplitude(IPivotAmplitude inner) : IPivotAmplitude
+    {
+        public readonly List<(double VScale, double K)> Calls = new();
+        public string Name => inner.Name;
+        public double ScalarPower(IBackground background, double kBackgroundUnits)
+        {
+            Calls.Add((background.VScale, kBackgroundUnits));
+            return inner.ScalarPower(background, kBackgroundUnits);
+        }
+    }
+
+    [Theory]
+    [InlineData(0.0, 1e6)]
+    [InlineData(0.0, 1e10)]
+    [InlineData(1.0 / 3.0, 1e8)]
+    [InlineData(0.5, 1e12)]
+    public void EachPivotModeIsSolvedOncePerMatchingStep(double w, double tReh)
+    {
+        // The N_* iteration evaluates the pivot amplitude once per distinct N_*; the final normalisation at the root
+        // reuses the step that evaluated it (Brent's method may return an earlier point than its last one).
+        var counting = new CountingAmplitude(new SlowRollAmplitude());
+        var m = PivotMatcher.Match(StarobinskyBg.Value, new PivotSettings { Reheating = ReheatingHistory.WithTemperature(w, tReh) }, counting);
+        var distinct = new HashSet<(double, double)>(counting.Calls);
+        Assert.Equal(distinct.Count, counting.Calls.Count);
+        Assert.Equal(counting.Calls.Count, m.Iterations);
+        Assert.Equal(1.0, SlowRoll.HubbleSecondOrder(m.Background.At(m.NPivot)).Ps / Constants.DefaultScalarAmplitude, 1e-9);
+    }
 }

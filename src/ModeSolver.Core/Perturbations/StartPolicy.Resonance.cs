@@ -9,7 +9,7 @@ namespace ModeSolver.Perturbations;
 /// large. omega is measured from the background (extrema of e2, <see cref="FrictionScan.MaxOscillationFrequency"/>),
 /// not from the formula, over the e-folds the mode spends inside the horizon.
 /// </summary>
-public sealed partial class ModeIntegrator
+internal sealed partial class StartPolicy
 {
     /// <summary>
     /// A mode starts at k/aH of at least this many times the largest oscillation frequency (per e-fold) of the
@@ -29,11 +29,11 @@ public sealed partial class ModeIntegrator
     /// model at depths 280-430), so deeper starts take proportionally tighter steps (DOP853's cost grows only as the
     /// eighth root). 1 when the oscillatory-regime propagator carries the deep part.
     /// </summary>
-    private double DeepStepScale(double startDepth) =>
-        UseOscillatoryRegime ? 1.0 : Math.Min(1.0, DeepStepReference / startDepth);
+    public double DeepStepScale(double startDepth) =>
+        OscillatoryRegime ? 1.0 : Math.Min(1.0, DeepStepReference / startDepth);
 
     /// <summary>Deepens the start (<paramref name="n"/>, <paramref name="depth"/>) to <see cref="ResonanceStartFactor"/> times the background's oscillation frequency.</summary>
-    private void ResonantStart(ref double n, ref double depth, double nA, double lnDepthA, double tol, InitialDataKind kind, FrictionScan? scan)
+    private void ResonantStart(ref double n, ref double depth, double nA, double lnDepthA, double tol, InitialDataKind kind)
     {
         var table = _oscScan;
         if (table is null) return;
@@ -44,7 +44,7 @@ public sealed partial class ModeIntegrator
             double want = ResonanceStartFactor * omega;
             if (!(want > depth * 1.0001)) return;
             if (lnDepthA < Math.Log(want))
-                throw new PhysicsException($"mode k = {Math.Exp(_lnK):G6} must start at k/aH >= {want:G4} ({ResonanceStartFactor:G2} times the background's oscillation frequency {omega:G4} per e-fold, measured between N = {n:G6} and {nExit:G6}), but the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}: start the field further up the potential (phi0) or raise kMin");
+                throw new PhysicsException($"mode k = {Math.Exp(LnK):G6} must start at k/aH >= {want:G4} ({ResonanceStartFactor:G2} times the background's oscillation frequency {omega:G4} per e-fold, measured between N = {n:G6} and {nExit:G6}), but the background starts (N = {nA:G6}) with k/aH = {Math.Exp(lnDepthA):G4}: start the field further up the potential (phi0) or raise kMin");
             depth = want;
             n = DepthTime(depth, nA);
             for (int j = 0; j < 8 && InitialDataError(n, depth, kind) > tol; j++)
@@ -75,24 +75,32 @@ public sealed partial class ModeIntegrator
         if (table is null) return 0.0;
         double omega = table.MaxOscillationFrequency(n0 - 0.5, n0 + 0.5);
         if (!(omega > 0)) return 0.0;
-        double lo = Math.Max(_bg.NStart, n0 - Math.PI / omega), hi = Math.Min(_bg.NEnd, n0 + Math.PI / omega);
-        var ks = _bg.NonSmoothTimes;
+        double lo = Math.Max(Bg.NStart, n0 - Math.PI / omega), hi = Math.Min(Bg.NEnd, n0 + Math.PI / omega);
+        var ks = Bg.NonSmoothTimes;
         for (int i = 0; i < ks.Count; i++)
         {
             if (ks[i] > n0 && ks[i] < hi) hi = ks[i];
             if (ks[i] <= n0 && ks[i] > lo) lo = ks[i];
         }
-        double sMin = double.PositiveInfinity, sMax = double.NegativeInfinity, tMin = sMin, tMax = sMax;
+        // Per system: the range of its local index over the period.
+        Span<double> lo2 = stackalloc double[StateLayout.MaxBlocks];
+        Span<double> hi2 = stackalloc double[StateLayout.MaxBlocks];
+        int count = _ctx.SystemCount;
+        lo2.Fill(double.PositiveInfinity);
+        hi2.Fill(double.NegativeInfinity);
         const int samples = 16;
         for (int i = 0; i <= samples; i++)
         {
             double t = lo + (hi - lo) * i / samples;
-            if (_scalar) { double v = ScalarIndex(t); sMin = Math.Min(sMin, v); sMax = Math.Max(sMax, v); }
-            if (_tensor) { double v = TensorIndex(t); tMin = Math.Min(tMin, v); tMax = Math.Max(tMax, v); }
+            for (int s = 0; s < count; s++)
+            {
+                double v = _ctx.System(s).LocalIndex(Bg.At(t));
+                lo2[s] = Math.Min(lo2[s], v);
+                hi2[s] = Math.Max(hi2[s], v);
+            }
         }
         double range = 0;
-        if (_scalar) range = Math.Max(range, sMax - sMin);
-        if (_tensor) range = Math.Max(range, tMax - tMin);
+        for (int s = 0; s < count; s++) range = Math.Max(range, hi2[s] - lo2[s]);
         return double.IsFinite(range) ? OscillatingDriftMargin * 0.5 * omega * range : 0.0;
     }
 }
