@@ -5,7 +5,7 @@ internal sealed class Compiler
 {
     private readonly string _text;
     private readonly List<Instr> _code = new();
-    private int _registers = 1; // register 0 is the variable
+    private int _registers = 1; // registers 0 .. variables-1 hold the variables
     // Set by CompileShared: a node object met again (a sub-tree shared by several roots) reuses its register.
     private Dictionary<Node, Operand>? _shared;
 
@@ -17,9 +17,9 @@ internal sealed class Compiler
         public static Operand Reg(int r) => new(false, 0, r);
     }
 
-    public static CompiledProgram Compile(Node root, string text)
+    public static CompiledProgram Compile(Node root, string text, int variables = 1)
     {
-        var c = new Compiler(text);
+        var c = new Compiler(text) { _registers = Math.Max(1, variables) };
         var result = c.CompileNode(root);
         int reg = c.Materialize(result);
         return new CompiledProgram(c._code.ToArray(), c._registers, reg);
@@ -94,7 +94,7 @@ internal sealed class Compiler
             case NodeKind.Parameter:
                 return Operand.Const(node.Value);
             case NodeKind.Variable:
-                return Operand.Reg(0);
+                return Operand.Reg(node.Index);
             case NodeKind.Negate:
             {
                 var x = CompileNode(node.Children[0]);

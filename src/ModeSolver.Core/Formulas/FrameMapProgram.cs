@@ -57,7 +57,7 @@ internal sealed class FrameMapProgram
     public JetPair Evaluate(double phi) => _jit != null ? _jit(_constants, phi) : Interpret(phi);
 
     /// <summary>True when the program can also run in double-double arithmetic (<see cref="EvaluateExtended"/>).</summary>
-    public bool SupportsExtended => Jet3ExtendedEvaluator.Supports(_program);
+    public bool SupportsExtended => Extended.Supports(_program);
 
     /// <summary>
     /// V and K jets evaluated in double-double arithmetic and rounded at the end: exact to double precision where the
@@ -67,9 +67,9 @@ internal sealed class FrameMapProgram
     [System.Runtime.CompilerServices.MethodImpl(System.Runtime.CompilerServices.MethodImplOptions.AggressiveOptimization)]
     public JetPair EvaluateExtended(double phi)
     {
-        Span<DoubleDouble> s = stackalloc DoubleDouble[_program.RegisterCount * 4];
-        Jet3ExtendedEvaluator.Run(_program, phi, s);
-        return new JetPair(Jet3ExtendedEvaluator.Read(s, _v), Jet3ExtendedEvaluator.Read(s, _k));
+        Span<Series3<Extended>> s = stackalloc Series3<Extended>[_program.RegisterCount];
+        Jet3Evaluator.Run<Extended>(_program, phi, s);
+        return new JetPair(Jet3Evaluator.Read(s, _v), Jet3Evaluator.Read(s, _k));
     }
 
     /// <summary>The same by the interpreter (the reference for the generated code).</summary>

@@ -19,7 +19,7 @@ internal sealed class Parser
 
     private readonly string _text;
     private readonly List<Token> _tokens;
-    private readonly string _variable;
+    private readonly IReadOnlyList<string> _variables;
     private readonly IReadOnlyDictionary<string, double>? _parameters;
     private readonly bool _resolve;
     private int _pos;
@@ -28,10 +28,10 @@ internal sealed class Parser
     /// <summary>Names other than the variable, constants and functions, in order of first use, with the column of first use.</summary>
     public List<(string Name, int Column)> Names { get; } = new();
 
-    private Parser(string text, string variable, IReadOnlyDictionary<string, double>? parameters, bool resolve)
+    private Parser(string text, IReadOnlyList<string> variables, IReadOnlyDictionary<string, double>? parameters, bool resolve)
     {
         _text = text;
-        _variable = variable;
+        _variables = variables;
         _parameters = parameters;
         _resolve = resolve;
         if (text.Length > MaxLength)
@@ -42,16 +42,24 @@ internal sealed class Parser
     /// <summary>Parses the text; names that are neither the variable, a constant nor a parameter are collected in <see cref="Names"/> as Parameter nodes with value NaN.</summary>
     public static (Node Root, List<(string Name, int Column)> Names) ParseTree(
         string text, string variable, IReadOnlyDictionary<string, double>? parameters)
+        => ParseTree(text, [variable], parameters);
+
+    /// <summary>As <see cref="ParseTree(string, string, IReadOnlyDictionary{string, double})"/> with several variables (variable i is register i).</summary>
+    public static (Node Root, List<(string Name, int Column)> Names) ParseTree(
+        string text, IReadOnlyList<string> variables, IReadOnlyDictionary<string, double>? parameters)
     {
-        var p = new Parser(text, variable, parameters, resolve: true);
+        var p = new Parser(text, variables, parameters, resolve: true);
         var root = p.ParseAll();
         return (root, p.Names);
     }
 
     /// <summary>Parses only to collect names (no parameters needed).</summary>
-    public static List<(string Name, int Column)> CollectNames(string text, string variable)
+    public static List<(string Name, int Column)> CollectNames(string text, string variable) => CollectNames(text, [variable]);
+
+    /// <summary>Parses only to collect names other than the <paramref name="variables"/>.</summary>
+    public static List<(string Name, int Column)> CollectNames(string text, IReadOnlyList<string> variables)
     {
-        var p = new Parser(text, variable, null, resolve: false);
+        var p = new Parser(text, variables, null, resolve: false);
         p.ParseAll();
         return p.Names;
     }
@@ -218,8 +226,9 @@ internal sealed class Parser
         if (call)
             throw Error(_text, column, "a known function",
                 $"unknown function '{name}' (functions: {string.Join(", ", Builtins.Functions.Keys)}, piecewise)");
-        if (name == _variable)
-            return new Node(NodeKind.Variable, column, []) { Name = name };
+        for (int i = 0; i < _variables.Count; i++)
+            if (name == _variables[i])
+                return new Node(NodeKind.Variable, column, []) { Name = name, Index = i };
         if (Builtins.IsConstant(name))
             return new Node(NodeKind.Constant, column, []) { Name = name, Value = Builtins.ConstantValue(name) };
         if (!Names.Exists(n => n.Name == name)) Names.Add((name, column));

@@ -53,100 +53,44 @@ internal sealed unsafe class CompiledProgram
         _ => a >= b,
     };
 
-    /// <summary>Scalar value of an operation; the compiler folds constants with this and <see cref="RunValue"/> matches it.</summary>
-    public static double Apply(Op op, double a, double b, double c, int n) => op switch
-    {
-        Op.Neg => -a,
-        Op.Add => a + b,
-        Op.Sub => a - b,
-        Op.Mul => a * b,
-        Op.Div => a / b,
-        Op.PowInt => Taylor.PowIntScalar(a, n),
-        Op.PowC or Op.Pow => Math.Pow(a, b),
-        Op.Exp => Math.Exp(a),
-        Op.Log => Math.Log(a),
-        Op.Log10 => Math.Log10(a),
-        Op.Sqrt => Math.Sqrt(a),
-        Op.Sin => Math.Sin(a),
-        Op.Cos => Math.Cos(a),
-        Op.Tan => Math.Tan(a),
-        Op.Sinh => Math.Sinh(a),
-        Op.Cosh => Math.Cosh(a),
-        Op.Tanh => Math.Tanh(a),
-        Op.Asin => Math.Asin(a),
-        Op.Acos => Math.Acos(a),
-        Op.Atan => Math.Atan(a),
-        Op.Asinh => Math.Asinh(a),
-        Op.Acosh => Math.Acosh(a),
-        Op.Atanh => Math.Atanh(a),
-        Op.Abs => Math.Abs(a),
-        Op.Step => StepScalar(a),
-        Op.Min => MinScalar(a, b),
-        Op.Max => MaxScalar(a, b),
-        _ => throw new ArgumentOutOfRangeException(nameof(op)),
-    };
+    /// <summary>Scalar value of an operation (the compiler folds constants with it): the kernel of <see cref="Kernels.Value"/>.</summary>
+    public static double Apply(Op op, double a, double b, double c, int n) => Kernels.Value<Real>(op, a, b, c, n).V;
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public static double StepScalar(double a) => double.IsNaN(a) ? double.NaN : a >= 0 ? 1 : 0;
-
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public static double MinScalar(double a, double b) => double.IsNaN(a) || double.IsNaN(b) ? double.NaN : b < a ? b : a;
-
-    [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public static double MaxScalar(double a, double b) => double.IsNaN(a) || double.IsNaN(b) ? double.NaN : b > a ? b : a;
+    public static double StepScalar(double a) => Scalar.Step(a);
 
     /// <summary>Value only. <paramref name="r"/> has room for <see cref="RegisterCount"/> doubles.</summary>
-    [SkipLocalsInit]
     public double RunValue(double phi, double* r)
     {
         r[0] = phi;
+        return Execute(r);
+    }
+
+    /// <summary>
+    /// Value only, with the variables' registers (0 .. point.Length-1) loaded from <paramref name="point"/>.
+    /// <paramref name="r"/> has room for <see cref="RegisterCount"/> doubles.
+    /// </summary>
+    public double RunValue(ReadOnlySpan<double> point, double* r)
+    {
+        for (int i = 0; i < point.Length; i++) r[i] = point[i];
+        return Execute(r);
+    }
+
+    [SkipLocalsInit]
+    private double Execute(double* r)
+    {
         var code = Code;
+        var v = (Real*)r;
         for (int pc = 0; pc < code.Length; pc++)
         {
             ref readonly Instr I = ref code[pc];
-            double a = r[I.A];
             switch (I.Op)
             {
-                case Op.LoadConst: r[I.Dst] = I.C; break;
-                case Op.Copy: r[I.Dst] = a; break;
-                case Op.Neg: r[I.Dst] = -a; break;
-                case Op.Add: r[I.Dst] = a + r[I.B]; break;
-                case Op.Sub: r[I.Dst] = a - r[I.B]; break;
-                case Op.Mul: r[I.Dst] = a * r[I.B]; break;
-                case Op.Div: r[I.Dst] = a / r[I.B]; break;
-                case Op.AddC: r[I.Dst] = a + I.C; break;
-                case Op.MulC: r[I.Dst] = a * I.C; break;
-                case Op.SubCR: r[I.Dst] = I.C - a; break;
-                case Op.DivC: r[I.Dst] = a / I.C; break;
-                case Op.DivCR: r[I.Dst] = I.C / a; break;
-                case Op.PowInt: r[I.Dst] = I.N == 2 ? a * a : Taylor.PowIntScalar(a, I.N); break;
-                case Op.PowC: r[I.Dst] = Math.Pow(a, I.C); break;
-                case Op.CPow: r[I.Dst] = Math.Pow(I.C, a); break;
-                case Op.Pow: r[I.Dst] = Math.Pow(a, r[I.B]); break;
-                case Op.Exp: r[I.Dst] = Math.Exp(a); break;
-                case Op.Log: r[I.Dst] = Math.Log(a); break;
-                case Op.Log10: r[I.Dst] = Math.Log10(a); break;
-                case Op.Sqrt: r[I.Dst] = Math.Sqrt(a); break;
-                case Op.Sin: r[I.Dst] = Math.Sin(a); break;
-                case Op.Cos: r[I.Dst] = Math.Cos(a); break;
-                case Op.Tan: r[I.Dst] = Math.Tan(a); break;
-                case Op.Sinh: r[I.Dst] = Math.Sinh(a); break;
-                case Op.Cosh: r[I.Dst] = Math.Cosh(a); break;
-                case Op.Tanh: r[I.Dst] = Math.Tanh(a); break;
-                case Op.Asin: r[I.Dst] = Math.Asin(a); break;
-                case Op.Acos: r[I.Dst] = Math.Acos(a); break;
-                case Op.Atan: r[I.Dst] = Math.Atan(a); break;
-                case Op.Asinh: r[I.Dst] = Math.Asinh(a); break;
-                case Op.Acosh: r[I.Dst] = Math.Acosh(a); break;
-                case Op.Atanh: r[I.Dst] = Math.Atanh(a); break;
-                case Op.Abs: r[I.Dst] = Math.Abs(a); break;
-                case Op.Step: r[I.Dst] = StepScalar(a); break;
-                case Op.Min: r[I.Dst] = MinScalar(a, r[I.B]); break;
-                case Op.Max: r[I.Dst] = MaxScalar(a, r[I.B]); break;
                 case Op.JumpIfNot:
-                    if (!Holds(I.Aux, a, r[I.B])) pc = I.N - 1;
+                    if (!Holds(I.Aux, r[I.A], r[I.B])) pc = I.N - 1;
                     break;
                 case Op.Jump: pc = I.N - 1; break;
+                default: v[I.Dst] = Kernels.Value(I.Op, v[I.A], v[I.B], I.C, I.N); break;
             }
         }
         return r[Result];

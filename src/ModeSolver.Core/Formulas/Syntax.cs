@@ -44,6 +44,8 @@ internal sealed class Node
     public string Name { get; init; } = "";
     public Func Function { get; init; }
     public Relation Relation { get; init; }
+    /// <summary>Index of a variable among the formula's variables (its register).</summary>
+    public int Index { get; init; }
 
     public bool DependsOnVariable
     {

@@ -1,4 +1,5 @@
 using System.Runtime.CompilerServices;
+using ModeSolver.Formulas;
 
 namespace ModeSolver.Models;
 
@@ -12,7 +13,8 @@ internal struct TaylorCoefficients
 /// <summary>
 /// Truncated Taylor polynomial of order 4 about a point: c[k] = f^(k)(phi) / k!. Arithmetic on jets is exact
 /// (to rounding) for the derivatives up to the truncation order, so derivatives of composite expressions
-/// (V_J / Omega^4, K_J / Omega^2 + ...) come out exactly. Allocation-free value type.
+/// (V_J / Omega^4, K_J / Omega^2 + ...) come out exactly. Allocation-free value type; the product, quotient and power
+/// are Formulas' series recurrences (<see cref="Taylor"/>), not a second copy.
 /// </summary>
 internal struct TaylorJet
 {
@@ -95,30 +97,19 @@ internal struct TaylorJet
         return a;
     }
 
-    /// <summary>Cauchy product, truncated.</summary>
-    public static TaylorJet operator *(TaylorJet a, TaylorJet b)
+    /// <summary>Cauchy product, truncated (<see cref="Taylor.Mul"/>).</summary>
+    public static unsafe TaylorJet operator *(TaylorJet a, TaylorJet b)
     {
         var r = default(TaylorJet);
-        for (int k = 0; k < Length; k++)
-        {
-            double s = 0;
-            for (int j = 0; j <= k; j++) s += a[j] * b[k - j];
-            r[k] = s;
-        }
+        Taylor.Mul((double*)&a._c, (double*)&b._c, (double*)&r._c, Length - 1);
         return r;
     }
 
-    /// <summary>a / b by the division recurrence; b[0] must be non-zero.</summary>
-    public static TaylorJet operator /(TaylorJet a, TaylorJet b)
+    /// <summary>a / b by the division recurrence (<see cref="Taylor.Div"/>); b[0] must be non-zero.</summary>
+    public static unsafe TaylorJet operator /(TaylorJet a, TaylorJet b)
     {
         var r = default(TaylorJet);
-        double inv = 1.0 / b[0];
-        for (int k = 0; k < Length; k++)
-        {
-            double s = a[k];
-            for (int j = 1; j <= k; j++) s -= b[j] * r[k - j];
-            r[k] = s * inv;
-        }
+        Taylor.Div((double*)&a._c, (double*)&b._c, (double*)&r._c, Length - 1);
         return r;
     }
 
@@ -128,19 +119,12 @@ internal struct TaylorJet
     /// <summary>a * a.</summary>
     public static TaylorJet Square(TaylorJet a) => a * a;
 
-    /// <summary>a^p for real p; a[0] must be positive unless p is a non-negative integer handled by products.</summary>
-    public static TaylorJet Pow(TaylorJet a, double p)
+    /// <summary>a^p for real p (<see cref="Taylor.PowTail"/>); a[0] must be positive unless p is a non-negative integer handled by products.</summary>
+    public static unsafe TaylorJet Pow(TaylorJet a, double p)
     {
         var r = default(TaylorJet);
-        double a0 = a[0];
-        r[0] = Math.Pow(a0, p);
-        // g = f^p satisfies f g' = p f' g: k f0 g_k = sum_{j=1..k} ((p + 1) j - k) f_j g_{k-j}.
-        for (int k = 1; k < Length; k++)
-        {
-            double s = 0;
-            for (int j = 1; j <= k; j++) s += ((p + 1.0) * j - k) * a[j] * r[k - j];
-            r[k] = s / (k * a0);
-        }
+        r[0] = Math.Pow(a[0], p);
+        Taylor.PowTail((double*)&a._c, p, (double*)&r._c, Length - 1);
         return r;
     }
 
