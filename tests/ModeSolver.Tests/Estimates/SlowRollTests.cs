@@ -3,7 +3,7 @@ using ModeSolver.Diagnostics;
 using ModeSolver.Tests.Background;
 using ModeSolver.Estimates;
 
-namespace ModeSolver.Tests.Matching;
+namespace ModeSolver.Tests.Estimates;
 
 public class SlowRollTests
 {

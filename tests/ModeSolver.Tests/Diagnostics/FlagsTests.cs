@@ -1,8 +1,9 @@
 using ModeSolver.Diagnostics;
 using ModeSolver.Output;
 using ModeSolver.Results;
+using ModeSolver.Tests.Output;
 
-namespace ModeSolver.Tests.Output;
+namespace ModeSolver.Tests.Diagnostics;
 
 public class FlagsTests
 {

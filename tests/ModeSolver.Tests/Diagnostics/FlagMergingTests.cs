@@ -1,8 +1,9 @@
 using ModeSolver.Diagnostics;
 using ModeSolver.Output;
 using ModeSolver.Results;
+using ModeSolver.Tests.Output;
 
-namespace ModeSolver.Tests.Output;
+namespace ModeSolver.Tests.Diagnostics;
 
 /// <summary>Adjacent flagged ranges of one kind become one flag; a range where P_s exceeds 1 gives a warning.</summary>
 public class FlagMergingTests
