@@ -204,14 +204,7 @@ public sealed class BackgroundSolution : IShapeSharedBackground, IHorizonExitLoo
     /// <inheritdoc/>
     public BackgroundPoint At(double n)
     {
-        double nStart = NStart, nStop = NStop;
-        if (!(n >= nStart) || !(n <= nStop))
-        {
-            double slack = 1e-10 * Math.Max(1.0, Math.Abs(nStop));
-            if (n < nStart && n >= nStart - slack) n = nStart;
-            else if (n > nStop && n <= nStop + slack) n = nStop;
-            else throw new ArgumentOutOfRangeException(nameof(n), n, $"N must lie in [{nStart}, {nStop}].");
-        }
+        n = EfoldRange.Clamp(n, NStart, NStop);
         var seg = _shared.Segments[SegmentIndex(n)];
         Span<double> y = stackalloc double[3];
         double t = Math.Min(n, seg.Stop) + _shared.Origin; // the segment's solution runs in e-folds since the start

@@ -91,14 +91,7 @@ public sealed class FieldBackgroundSolution
     /// </summary>
     public FieldBackgroundPoint At(double n, Span<double> phi, Span<double> dphi)
     {
-        double nStart = NStart, nStop = NStop;
-        if (!(n >= nStart) || !(n <= nStop))
-        {
-            double slack = 1e-10 * Math.Max(1.0, Math.Abs(nStop));
-            if (n < nStart && n >= nStart - slack) n = nStart;
-            else if (n > nStop && n <= nStop + slack) n = nStop;
-            else throw new ArgumentOutOfRangeException(nameof(n), n, $"N must lie in [{nStart}, {nStop}].");
-        }
+        n = EfoldRange.Clamp(n, NStart, NStop);
         int f = FieldCount;
         var seg = _segments[SegmentIndex(n)];
         int dim = seg.Regular ? 2 * f + 1 : 2 * f;
