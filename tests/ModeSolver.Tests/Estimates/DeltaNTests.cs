@@ -1,0 +1,117 @@
+using ModeSolver.Background;
+using ModeSolver.Estimates;
+using ModeSolver.Models;
+using ModeSolver.Numerics;
+using ModeSolver.Physics;
+using ModeSolver.Tests.Background;
+using Xunit.Abstractions;
+
+namespace ModeSolver.Tests.Estimates;
+
+public class DeltaNTests(ITestOutputHelper output)
+{
+    private const double L1 = 0.1, L2 = 0.05;
+
+    /// <summary>
+    /// V = exp(-L1 sinh(psi) - L2 chi) on G = diag(cosh^2 psi, 1): the exponential potential exp(-lambda . x) of the flat
+    /// fields x = (sinh psi, chi) in curvilinear coordinates. Its slow-roll attractor -G^IJ V_J / V is the exact power-law
+    /// solution x' = lambda (Lucchin &amp; Matarrese 1985, Phys. Rev. D 32, 1316), and H^2 is proportional to exp(-lambda . x) on
+    /// it, so from any start on the attractor N to the slice lambda . x = S is exactly (S - lambda . x0)/|lambda|^2: N_psi =
+    /// -L1 cosh psi / |lambda|^2, N_chi = -L2 / |lambda|^2, d_psi d_psi N = -L1 sinh psi / |lambda|^2, the rest 0, and the
+    /// covariant N_;IJ = 0 (N is linear in the flat fields). Inflation never ends; the surface lambda . x = end stops it.
+    /// </summary>
+    private static MetricFieldTheory CurvilinearExponential()
+        => new(new[] { "psi", "chi" }, p => Math.Exp(-L1 * Math.Sinh(p[0]) - L2 * p[1]),
+            metric: (p, g) => { double c = Math.Cosh(p[0]); g[0] = c * c; g[1] = 0; g[2] = 0; g[3] = 1; },
+            gradient: (p, g) =>
+            {
+                double v = Math.Exp(-L1 * Math.Sinh(p[0]) - L2 * p[1]);
+                g[0] = -L1 * Math.Cosh(p[0]) * v;
+                g[1] = -L2 * v;
+            },
+            hessian: (p, h) =>
+            {
+                double v = Math.Exp(-L1 * Math.Sinh(p[0]) - L2 * p[1]), c = Math.Cosh(p[0]);
+                h[0] = (L1 * L1 * c * c - L1 * Math.Sinh(p[0])) * v;
+                h[1] = h[2] = L1 * L2 * c * v;
+                h[3] = L2 * L2 * v;
+            },
+            metricDerivative: (p, d) => { d.Clear(); d[0] = Math.Sinh(2 * p[0]); },
+            metricSecondDerivative: (p, d) => { d.Clear(); d[0] = 2 * Math.Cosh(2 * p[0]); },
+            description: "exponential in curvilinear fields");
+
+    [Fact]
+    public void ErrorBars_BoundTheTrueErrorOfAnExactCase()
+    {
+        double lsq = L1 * L1 + L2 * L2;
+        double[] start = { 0.5, 0.0 };
+        double x0 = L1 * Math.Sinh(start[0]) + L2 * start[1];
+        double end = x0 + 20 * lsq; // 20 e-folds on the attractor
+        var settings = new BackgroundSettings
+        {
+            Fields0 = start, Tolerance = 1e-12, EFoldsAfterEnd = 0,
+            EndSurface = FieldSurface.FromFunction("lambda . x = end", p => L1 * Math.Sinh(p[0]) + L2 * p[1] - end),
+        };
+        var theory = CurvilinearExponential();
+        var bg = FieldBackgroundSolver.Solve(theory, settings);
+        Assert.Equal(20.0, bg.NEnd, 1e-8);
+        const double exitN = 2.0;
+        var r = DeltaN.Compute(bg, settings, exitN, new DeltaNSettings { SliceOffset = -1 });
+        var phi = bg.FieldsAt(exitN);
+        double c = Math.Cosh(phi[0]), s = Math.Sinh(phi[0]);
+        double[] ni = { -L1 * c / lsq, -L2 / lsq };
+        double[] nij = { -L1 * s / lsq, 0, 0, 0 };
+        Assert.Equal(17.0, r.NRemaining, 1e-8);
+        for (int i = 0; i < 2; i++)
+        {
+            double err = Math.Abs(r.Gradient[i] - ni[i]);
+            output.WriteLine($"N_{i}: {r.Gradient[i]:R} exact {ni[i]:R} error {err:E2} bar {r.GradientError[i]:E2}");
+            Assert.True(err <= r.GradientError[i], $"N_{i} off by {err:E2}, bar {r.GradientError[i]:E2}");
+            Assert.True(r.GradientError[i] < 1e-6 * Math.Abs(ni[i]), $"N_{i} bar {r.GradientError[i]:E2} is loose");
+        }
+        for (int k = 0; k < 4; k++)
+        {
+            double err = Math.Abs(r.CoordinateHessian[k] - nij[k]);
+            double cov = Math.Abs(r.Hessian[k]);
+            output.WriteLine($"N_,{k}: {r.CoordinateHessian[k]:R} exact {nij[k]:R} error {err:E2}; N_;{k} = {r.Hessian[k]:E2} bar {r.HessianError[k]:E2}");
+            Assert.True(err <= r.HessianError[k], $"d d N [{k}] off by {err:E2}, bar {r.HessianError[k]:E2}");
+            Assert.True(cov <= r.HessianError[k], $"N_;IJ [{k}] = {cov:E2} exceeds its bar {r.HessianError[k]:E2}");
+            Assert.True(r.HessianError[k] < 1e-4 * (L1 * c / lsq), $"N_;IJ [{k}] bar {r.HessianError[k]:E2} is loose");
+        }
+        // f_NL is exactly 0 here (covariant N_;IJ = 0) and P_zeta is (H/2 pi)^2 |lambda|^-2 (G^IJ N_I N_J = 1/|lambda|^2).
+        Assert.True(Math.Abs(r.FNL) <= r.FNLError, $"f_NL = {r.FNL:E2} beyond its bar {r.FNLError:E2}");
+        double pz = r.H * r.H / (4 * Math.PI * Math.PI) / lsq;
+        Assert.True(Math.Abs(r.Pzeta - pz) <= r.PzetaError, $"P_zeta off by {Math.Abs(r.Pzeta - pz) / pz:E2} relative, bar {r.PzetaError / pz:E2}");
+        Assert.Equal(2 + 3 * (2 * 2 * 2), r.Backgrounds); // N(0) at two tolerances, 3 levels x 2 n^2
+    }
+
+    [Fact]
+    public void SingleField_GivesTheSlowRollAmplitudeAtExit()
+    {
+        // Single field on its attractor: N(phi) = int dphi / (-phi'), so N_phi^2 = 1/phi'^2 = 1/(2 epsilon_1) and delta N's
+        // P_zeta = (H/2 pi)^2 N_phi^2 is H^2/(8 pi^2 epsilon_1) with the exact epsilon_1 at exit (the slow-roll amplitude of
+        // physics.md section 4 at k = aH, Stewart & Lyth 1993 at first order). With the default start velocity the remainder is
+        // the slope error of the slow-roll velocity field, O(epsilon_1^2); the frozen background velocity (delta phi' = 0) misses
+        // the attractor's slope dphi'/dphi = epsilon_1 (quadratic, slow roll) and changes N_phi by about epsilon_1/3.
+        var settings = new BackgroundSettings { Phi0 = 16, Tolerance = 1e-12, EFoldsAfterEnd = 2 };
+        var bg = FieldBackgroundSolver.Solve(new SingleFieldTheory(new Quadratic()), settings);
+        double exitN = bg.NEnd - 55;
+        var pt = bg.At(exitN, new double[1], new double[1]);
+        double sr = pt.H * pt.H / (8 * Math.PI * Math.PI * pt.Epsilon1);
+        var attractor = DeltaN.Compute(bg, settings, exitN);
+        var frozen = DeltaN.Compute(bg, settings, exitN, new DeltaNSettings { Velocity = ExitVelocity.Background });
+        var slowRoll = DeltaN.Compute(bg, settings, exitN, new DeltaNSettings { Velocity = ExitVelocity.SlowRoll });
+        double e = pt.Epsilon1;
+        double dA = attractor.Pzeta / sr - 1, dF = frozen.Pzeta / sr - 1, dS = slowRoll.Pzeta / sr - 1;
+        output.WriteLine($"eps {e:E3}: attractor {dA:E3} (bar {attractor.PzetaError / sr:E2}), frozen {dF:E3}, slow roll {dS:E3}; f_NL {attractor.FNL:E4} +- {attractor.FNLError:E1}");
+        Assert.True(Math.Abs(dA) < e * e, $"attractor start: P_zeta/P_SR - 1 = {dA:E3}, epsilon_1^2 = {e * e:E2}");
+        Assert.True(Math.Abs(dS) < e * e, $"slow-roll start: P_zeta/P_SR - 1 = {dS:E3}");
+        // Frozen velocity: the displaced universe starts off the attractor by epsilon_1 delta phi and drifts back, delta phi/3 of
+        // extra displacement per unit slope (the off-attractor velocity decays like exp(-3N)): N_phi^2 lower by 2 epsilon_1/3.
+        Assert.True(Math.Abs(dF + 2 * e / 3) < e * e, $"frozen velocity: P_zeta/P_SR - 1 = {dF:E3}, -2 epsilon_1/3 = {-2 * e / 3:E3}");
+        // Single-field f_NL from delta N: (5/6) N_phiphi / N_phi^2, for the quadratic in slow roll (5/6)(1/2)/(phi^2/4) = 5/(3 phi^2)
+        // (Lyth & Rodriguez 2005): slow-roll small, O(epsilon_1).
+        double phiX = bg.FieldsAt(exitN)[0];
+        Assert.Equal(5 / (3 * phiX * phiX), attractor.FNL, 2 * e * 5 / (3 * phiX * phiX));
+    }
+}
