@@ -213,7 +213,8 @@ public static class DeltaN
         private readonly BackgroundSettings _settings;
         private readonly DeltaNSettings _options;
         private readonly double _sliceH, _exitN;
-        private readonly double[] _phi, _velocity, _attractor0;
+        private readonly double[] _phi, _velocity, _correction;
+        private readonly double[]? _christoffel;
         private readonly double[] _metric, _lower, _gradient;
 
         public Universe(IFieldTheory theory, BackgroundSettings settings, DeltaNSettings options, double sliceH,
@@ -225,7 +226,9 @@ public static class DeltaN
             {
                 Phi0 = double.NaN,
                 DPhi0 = null,
-                EFoldsAfterEnd = options.Slice == DeltaNSlice.UniformDensity ? Math.Max(settings.EFoldsAfterEnd, Math.Max(1.0, options.SliceOffset + 1)) : 0,
+                // Continue past the end only as far as a slice after it needs: a displaced universe ends at most a few steps
+                // (in e-folds) earlier than the unperturbed one.
+                EFoldsAfterEnd = options.Slice == DeltaNSlice.UniformDensity ? Math.Max(0, options.SliceOffset + 3 * options.Step + 0.2) : 0,
             };
             _options = options;
             _sliceH = sliceH;
@@ -235,8 +238,14 @@ public static class DeltaN
             _metric = new double[n * n];
             _lower = new double[n * n];
             _gradient = new double[n];
-            _attractor0 = new double[n];
-            SlowRollVelocity(phi, _attractor0);
+            _correction = new double[n];
+            SlowRollVelocity(phi, _correction);
+            for (int i = 0; i < n; i++) _correction[i] = velocity[i] - _correction[i];
+            if (!theory.IsCanonical)
+            {
+                _christoffel = new double[n * n * n];
+                theory.Christoffel(phi, _christoffel);
+            }
         }
 
         public int Solved { get; private set; }
@@ -257,8 +266,17 @@ public static class DeltaN
                     SlowRollVelocity(start, velocity);
                     break;
                 default:
+                    // The slow-roll field plus the exit correction c = phi'_bg - phi'_SR, parallel-transported to the
+                    // displaced start to first order (c^I - Gamma^I_JK c^J delta^K), so the choice is the same in every chart.
                     SlowRollVelocity(start, velocity);
-                    for (int i = 0; i < n; i++) velocity[i] += _velocity[i] - _attractor0[i];
+                    for (int i = 0; i < n; i++)
+                    {
+                        double transported = _correction[i];
+                        if (_christoffel is not null)
+                            for (int j = 0; j < n; j++)
+                                for (int k = 0; k < n; k++) transported -= _christoffel[(i * n + j) * n + k] * _correction[j] * displacement[k];
+                        velocity[i] += transported;
+                    }
                     break;
             }
             FieldBackgroundSolution bg;
@@ -297,7 +315,7 @@ public static class DeltaN
             }
             if (fhi > 0)
                 throw new PhysicsException(string.Create(Inv,
-                    $"delta N: the separate universe started at {BackgroundRun.DescribeFields(_theory, start)} stops at N = {bg.NStop:0.###} with H above the slice's H = {_sliceH:G6}; count to an earlier slice (a negative slice offset) or to each universe's end of inflation."));
+                    $"delta N: the separate universe started at {BackgroundRun.DescribeFields(_theory, start)} stops at N = {bg.NStop:0.###} with H above the slice's H = {_sliceH:G6}; count to an earlier slice (a negative slice offset), take a smaller step, or count to each universe's end of inflation."));
             if (flo < 0)
                 throw new PhysicsException(string.Create(Inv,
                     $"delta N: the separate universe started at {BackgroundRun.DescribeFields(_theory, start)} starts below the slice's H = {_sliceH:G6}; take the exit earlier."));

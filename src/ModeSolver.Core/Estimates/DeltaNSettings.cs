@@ -5,7 +5,8 @@ public enum ExitVelocity
 {
     /// <summary>
     /// The exact background velocity at exit plus the change of the slow-roll attractor velocity -G^IJ V_J / V between the
-    /// exit point and the displaced start (default). The unperturbed universe is the exact background; a displaced one gets
+    /// exit point and the displaced start (default; the constant part phi'_bg - phi'_SR is parallel-transported to first order,
+    /// so the choice does not depend on the chart). The unperturbed universe is the exact background; a displaced one gets
     /// the attractor's velocity field to slow-roll accuracy in its slope, so N_I is the attractor value up to O(epsilon^2)
     /// (single field: P_zeta = H^2/(8 pi^2 epsilon_1) to that order).
     /// </summary>

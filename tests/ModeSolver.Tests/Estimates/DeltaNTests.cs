@@ -200,4 +200,58 @@ public class DeltaNTests(ITestOutputHelper output)
         // Both fields matter at exit: the start is not a single-field case.
         Assert.True(Math.Abs(r.Gradient[1]) > 0.3 * Math.Abs(r.Gradient[0]));
     }
+
+    [Theory]
+    [InlineData(ExitVelocity.SlowRoll)]
+    [InlineData(ExitVelocity.Attractor)]
+    public void CartesianAndPolarFields_GiveTheSameDeltaN(ExitVelocity velocity)
+    {
+        // Coordinate invariance (physics.md section 7): P_zeta = (H/2 pi)^2 G^IJ N_I N_J and f_NL with the covariant N_;IJ are
+        // scalars, so the double quadratic in polar fields (Gamma^r_thth = -r, Gamma^th_rth = 1/r) gives the Cartesian values.
+        // The slow-roll start velocity is a vector field, so the two agree to their error bars; the default start adds the
+        // exit correction (exact minus slow-roll velocity, O(epsilon^2)) parallel-transported to first order in the step, so
+        // its remaining chart dependence (second order in the step times epsilon^2) lies below the bars too.
+        const double m1 = 1, m2 = 2.5;
+        double x0 = 10, y0 = 6;
+        var cs = new BackgroundSettings { Fields0 = new[] { x0, y0 }, Tolerance = 1e-12, EFoldsAfterEnd = 2 };
+        var ps = cs with { Fields0 = new[] { Math.Sqrt(x0 * x0 + y0 * y0), Math.Atan2(y0, x0) } };
+        // Half an e-fold before the end: the polar chart is singular at r = 0, which the oscillations after the end cross.
+        var opts = new DeltaNSettings { Velocity = velocity, SliceOffset = -0.5 };
+        var cart = DeltaN.Compute(FieldBackgroundSolver.Solve(FieldBackgroundTests.DoubleQuadratic(m1, m2), cs), cs, 1.0, opts);
+        var polar = DeltaN.Compute(FieldBackgroundSolver.Solve(FieldBackgroundTests.PolarDoubleQuadratic(m1, m2, closedForm: true), ps), ps, 1.0, opts);
+        double dp = Math.Abs(cart.Pzeta - polar.Pzeta), df = Math.Abs(cart.FNL - polar.FNL);
+        output.WriteLine($"{velocity}: P {cart.Pzeta:E10} vs {polar.Pzeta:E10} (diff {dp / cart.Pzeta:E2}, bars {cart.PzetaError / cart.Pzeta:E1} {polar.PzetaError / cart.Pzeta:E1}); f_NL {cart.FNL:E6} vs {polar.FNL:E6} (diff {df:E2}, bars {cart.FNLError:E1} {polar.FNLError:E1})");
+        Assert.True(dp <= cart.PzetaError + polar.PzetaError, $"P_zeta differs by {dp / cart.Pzeta:E2} relative");
+        Assert.True(df <= cart.FNLError + polar.FNLError, $"f_NL differs by {df:E2}");
+        Assert.True(Math.Abs(cart.FNL) > 1e-3);
+    }
+
+    [Fact]
+    public void EndOfInflationSlice_AgreesWithTheUniformDensitySliceOnceTheFlowIsAdiabatic()
+    {
+        // With the heavy field settled by the end (double quadratic, m_chi = 2 m_phi) every universe ends on the same single-field
+        // attractor, so its own epsilon_1 = 1 crossing is a uniform-density slice up to exp(-3 N)-suppressed isocurvature:
+        // the two slices give the same N_I (delta N is slice-independent once the perturbation is adiabatic).
+        var settings = new BackgroundSettings { Fields0 = new[] { 13.0, 8.0 }, Tolerance = 1e-12, EFoldsAfterEnd = 2 };
+        var bg = FieldBackgroundSolver.Solve(FieldBackgroundTests.DoubleQuadratic(1, 2), settings);
+        var uniform = DeltaN.Compute(bg, settings, 2.0);
+        var own = DeltaN.Compute(bg, settings, 2.0, new DeltaNSettings { Slice = DeltaNSlice.EndOfInflation });
+        Assert.True(double.IsNaN(own.SliceH));
+        Assert.Equal(uniform.Pzeta, own.Pzeta, 1e-6 * uniform.Pzeta);
+        Assert.Equal(uniform.FNL, own.FNL, 1e-4 * Math.Abs(uniform.FNL));
+    }
+
+    [Fact]
+    public void BadRequests_AreOneLineErrors()
+    {
+        var settings = new BackgroundSettings { Fields0 = new[] { 13.0, 8.0 }, Tolerance = 1e-10, EFoldsAfterEnd = 0 };
+        var bg = FieldBackgroundSolver.Solve(FieldBackgroundTests.DoubleQuadratic(1, 2), settings);
+        var late = Assert.Throws<PhysicsException>(() => DeltaN.Compute(bg, settings, bg.NEnd + 1));
+        Assert.Contains("lies outside inflation", late.Message);
+        var slice = Assert.Throws<PhysicsException>(() => DeltaN.Compute(bg, settings, 2, new DeltaNSettings { SliceOffset = 3 }));
+        Assert.Contains("not between the exit", slice.Message);
+        var step = Assert.Throws<ArgumentException>(() => DeltaN.Compute(bg, settings, 2, new DeltaNSettings { Step = 0 }));
+        Assert.Contains("Step must lie in (0, 1]", step.Message);
+        foreach (var e in new Exception[] { late, slice, step }) Assert.DoesNotContain('\n', e.Message);
+    }
 }
