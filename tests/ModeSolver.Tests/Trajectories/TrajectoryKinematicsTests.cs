@@ -123,4 +123,21 @@ public class TrajectoryKinematicsTests
         Assert.Empty(TrajectoryFlags.Evaluate(Synthetic(n, turn, mass, e1, ricci), 0, 15));
         foreach (var f in flags) Assert.DoesNotContain('\n', f.Message);
     }
+
+    [Fact]
+    public void StronglyCurvedDisk_IsFlaggedAsGeometricallyDestabilised()
+    {
+        // Renaux-Petel & Turzynski 2016 (PRL 117, 141301): on a negatively curved field space the term epsilon_1 R_fs can make
+        // the entropic mass negative although the potential's V_;ss is positive. On the disk with alpha = 0.002 (R_fs = -667)
+        // and V = phi^2/2 the ratio epsilon_1 |R_fs| / (V_;ss/H^2) grows like 1/phi along the run (by hand, with the values of
+        // the disk test above), so m_s^2 turns negative before the end.
+        var theory = RadialDisk(0.002);
+        var bg = FieldBackgroundSolver.Solve(theory, new BackgroundSettings { Fields0 = new[] { 15.0, 1.0 }, Tolerance = 1e-10, EFoldsAfterEnd = 0 });
+        var s = TrajectorySamples.Sample(bg, 0, bg.NEnd, 200);
+        Assert.True(s.EntropicMass[0] > 0, $"m_s^2/H^2 = {s.EntropicMass[0]:F3} at the start");
+        var flag = Assert.Single(TrajectoryFlags.Evaluate(s, 0, bg.NEnd));
+        Assert.Equal(FlagKinds.EntropicInstability, flag.Kind);
+        Assert.Contains("geometrical destabilisation", flag.Message);
+        Assert.True(flag.Lower > 1 && flag.Upper <= bg.NEnd, flag.Where);
+    }
 }
