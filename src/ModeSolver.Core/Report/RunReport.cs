@@ -42,6 +42,9 @@ public sealed record RunReport(
     /// <summary>T_reh, rho_end^(1/4) and r at 0.002 /Mpc; null when the producer did not derive them.</summary>
     public DerivedQuantities? Derived { get; init; }
 
+    /// <summary>The n-field trajectory kinematics and delta N at the pivot; null for one field.</summary>
+    public MultiFieldResults? MultiField { get; init; }
+
     /// <summary>Distance to the data, peak summary, induced GWs and black holes; null when the run computed none.</summary>
     public Observables.ObservablesReport? Observables { get; init; }
 
