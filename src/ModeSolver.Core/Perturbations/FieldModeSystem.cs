@@ -17,10 +17,9 @@ namespace ModeSolver.Perturbations;
 /// first-order system: Q' = P - Gamma phi' Q, P' = -Gamma phi' P - (3 - e1) P - x^2 Q - (M/H^2) Q. Like the single-field
 /// systems the block is the physical one relative to the amplitude reference times a scale chosen at the start
 /// (k/aH over |Q| there), so |Q| is of order one after horizon exit whatever k and H are.
-/// Initial data: Q^I_alpha = e^I_alpha u_k/a with e_alpha the orthonormal frame of G at the start (the columns of
-/// L^-T, G = L L^T), taken parallel-transported there so that D_N Q = e_alpha (u_k/a)'; u_k/a is the local-index
-/// Hankel form of a field with z = a (half the tensor data h = 2u/a). The mass matrix is left out of the data: it is
-/// (M/H^2)/(k/aH)^2 smaller than the gradient term at the start.
+/// Initial data (physics.md 7): Q^I_alpha = e^I_alpha u_alpha/a with e_alpha the orthonormal kinematic frame at the
+/// start (e_sigma along phi', the others orthonormalised in G) and u_alpha the local-index Bunch-Davies form of that
+/// direction (<see cref="Vacuum"/>); D_N Q includes the turning of the frame.
 /// Curvature and isocurvature (physics.md 7): R = phi'_I Q^I/(2 e1); the isocurvature is the part of Q normal to
 /// phi', S = e_sI Q^I/sqrt(2 e1) for n = 2 with (e_sigma, e_s) positively oriented in the field coordinates; for n &gt; 2
 /// P_S is the power of the whole normal part and C_RS is not defined (NaN).
@@ -36,8 +35,10 @@ internal sealed class FieldModeSystem : IModeSystem
     private readonly AdiabaticBackground _bg;
     private readonly int _n;
     private readonly FieldPoint _w;
-    private readonly double[] _mass, _turn, _pLow, _aLow, _frame, _lower, _sLow;
-    private readonly TensorModeSystem _vacuum = new();
+    private readonly double[] _mass, _turn, _pLow, _aLow, _frame, _sLow;
+    private readonly CurvatureModeSystem _zeta = new();
+    private readonly MassiveFieldData _massive = new();
+    private readonly double[] _frameRate;
     private readonly bool _curved;
     private double _scale = 1, _e1, _e2;
 
@@ -54,7 +55,7 @@ internal sealed class FieldModeSystem : IModeSystem
         _aLow = new double[n];
         _sLow = new double[n];
         _frame = new double[n * n];
-        _lower = new double[n * n];
+        _frameRate = new double[n * n];
         _curved = !background.Fields.Theory.IsCanonical;
     }
 
@@ -86,45 +87,113 @@ internal sealed class FieldModeSystem : IModeSystem
     /// <summary>The index of a massless field (z = a), that of the tensor mode.</summary>
     public double LocalIndex(in BackgroundPoint p) => TensorModeSystem.IndexOf(p.Epsilon1);
 
-    /// <inheritdoc />
-    public int VacuumWidth => _vacuum.VacuumWidth;
+    /// <summary>Six complex entries (value, N-derivative and two ln k orders) per frame direction.</summary>
+    public int VacuumWidth => 6 * _n;
 
-    /// <summary>u_k/a and its derivatives: half the tensor data h = 2u/a.</summary>
+    /// <summary>
+    /// The Bunch-Davies data per direction of the kinematic frame at the point: along e_sigma = phi'/|phi'| the
+    /// single-field curvature data (Q_sigma = sqrt(2 e1) zeta, the exact local index of zeta), along each other
+    /// direction e_a (Gram-Schmidt in G) the data of a field with z = a and mass e_a.M.e_a H^2 (local index from
+    /// 2 - e1 - m_a^2/H^2; a heavy direction takes index 0, its amplitude then starts off by about (m/H)^2/(k/aH)^2
+    /// and decays). The couplings between the directions (turn rate, off-diagonal masses) are left out of the data.
+    /// </summary>
     public void Vacuum(in VacuumPoint v, Span<Complex> data)
     {
-        _vacuum.Vacuum(v, data);
-        for (int i = 0; i < VacuumWidth; i++) data[i] *= 0.5;
+        Prepare(v.Background.N);
+        KinematicFrame();
+        _zeta.Vacuum(v, data[..6]);
+        int f = _n;
+        for (int a = 1; a < f; a++)
+        {
+            _massive.Mass2 = FrameMass(a);
+            _massive.Vacuum(v, data.Slice(6 * a, 6));
+        }
+    }
+
+    /// <summary>
+    /// The kinematic frame at the prepared point into <see cref="_frame"/> (column a = e_a): e_0 = e_sigma, then the
+    /// coordinate directions orthonormalised against it in G (dropping any that are dependent), and D_N e_a into
+    /// <see cref="_frameRate"/>: D_N e_sigma = (D_N phi' - (e2/2) phi')/|phi'|, D_N e_a = -G(e_a, D_N e_sigma) e_sigma
+    /// (a frame transported so that only e_sigma turns).
+    /// </summary>
+    private void KinematicFrame()
+    {
+        int f = _n;
+        var w = _w;
+        double speed = Math.Sqrt(2.0 * _e1);
+        Span<double> u = stackalloc double[f];
+        Span<double> v = stackalloc double[f];
+        for (int i = 0; i < f; i++) _frame[i * f] = w.DPhi[i] / speed;
+        int col = 1;
+        for (int c = 0; c < f && col < f; c++)
+        {
+            u.Clear();
+            u[c] = 1.0;
+            for (int b = 0; b < col; b++)
+            {
+                for (int i = 0; i < f; i++) v[i] = _frame[i * f + b];
+                double d = w.Dot(u, v);
+                for (int i = 0; i < f; i++) u[i] -= d * v[i];
+            }
+            double norm = Math.Sqrt(Math.Max(w.Dot(u, u), 0.0));
+            if (!(norm > 1e-6)) continue;
+            for (int i = 0; i < f; i++) _frame[i * f + col] = u[i] / norm;
+            col++;
+        }
+        for (int i = 0; i < f; i++) _frameRate[i * f] = (w.Acceleration[i] - 0.5 * _e2 * w.DPhi[i]) / speed;
+        for (int i = 0; i < f; i++) u[i] = _frameRate[i * f];
+        for (int a = 1; a < f; a++)
+        {
+            for (int i = 0; i < f; i++) v[i] = _frame[i * f + a];
+            double g = w.Dot(v, u);
+            for (int i = 0; i < f; i++) _frameRate[i * f + a] = -g * _frame[i * f];
+        }
+    }
+
+    /// <summary>m_a^2/H^2 = G_IK e_a^I M^K_J e_a^J of frame direction a.</summary>
+    private double FrameMass(int a)
+    {
+        int f = _n;
+        double m = 0;
+        for (int i = 0; i < f; i++)
+            for (int k = 0; k < f; k++)
+            {
+                double g = _w.Metric[i * f + k] * _frame[i * f + a];
+                if (g == 0) continue;
+                for (int j = 0; j < f; j++) m += g * _mass[k * f + j] * _frame[j * f + a];
+            }
+        return m;
     }
 
     /// <inheritdoc />
     public void Start(BunchDaviesData data, int slot, in BackgroundPoint p0, double x0, Span<double> block)
     {
         int n = _n;
-        Span<double> q = stackalloc double[4];
-        data.Value(slot, q);
-        _bg.Evaluate(p0.N, _w, false);
-        if (!FieldGeometry.Cholesky(_w.Metric, n, _lower))
-            throw new PhysicsException($"The field-space metric is not positive definite at the start of a mode (N = {p0.N:G8}).");
-        // e_alpha = column alpha of L^-T: solve L^T e = unit_alpha by back substitution.
-        for (int a = 0; a < n; a++)
-            for (int i = n - 1; i >= 0; i--)
-            {
-                double s = i == a ? 1.0 : 0.0;
-                for (int j = i + 1; j < n; j++) s -= _lower[j * n + i] * _frame[j * n + a];
-                _frame[i * n + a] = s / _lower[i * n + i];
-            }
-        double scale = x0 / Math.Sqrt(q[0] * q[0] + q[1] * q[1]);
+        Prepare(p0.N);
+        KinematicFrame();
+        var d = data.Point.Data;
+        int o0 = data.SlotOffset(slot);
+        double sq = Math.Sqrt(2.0 * _e1);
+        // Realisation a: Q = e_a q_a, D_N Q = e_a q_a' + q_a D_N e_a; along e_sigma q = sqrt(2 e1) zeta.
+        Complex z = d[o0], dz = d[o0 + 1];
+        double scale = x0 / (sq * z.Magnitude);
         int half = 2 * n * n;
         for (int a = 0; a < n; a++)
+        {
+            Complex q = a == 0 ? sq * z : d[o0 + 6 * a];
+            Complex dq = a == 0 ? sq * (dz + 0.5 * _e2 * z) : d[o0 + 6 * a + 1];
+            q *= scale;
+            dq *= scale;
             for (int i = 0; i < n; i++)
             {
-                double e = _frame[i * n + a] * scale;
+                double e = _frame[i * n + a], r = _frameRate[i * n + a];
                 int o = 2 * (a * n + i);
-                block[o] = e * q[0];
-                block[o + 1] = e * q[1];
-                block[half + o] = e * q[2];
-                block[half + o + 1] = e * q[3];
+                block[o] = e * q.Real;
+                block[o + 1] = e * q.Imaginary;
+                block[half + o] = e * dq.Real + r * q.Real;
+                block[half + o + 1] = e * dq.Imaginary + r * q.Imaginary;
             }
+        }
         _scale = scale;
     }
 
@@ -320,6 +389,45 @@ internal sealed class FieldModeSystem : IModeSystem
         var r = new Complex(rr * inv, ri * inv);
         return (r * u, (new Complex(dr * inv, di * inv) - _e2 * r) * u);
     }
+}
+
+/// <summary>
+/// The Bunch-Davies data of one field direction with z = a and a given mass m^2/H^2 (friction 3 - e1): the
+/// decoupled-oscillator data of <see cref="DecoupledModeSystem"/> with the local index from U = 2 - e1 - m^2/H^2.
+/// Used only for its <see cref="DecoupledModeSystem.Vacuum"/>.
+/// </summary>
+internal sealed class MassiveFieldData : DecoupledModeSystem
+{
+    /// <summary>m^2/H^2 of the direction.</summary>
+    public double Mass2 { get; set; }
+
+    /// <inheritdoc />
+    public override string Name => "massive";
+
+    /// <inheritdoc />
+    public override bool GrowsOutsideHorizon => false;
+
+    /// <inheritdoc />
+    public override double Friction(in BackgroundPoint p) => 3.0 - p.Epsilon1;
+
+    /// <inheritdoc />
+    public override double FrictionSlope(in BackgroundPoint p) => -(p.Epsilon1 * p.Epsilon2);
+
+    /// <inheritdoc />
+    public override void Rhs(in BackgroundPoint p, double x2, ReadOnlySpan<double> y, Span<double> dy) =>
+        Rhs(Friction(p), FrictionSlope(p), p.Epsilon1, x2, y, dy);
+
+    /// <inheritdoc />
+    public override double LocalIndex(in BackgroundPoint p) => IndexFrom(2.0 - p.Epsilon1 - Mass2, 1.0 - p.Epsilon1);
+
+    /// <summary>ln(sqrt(-tau)/z) with z = a.</summary>
+    protected override double LnAmplitude(in VacuumPoint v) => v.LnBase;
+
+    /// <summary>z'/z = 1.</summary>
+    protected override double ZPrimeOverZ(in BackgroundPoint p) => 1.0;
+
+    /// <inheritdoc />
+    protected override double PowerDivisor => 1.0;
 }
 
 /// <summary>The curvature and isocurvature powers of one n-field mode (physics.md 7).</summary>

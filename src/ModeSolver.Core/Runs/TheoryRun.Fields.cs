@@ -68,7 +68,7 @@ public static partial class TheoryRun
         var fields = FieldBackgroundSolver.Solve(theory, BackgroundSettingsFor(request));
         var view = AdiabaticBackground.Of(fields);
         request.Stage?.Invoke("pivot matching");
-        var match = PivotMatcher.MatchAny(view, PivotSettingsFor(request), new FieldAmplitude(view, Math.Min(request.Tolerance, 1e-6)));
+        var match = PivotMatcher.MatchAny(view, PivotSettingsFor(request), new FieldAmplitude(view, Math.Min(request.Tolerance, 1e-6) * 0.01));
         var bg = view.WithVScale(match.VScale);
         var (exact, iso) = FieldPivotValues.Compute(bg, match.ToBackgroundUnits(match.KPivot), request.Tolerance);
         return new FieldPivotStage(match, exact, SlowRoll.AtN(bg, match.NPivot), theory, fields.FieldsAt(fields.NStart))
