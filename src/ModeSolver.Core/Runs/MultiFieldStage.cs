@@ -34,16 +34,22 @@ public static class MultiFieldStage
     /// Computes the additions for <paramref name="fields"/> (the unscaled n-field background, solved with
     /// <paramref name="settings"/>); <paramref name="vScale"/> is the matched potential scale, <paramref name="nPivot"/> the
     /// pivot's horizon exit and <paramref name="windowStart"/> the exit of the largest scale (the flags' window runs from it
-    /// to the end of inflation). A delta N that cannot be computed is reported as a note, never thrown.
+    /// to the end of inflation), both in the report's N, which is the fields' N minus <paramref name="origin"/>; the
+    /// trajectory samples are written in the report's N too. A delta N that cannot be computed is reported as a note, never thrown.
     /// </summary>
     public static (MultiFieldResults Results, ImmutableArray<Flag> Flags) Compute(FieldBackgroundSolution fields, BackgroundSettings settings,
-        double nPivot, double vScale, double windowStart, double modesPzeta, double modesPzetaError, double kPivot, DeltaNSettings? deltaN = null)
+        double origin, double nPivot, double vScale, double windowStart, double modesPzeta, double modesPzetaError, double kPivot,
+        DeltaNSettings? deltaN = null)
     {
         ArgumentNullException.ThrowIfNull(fields);
         ArgumentNullException.ThrowIfNull(settings);
-        var trajectory = TrajectorySamples.Sample(fields, fields.NStart, fields.NEnd, TrajectorySampleCount);
+        var sampled = TrajectorySamples.Sample(fields, fields.NStart, fields.NEnd, TrajectorySampleCount);
+        var shifted = new double[sampled.N.Length];
+        for (int i = 0; i < shifted.Length; i++) shifted[i] = sampled.N[i] - origin;
+        var trajectory = sampled with { N = ImmutableArray.Create(shifted), NEnd = sampled.NEnd - origin };
         var flags = ImmutableArray.CreateBuilder<Flag>();
-        flags.AddRange(TrajectoryFlags.Evaluate(trajectory, Math.Max(fields.NStart, Math.Min(windowStart, nPivot)), fields.NEnd));
+        flags.AddRange(TrajectoryFlags.Evaluate(trajectory, Math.Max(trajectory.N[0], Math.Min(windowStart, nPivot)), trajectory.NEnd));
+        nPivot += origin; // the fields' own N from here on
         DeltaNPivot? pivot = null;
         string? note = null;
         try

@@ -171,6 +171,12 @@ public static partial class TheoryRun
             Mark("observables");
         }
 
+        request.Stage?.Invoke("delta N and trajectory");
+        var (multiField, multiFlags) = MultiFieldStage.Compute(bg.Fields, BackgroundSettingsFor(request), bg.Origin, m.NPivot, m.VScale,
+            background.WindowStart, exact.Ps, exact.Errors.As, m.KPivot);
+        flags = flags.AddRange(multiFlags);
+        Mark("delta N and trajectory");
+
         var iso = run.Isocurvature!;
         var modes = fs.Modes;
         ImmutableArray<double> Of(Func<Perturbations.FieldModeResult, double> get)
@@ -192,7 +198,7 @@ public static partial class TheoryRun
             ImmutableArray<ModelParameter>.Empty, TheoryFrame.Einstein);
         return new RunReport(model, ReportSettingsOf(request), pivotResults, pivotSlowRoll, background, spectrumSamples, srSpectra,
             table, flags, m.AmplitudeName, statistics, [.. warnings])
-        { Derived = derived, Observables = observables, Isocurvature = isocurvature };
+        { Derived = derived, Observables = observables, Isocurvature = isocurvature, MultiField = multiField };
     }
 
     /// <summary>T_reh, rho_end^(1/4) and r at 0.002 /Mpc of an n-field run (r from the spectrum when it covers 0.002 /Mpc).</summary>

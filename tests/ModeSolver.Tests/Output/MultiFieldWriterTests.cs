@@ -16,7 +16,7 @@ public class MultiFieldWriterTests
         var bg = FieldBackgroundSolver.Solve(FieldBackgroundTests.DoubleQuadratic(1, 2), settings);
         var baseReport = SyntheticReport.Create(modes: 12);
         double nPivot = bg.NEnd - 50;
-        var (multi, flags) = MultiFieldStage.Compute(bg, settings, nPivot, vScale: 1e-10, windowStart: nPivot - 3,
+        var (multi, flags) = MultiFieldStage.Compute(bg, settings, origin: 0, nPivot, vScale: 1e-10, windowStart: nPivot - 3,
             modesPzeta: 2.1e-9, modesPzetaError: 1e-12, kPivot: 0.05);
         return baseReport with { MultiField = multi, Flags = baseReport.Flags.AddRange(flags) };
     }
