@@ -12,10 +12,54 @@ namespace ModeSolver.Output;
 /// relative_difference, allowance, agrees, N_exit, epsilon_1_exit, N_remaining, slice, slice_H, velocity, backgrounds,
 /// N_integration_error; datasets N_I, N_I_error, N_IJ and N_IJ_error (n x n, the covariant N_;IJ), steps.
 /// A delta N that could not be computed leaves the attribute delta_N_note instead.
+/// /isocurvature (from the modes, n-field runs): datasets k, P_S, C_RS, cos_delta, beta_iso, T_RS, P_R_exit and
+/// spectra_matrix (k x 2 x 2: [[P_R, C_RS], [C_RS, P_S]] at each k, P_R from /spectrum/P_s); attributes fields and the
+/// pivot values P_S, P_S_error, C_RS, cos_delta, beta_iso, T_RS, P_R_exit.
 /// </summary>
 internal static class MultiFieldHdf5
 {
-    public static void Add(H5File file, MultiFieldResults? m)
+    public static void Add(H5File file, Report.RunReport report)
+    {
+        Isocurvature(file, report);
+        Add(file, report.MultiField);
+    }
+
+    private static void Isocurvature(H5File file, Report.RunReport report)
+    {
+        if (report.Isocurvature is not { } iso) return;
+        int count = iso.K.Length;
+        var matrix = new double[count, 2, 2];
+        bool sameK = report.Spectrum.K.Length == count;
+        for (int i = 0; i < count; i++)
+        {
+            matrix[i, 0, 0] = sameK ? report.Spectrum.Ps[i] : double.NaN;
+            matrix[i, 0, 1] = matrix[i, 1, 0] = iso.Crs[i];
+            matrix[i, 1, 1] = iso.Ps[i];
+        }
+        var g = new H5Group
+        {
+            ["k"] = Hdf5Writer.Arr(iso.K),
+            ["P_S"] = Hdf5Writer.Arr(iso.Ps),
+            ["C_RS"] = Hdf5Writer.Arr(iso.Crs),
+            ["cos_delta"] = Hdf5Writer.Arr(iso.CosDelta),
+            ["beta_iso"] = Hdf5Writer.Arr(iso.BetaIso),
+            ["T_RS"] = Hdf5Writer.Arr(iso.Trs),
+            ["P_R_exit"] = Hdf5Writer.Arr(iso.PrExit),
+            ["spectra_matrix"] = matrix,
+        };
+        var p = iso.Pivot;
+        g.Attributes["fields"] = iso.FieldCount;
+        g.Attributes["P_S"] = p.Ps;
+        g.Attributes["P_S_error"] = p.PsError;
+        g.Attributes["C_RS"] = p.Crs;
+        g.Attributes["cos_delta"] = p.CosDelta;
+        g.Attributes["beta_iso"] = p.BetaIso;
+        g.Attributes["T_RS"] = p.Trs;
+        g.Attributes["P_R_exit"] = p.PrExit;
+        file["isocurvature"] = g;
+    }
+
+    private static void Add(H5File file, MultiFieldResults? m)
     {
         if (m is null) return;
         var t = m.Trajectory;

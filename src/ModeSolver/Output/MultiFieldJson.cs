@@ -9,11 +9,31 @@ namespace ModeSolver.Output;
 /// pivot; null when delta N was not computed), "delta_N" (P_zeta with its error beside the modes' P_zeta, their relative
 /// difference, the slow-roll allowance and whether they agree, N_I with errors, the slice and start velocity used; null
 /// with "delta_N_note" saying why when it could not be computed) and "trajectory" (field names, the largest eta_perp and
-/// the smallest m_s^2/H^2 during inflation and where). The arrays against N are in run.h5 (/multifield).
+/// the smallest m_s^2/H^2 during inflation and where); and "isocurvature" at the pivot from the modes (P_S, P_S_error,
+/// beta_iso, cos_delta, T_RS, C_RS, P_R_exit). The arrays against N and k are in run.h5 (/multifield, /isocurvature).
 /// </summary>
 internal static class MultiFieldJson
 {
-    public static void Write(Utf8JsonWriter w, MultiFieldResults? m)
+    public static void Write(Utf8JsonWriter w, Report.RunReport report)
+    {
+        if (report.Isocurvature is { } iso)
+        {
+            var p = iso.Pivot;
+            w.WriteStartObject("isocurvature");
+            Num(w, "P_S", p.Ps);
+            Num(w, "P_S_error", p.PsError);
+            Num(w, "beta_iso", p.BetaIso);
+            Num(w, "cos_delta", p.CosDelta);
+            Num(w, "T_RS", p.Trs);
+            Num(w, "C_RS", p.Crs);
+            Num(w, "P_R_exit", p.PrExit);
+            w.WriteNumber("fields", iso.FieldCount);
+            w.WriteEndObject();
+        }
+        Write(w, report.MultiField);
+    }
+
+    private static void Write(Utf8JsonWriter w, MultiFieldResults? m)
     {
         if (m is null) return;
         var d = m.DeltaN;

@@ -1,5 +1,4 @@
 using System.Text.Json;
-using ModeSolver.Background;
 using ModeSolver.Output;
 using ModeSolver.Report;
 using ModeSolver.Runs;
@@ -9,17 +8,12 @@ namespace ModeSolver.Tests.Output;
 
 public class MultiFieldWriterTests
 {
-    /// <summary>The synthetic report with the n-field additions of a real double-quadratic background (m_chi = 2 m_phi).</summary>
-    private static RunReport Report()
-    {
-        var settings = new BackgroundSettings { Fields0 = new[] { 13.0, 8.0 }, Tolerance = 1e-11, EFoldsAfterEnd = 1 };
-        var bg = FieldBackgroundSolver.Solve(FieldBackgroundTests.DoubleQuadratic(1, 2), settings);
-        var baseReport = SyntheticReport.Create(modes: 12);
-        double nPivot = bg.NEnd - 50;
-        var (multi, flags) = MultiFieldStage.Compute(bg, settings, origin: 0, nPivot, vScale: 1e-10, windowStart: nPivot - 3,
-            modesPzeta: 2.1e-9, modesPzetaError: 1e-12, kPivot: 0.05);
-        return baseReport with { MultiField = multi, Flags = baseReport.Flags.AddRange(flags) };
-    }
+    /// <summary>A real two-field report (double quadratic, m_chi = 2 m_phi, from TheoryRun), computed once for the class.</summary>
+    private static readonly Lazy<RunReport> Shared = new(() =>
+        TheoryRun.Run(FieldBackgroundTests.DoubleQuadratic(1, 2),
+            new RunRequest { Fields0 = [15.0, 9.0], KMin = 1e-3, KMax = 1e-1, KCount = 5, Tolerance = 1e-5, BackgroundSamples = 64, Threads = 1 }));
+
+    private static RunReport Report() => Shared.Value;
 
     [Fact]
     public void Json_has_the_delta_N_and_trajectory_keys()
@@ -33,7 +27,7 @@ public class MultiFieldWriterTests
         var dn = root.GetProperty("delta_N");
         Assert.Equal(d.Pzeta, dn.GetProperty("P_zeta").GetDouble());
         Assert.Equal(d.PzetaError, dn.GetProperty("P_zeta_error").GetDouble());
-        Assert.Equal(2.1e-9, dn.GetProperty("P_zeta_modes").GetDouble());
+        Assert.Equal(r.Pivot.As, dn.GetProperty("P_zeta_modes").GetDouble());
         Assert.Equal(d.Agrees, dn.GetProperty("agrees").GetBoolean());
         Assert.Equal(2, dn.GetProperty("N_I").GetArrayLength());
         Assert.Equal(d.Gradient[1], dn.GetProperty("N_I")[1].GetDouble());
@@ -42,9 +36,19 @@ public class MultiFieldWriterTests
         var t = root.GetProperty("trajectory");
         Assert.Equal(["phi", "chi"], t.GetProperty("field_names").EnumerateArray().Select(e => e.GetString()!).ToArray());
         Assert.True(t.GetProperty("max_eta_perp").GetDouble() > 0);
-        // f_NL of the double quadratic is slow-roll small and P_zeta scales with the potential (V scale 1e-10 here).
+        // f_NL of the double quadratic is slow-roll small and P_zeta scales with the potential.
         Assert.InRange(d.FNL, 0.005, 0.01);
-        Assert.Equal(d.Raw.Pzeta * 1e-10, d.Pzeta, 1e-15 * d.Pzeta);
+        Assert.Equal(d.Raw.Pzeta * r.Pivot.VScale, d.Pzeta, 1e-15 * d.Pzeta);
+        var iso = root.GetProperty("isocurvature");
+        var p = r.Isocurvature!.Pivot;
+        Assert.Equal(p.Ps, iso.GetProperty("P_S").GetDouble());
+        Assert.Equal(p.BetaIso, iso.GetProperty("beta_iso").GetDouble());
+        Assert.Equal(p.CosDelta, iso.GetProperty("cos_delta").GetDouble());
+        Assert.Equal(p.Trs, iso.GetProperty("T_RS").GetDouble());
+        // A single-field report has none of these keys.
+        using var single = JsonDocument.Parse(SummaryJsonWriter.ToJson(SyntheticReport.Create(modes: 12)));
+        foreach (var key in new[] { "isocurvature", "f_NL_local", "delta_N", "trajectory" })
+            Assert.False(single.RootElement.TryGetProperty(key, out _), key);
     }
 
     [SkippableFact]
@@ -71,6 +75,19 @@ public class MultiFieldWriterTests
             Assert.Equal([r.MultiField.DeltaN!.FNL], fnl);
             var nij = ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-d /multifield/delta_N/N_IJ -m %.17g " + path));
             Assert.Equal(r.MultiField.DeltaN.Raw.Hessian.ToArray(), nij);
+            // The spectra matrix: k x 2 x 2, [[P_R, C_RS], [C_RS, P_S]] per k.
+            var iso = r.Isocurvature!;
+            Assert.Contains($"( {iso.K.Length}, 2, 2 )", ExternalTools.Run(h5dump!, "-H -d /isocurvature/spectra_matrix " + path));
+            var matrix = ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-d /isocurvature/spectra_matrix -m %.17g " + path));
+            for (int i = 0; i < iso.K.Length; i++)
+            {
+                Assert.Equal(r.Spectrum.Ps[i], matrix[4 * i]);
+                Assert.Equal(iso.Crs[i], matrix[4 * i + 1]);
+                Assert.Equal(iso.Crs[i], matrix[4 * i + 2]);
+                Assert.Equal(iso.Ps[i], matrix[4 * i + 3]);
+            }
+            var beta = ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-a /isocurvature/beta_iso -m %.17g " + path));
+            Assert.Equal([iso.Pivot.BetaIso], beta);
             string names = ExternalTools.Run(h5dump!, "-a /multifield/trajectory/field_names " + path);
             Assert.Contains("\"chi\"", names);
         }
