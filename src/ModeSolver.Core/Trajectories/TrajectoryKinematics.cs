@@ -30,126 +30,87 @@ public readonly record struct TrajectoryPoint(double N, double H, double Epsilon
 public sealed class TrajectoryKinematics
 {
     private readonly IFieldTheory _theory;
-    private readonly int _n;
-    private readonly double[] _phi, _p, _metric, _inverse, _gradient, _raised, _hessian, _christoffel, _riemann, _ricci, _normal;
+    private readonly FieldPoint _point;
+    private readonly double[] _ricci, _normal;
 
     /// <summary>Work arrays for <paramref name="theory"/>.</summary>
     public TrajectoryKinematics(IFieldTheory theory)
     {
         ArgumentNullException.ThrowIfNull(theory);
         _theory = theory;
-        int n = _n = theory.FieldCount;
-        _phi = new double[n];
-        _p = new double[n];
-        _metric = new double[n * n];
-        _inverse = new double[n * n];
-        _gradient = new double[n];
-        _raised = new double[n];
-        _hessian = new double[n * n];
-        _christoffel = new double[n * n * n];
-        _riemann = new double[n * n * n * n];
+        int n = theory.FieldCount;
+        _point = new FieldPoint(n);
         _ricci = new double[n * n];
         _normal = new double[n];
     }
 
-    /// <summary>The kinematics of <paramref name="background"/> at N = <paramref name="n"/>.</summary>
+    /// <summary>The background point of the last <see cref="At(FieldBackgroundSolution, double)"/> (fields, velocities, geometry).</summary>
+    public FieldPoint Point => _point;
+
+    /// <summary>The kinematics of <paramref name="background"/> at N = <paramref name="n"/> (no allocation).</summary>
     public TrajectoryPoint At(FieldBackgroundSolution background, double n)
     {
         ArgumentNullException.ThrowIfNull(background);
-        var pt = background.At(n, _phi, _p);
-        return At(_phi, _p, pt.H, pt.N);
+        background.Evaluate(n, _point, riemann: !_theory.IsCanonical && _theory.FieldCount >= 2);
+        return Of(_point);
     }
 
-    /// <summary>The kinematics of the state (phi, phi') with Hubble rate <paramref name="h"/> (any n; no allocation).</summary>
-    public TrajectoryPoint At(ReadOnlySpan<double> phi, ReadOnlySpan<double> velocity, double h, double n = double.NaN)
+    /// <summary>The kinematics of an evaluated background point (its Riemann tensor is used when it holds one).</summary>
+    public TrajectoryPoint Of(FieldPoint point)
     {
-        int f = _n;
-        _theory.Metric(phi, _metric);
-        if (!_theory.InverseMetric(phi, _inverse))
-            return new TrajectoryPoint(n, h, double.NaN, double.NaN, double.NaN, double.NaN, double.NaN);
-        double e1 = 0.5 * Dot(_metric, velocity, velocity, f);
-        double speed = Math.Sqrt(2 * e1);
-        _theory.PotentialGradient(phi, _gradient);
-        for (int i = 0; i < f; i++)
-        {
-            double s = 0;
-            for (int j = 0; j < f; j++) s += _inverse[i * f + j] * _gradient[j];
-            _raised[i] = s;
-        }
+        ArgumentNullException.ThrowIfNull(point);
+        int f = point.FieldCount;
+        double h = point.H, e1 = point.Epsilon1, n = point.N;
+        ReadOnlySpan<double> velocity = point.DPhi;
         double ricciScalar = 0;
-        if (!_theory.IsCanonical && f >= 2)
+        if (point.HasRiemann && f >= 2)
         {
-            _theory.Riemann(phi, _riemann);
-            FieldGeometry.Ricci(f, _riemann, _ricci);
-            ricciScalar = FieldGeometry.RicciScalar(f, _inverse, _ricci);
+            FieldGeometry.Ricci(f, point.Riemann, _ricci);
+            ricciScalar = FieldGeometry.RicciScalar(f, point.Inverse, _ricci);
         }
+        double speed = Math.Sqrt(2 * e1);
         if (!(speed > 0))
             return new TrajectoryPoint(n, h, e1, double.NaN, double.NaN, double.NaN, ricciScalar);
 
-        // The force's part normal to e_sigma: w = G^IJ V_J - (G(w, e_sigma)) e_sigma.
-        double along = 0;
+        // The force G^IJ V_J and its part normal to e_sigma: w - G(w, e_sigma) e_sigma.
         for (int i = 0; i < f; i++)
         {
             double s = 0;
-            for (int j = 0; j < f; j++) s += _metric[i * f + j] * velocity[j];
-            along += _raised[i] * s;
+            for (int j = 0; j < f; j++) s += point.Inverse[i * f + j] * point.Gradient[j];
+            _normal[i] = s;
         }
-        along /= speed;
-        for (int i = 0; i < f; i++) _normal[i] = _raised[i] - along * velocity[i] / speed;
-        double normalForce = Math.Sqrt(Math.Max(0, Dot(_metric, _normal, _normal, f)));
+        double along = point.Dot(_normal, velocity) / speed;
+        for (int i = 0; i < f; i++) _normal[i] -= along * velocity[i] / speed;
         double h2 = h * h;
-        double turn = normalForce / (h2 * speed);
+        double turn = Math.Sqrt(Math.Max(0, point.Dot(_normal, _normal))) / (h2 * speed);
         if (f != 2)
             return new TrajectoryPoint(n, h, e1, turn, double.NaN, double.NaN, ricciScalar);
 
-        // e_s: the unit normal (Gram-Schmidt of the coordinate direction least aligned with e_sigma).
         Span<double> es = stackalloc double[2];
-        Normal(velocity, speed, es);
-        _theory.PotentialHessian(phi, _hessian);
-        if (!_theory.IsCanonical) _theory.Christoffel(phi, _christoffel);
+        Normal(point, speed, es);
         double vss = 0;
         for (int i = 0; i < 2; i++)
-            for (int j = 0; j < 2; j++)
-            {
-                double cov = _hessian[i * 2 + j];
-                if (!_theory.IsCanonical)
-                    for (int k = 0; k < 2; k++) cov -= _christoffel[(k * 2 + i) * 2 + j] * _gradient[k];
-                vss += es[i] * es[j] * cov;
-            }
+            for (int j = 0; j < 2; j++) vss += es[i] * es[j] * point.Hessian[i * 2 + j]; // covariant Hessian
         double hessianMass = vss / h2;
         return new TrajectoryPoint(n, h, e1, turn, hessianMass - turn * turn + e1 * ricciScalar, hessianMass, ricciScalar);
     }
 
-    private void Normal(ReadOnlySpan<double> velocity, double speed, Span<double> es)
+    /// <summary>e_s: the unit normal to e_sigma, by Gram-Schmidt from the coordinate direction least aligned with it.</summary>
+    private static void Normal(FieldPoint point, double speed, Span<double> es)
     {
-        // Two candidates, the coordinate directions; keep the one with the smaller |cos| to e_sigma.
+        var g = point.Metric;
+        var v = point.DPhi;
         double best = double.PositiveInfinity;
-        Span<double> c = stackalloc double[2];
         for (int k = 0; k < 2; k++)
         {
-            c.Clear();
-            c[k] = 1;
-            double norm = Math.Sqrt(_metric[k * 2 + k]);
-            double cos = Math.Abs(_metric[k * 2] * velocity[0] + _metric[k * 2 + 1] * velocity[1]) / (norm * speed);
+            double proj = (g[k * 2] * v[0] + g[k * 2 + 1] * v[1]) / speed; // G(c_k, e_sigma)
+            double cos = Math.Abs(proj) / Math.Sqrt(g[k * 2 + k]);
             if (cos >= best) continue;
             best = cos;
-            double proj = (_metric[k * 2] * velocity[0] + _metric[k * 2 + 1] * velocity[1]) / speed; // G(c, e_sigma)
-            for (int i = 0; i < 2; i++) es[i] = c[i] - proj * velocity[i] / speed;
+            for (int i = 0; i < 2; i++) es[i] = (i == k ? 1 : 0) - proj * v[i] / speed;
         }
-        double len = Math.Sqrt(Dot(_metric, es, es, 2));
+        double len = Math.Sqrt(point.Dot(es, es));
         es[0] /= len;
         es[1] /= len;
-    }
-
-    private static double Dot(ReadOnlySpan<double> g, ReadOnlySpan<double> a, ReadOnlySpan<double> b, int n)
-    {
-        double s = 0;
-        for (int i = 0; i < n; i++)
-        {
-            double row = 0;
-            for (int j = 0; j < n; j++) row += g[i * n + j] * b[j];
-            s += a[i] * row;
-        }
-        return s;
     }
 }

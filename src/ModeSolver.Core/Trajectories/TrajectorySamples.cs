@@ -52,10 +52,9 @@ public sealed record TrajectorySamples(
         for (int i = 0; i < count; i++)
         {
             double t = i == count - 1 ? to : from + (to - from) * i / (count - 1);
-            var phi = fields.AsSpan(i * f, f);
-            var p = velocities.AsSpan(i * f, f);
-            var bp = background.At(t, phi, p);
-            var k = kin.At(phi, p, bp.H, t);
+            var k = kin.At(background, t);
+            kin.Point.Phi.CopyTo(fields, i * f);
+            kin.Point.DPhi.CopyTo(velocities, i * f);
             n[i] = t;
             e1[i] = k.Epsilon1;
             turn[i] = k.TurnRate;
