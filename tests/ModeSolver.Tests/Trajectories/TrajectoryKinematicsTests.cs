@@ -140,4 +140,46 @@ public class TrajectoryKinematicsTests
         Assert.Contains("geometrical destabilisation", flag.Message);
         Assert.True(flag.Lower > 1 && flag.Upper <= bg.NEnd, flag.Where);
     }
+
+    [Fact]
+    public void EntropicMass_IsTheModeEquationsMassProjectedOnTheNormal()
+    {
+        // physics.md section 7: e_s M e_s / H^2 of the mode equation is V_;ss/H^2 - e_sI R^I_KLJ phi'^K phi'^L e_s^J (the
+        // bracket terms vanish on e_s); the kinematics' m_s^2/H^2 + eta_perp^2 must equal it, with the theory's own Riemann
+        // tensor in the IFieldTheory convention. A turning trajectory on the disk (angular potential), numerical derivatives.
+        const double alpha = 0.5;
+        double a = 1.5 * alpha, c = Math.Sqrt(2.0 / (3.0 * alpha));
+        var theory = new MetricFieldTheory(new[] { "phi", "theta" },
+            p => { double t = Math.Tanh(p[0] / Math.Sqrt(6 * alpha)); return t * t * (1 + 0.3 * Math.Cos(p[1])); },
+            metric: (p, g) => { double sh = Math.Sinh(c * p[0]); g[0] = 1; g[1] = 0; g[2] = 0; g[3] = a * sh * sh; });
+        var bg = FieldBackgroundSolver.Solve(theory, new BackgroundSettings { Fields0 = new[] { 5.0, 1.2 }, Tolerance = 1e-10, EFoldsAfterEnd = 0 });
+        var kin = new TrajectoryKinematics(theory);
+        double worstTurn = 0;
+        for (double n = 1; n < bg.NEnd - 1; n += (bg.NEnd - 2) / 6)
+        {
+            var k = kin.At(bg, n);
+            var p = kin.Point;
+            double speed = Math.Sqrt(2 * p.Epsilon1);
+            // e_s = G^-1-rotated velocity: e_s^I = eps^IJ phi'_J / sqrt(det G), normalised (2-D).
+            double l0 = p.Metric[0] * p.DPhi[0] + p.Metric[1] * p.DPhi[1], l1 = p.Metric[2] * p.DPhi[0] + p.Metric[3] * p.DPhi[1];
+            double[] es = { l1, -l0 };
+            double norm = Math.Sqrt(p.Dot(es, es));
+            es[0] /= norm; es[1] /= norm;
+            double vss = 0, riem = 0;
+            for (int i = 0; i < 2; i++)
+                for (int j = 0; j < 2; j++)
+                {
+                    vss += es[i] * es[j] * p.Hessian[i * 2 + j];
+                    double lowered = p.Metric[i * 2] * es[0] + p.Metric[i * 2 + 1] * es[1]; // e_sI
+                    for (int kk = 0; kk < 2; kk++)
+                        for (int l = 0; l < 2; l++)
+                            riem += lowered * p.Riemann[((i * 2 + kk) * 2 + l) * 2 + j] * p.DPhi[kk] * p.DPhi[l] * es[j];
+                }
+            double projected = vss / (p.H * p.H) - riem;
+            Assert.Equal(projected, k.EntropicMass + k.TurnRate * k.TurnRate, 1e-6 * Math.Max(1, Math.Abs(projected)));
+            Assert.Equal(0.0, p.Dot(es, p.DPhi) / speed, 1e-12);
+            worstTurn = Math.Max(worstTurn, k.TurnRate);
+        }
+        Assert.True(worstTurn > 1e-3, $"the trajectory should turn (largest eta_perp {worstTurn:E2})");
+    }
 }
