@@ -21,6 +21,7 @@ public class MultiFieldRunTests(ITestOutputHelper output)
         var m = report.MultiField!;
         var d = m.DeltaN!;
         output.WriteLine($"modes {report.Pivot.As:E6} +- {report.Pivot.Errors.As:E1}; delta N {d.Pzeta:E6} +- {d.PzetaError:E1}: {d.RelativeDifference:E3} (allowance {d.Allowance:E2}); f_NL {d.FNL:E4} +- {d.FNLError:E1}; epsilon_1 {d.Raw.Epsilon1:E3}");
+        foreach (var st in report.Statistics.Stages) output.WriteLine($"stage {st.Stage}: {st.Seconds:F3} s");
         Assert.True(d.Agrees, $"delta N and the modes differ by {d.RelativeDifference:E3}, allowance {d.Allowance:E2}");
         Assert.DoesNotContain(report.Flags, f => f.Kind == FlagKinds.DeltaNDisagreement);
         // The allowance is the slow-roll size, not a blanket: a few percent at most here.
