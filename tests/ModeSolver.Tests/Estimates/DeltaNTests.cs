@@ -254,4 +254,30 @@ public class DeltaNTests(ITestOutputHelper output)
         Assert.Contains("Step must lie in (0, 1]", step.Message);
         foreach (var e in new Exception[] { late, slice, step }) Assert.DoesNotContain('\n', e.Message);
     }
+
+    [Fact]
+    public void ThreeEqualMasses_StartedRadially_GiveTheSingleFieldDeltaN()
+    {
+        // physics.md section 7 oracle: equal masses started radially are exactly the single-field quadratic in the radius, so
+        // N depends on the radius only: G^IJ N_I N_J = N_r^2 and f_NL equal the one-field values at the same radius (three
+        // fields exercise every mixed second difference and the n > 2 turn rate, which is 0 on the ray).
+        var three = new MetricFieldTheory(new[] { "a", "b", "c" }, p => 0.5 * (p[0] * p[0] + p[1] * p[1] + p[2] * p[2]),
+            gradient: (p, g) => { g[0] = p[0]; g[1] = p[1]; g[2] = p[2]; });
+        double[] start = { 10.0, 8.0, 6.0 };
+        double r0 = Math.Sqrt(200.0);
+        var s3 = new BackgroundSettings { Fields0 = start, Tolerance = 1e-12, EFoldsAfterEnd = 2 };
+        var s1 = new BackgroundSettings { Phi0 = r0, Tolerance = 1e-12, EFoldsAfterEnd = 2 };
+        var b3 = FieldBackgroundSolver.Solve(three, s3);
+        var b1 = FieldBackgroundSolver.Solve(new SingleFieldTheory(new Quadratic()), s1);
+        var d3 = DeltaN.Compute(b3, s3, 5.0);
+        var d1 = DeltaN.Compute(b1, s1, 5.0);
+        Assert.Equal(d1.Pzeta, d3.Pzeta, 1e-7 * d1.Pzeta + d1.PzetaError + d3.PzetaError);
+        Assert.Equal(d1.FNL, d3.FNL, 1e-6 * Math.Abs(d1.FNL) + d1.FNLError + d3.FNLError);
+        // N_I points along the ray: N_I = N_r phi^I / r.
+        var x = b3.FieldsAt(5.0);
+        double r = Math.Sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
+        for (int i = 0; i < 3; i++) Assert.Equal(d1.Gradient[0] * x[i] / r, d3.Gradient[i], 1e-7 * Math.Abs(d1.Gradient[0]));
+        Assert.True(new ModeSolver.Trajectories.TrajectoryKinematics(three).At(b3, 5.0).TurnRate < 1e-12);
+        Assert.Equal(2 + 3 * 2 * 9, d3.Backgrounds);
+    }
 }
