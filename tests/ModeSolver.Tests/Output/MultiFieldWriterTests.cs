@@ -127,4 +127,20 @@ public class MultiFieldWriterTests
         }
         finally { Directory.Delete(dir, true); }
     }
+
+    [Fact]
+    public void Terminal_summary_has_the_isocurvature_delta_N_and_trajectory_lines()
+    {
+        var r = Report();
+        var sw = new StringWriter();
+        ModeSolver.Cli.Output.SummaryPrinter.Print(r, sw, plain: true);
+        string s = sw.ToString();
+        var lines = s.Split('\n');
+        Assert.Single(lines, l => l.StartsWith("isocurvature at the pivot: P_S = ", StringComparison.Ordinal) && l.Contains("beta_iso"));
+        var dn = Assert.Single(lines, l => l.StartsWith("delta N: P_zeta = ", StringComparison.Ordinal));
+        Assert.Contains("agree", dn);
+        Assert.Contains("f_NL^local = " + r.MultiField!.DeltaN!.FNL.ToString("0.0000e+00", System.Globalization.CultureInfo.InvariantCulture).Replace("E", "e"), dn);
+        Assert.Single(lines, l => l.StartsWith("trajectory (phi, chi): largest eta_perp = ", StringComparison.Ordinal));
+        Assert.DoesNotContain('\u001b', s);
+    }
 }
