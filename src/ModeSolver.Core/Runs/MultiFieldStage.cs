@@ -35,7 +35,9 @@ public static class MultiFieldStage
     /// <paramref name="settings"/>); <paramref name="vScale"/> is the matched potential scale, <paramref name="nPivot"/> the
     /// pivot's horizon exit and <paramref name="windowStart"/> the exit of the largest scale (the flags' window runs from it
     /// to the end of inflation), both in the report's N, which is the fields' N minus <paramref name="origin"/>; the
-    /// trajectory samples are written in the report's N too. A delta N that cannot be computed is reported as a note, never thrown.
+    /// trajectory samples are written in the report's N too. Without <paramref name="deltaN"/>, delta N counts to the
+    /// uniform-density slice at the end of inflation, or to each universe's end when inflation ended on an end surface
+    /// (the physical transition there). A delta N that cannot be computed is reported as a note, never thrown.
     /// </summary>
     public static (MultiFieldResults Results, ImmutableArray<Flag> Flags) Compute(FieldBackgroundSolution fields, BackgroundSettings settings,
         double origin, double nPivot, double vScale, double windowStart, double modesPzeta, double modesPzetaError, double kPivot,
@@ -54,6 +56,8 @@ public static class MultiFieldStage
         string? note = null;
         try
         {
+            // Inflation that ends on a surface (a waterfall, a field value) ends there in every universe: count to it.
+            deltaN ??= fields.EndedAtSurface ? new DeltaNSettings { Slice = DeltaNSlice.EndOfInflation } : new DeltaNSettings();
             var raw = DeltaN.Compute(fields, settings, nPivot, deltaN);
             var kin = new TrajectoryKinematics(fields.Theory).At(fields, nPivot);
             var point = fields.At(nPivot, new double[fields.FieldCount], new double[fields.FieldCount]);
@@ -61,7 +65,7 @@ public static class MultiFieldStage
             var disagreement = TrajectoryFlags.DeltaNAgreement(raw, modesPzeta, modesPzetaError, vScale, allowance, kPivot);
             if (disagreement is not null) flags.Add(disagreement);
             pivot = new DeltaNPivot(raw.ScaledPzeta(vScale), raw.PzetaError * vScale, raw.FNL, raw.FNLError, modesPzeta, allowance,
-                disagreement is null, raw);
+                disagreement is null && double.IsFinite(modesPzeta), raw);
         }
         catch (PhysicsException ex)
         {

@@ -280,4 +280,27 @@ public class DeltaNTests(ITestOutputHelper output)
         Assert.True(new ModeSolver.Trajectories.TrajectoryKinematics(three).At(b3, 5.0).TurnRate < 1e-12);
         Assert.Equal(2 + 3 * 2 * 9, d3.Backgrounds);
     }
+
+    [Fact]
+    public void RunStage_CountsToTheEndSurfaceWhenInflationEndsOnOne()
+    {
+        // The exponential of the exact case ends only on its surface lambda . x = end, which is also a uniform-density
+        // surface on the attractor: the run's delta N counts to each universe's end there and keeps the exact N_I.
+        double lsq = L1 * L1 + L2 * L2;
+        double[] start = { 0.5, 0.0 };
+        double end = L1 * Math.Sinh(start[0]) + 20 * lsq;
+        var settings = new BackgroundSettings
+        {
+            Fields0 = start, Tolerance = 1e-12, EFoldsAfterEnd = 0,
+            EndSurface = FieldSurface.FromFunction("lambda . x = end", p => L1 * Math.Sinh(p[0]) + L2 * p[1] - end),
+        };
+        var bg = FieldBackgroundSolver.Solve(CurvilinearExponential(), settings);
+        var (m, _) = ModeSolver.Runs.MultiFieldStage.Compute(bg, settings, origin: 0, nPivot: 2.0, vScale: 1, windowStart: 1.0,
+            modesPzeta: double.NaN, modesPzetaError: 0, kPivot: 0.05);
+        var d = Assert.IsType<ModeSolver.Results.DeltaNPivot>(m.DeltaN);
+        Assert.Equal(DeltaNSlice.EndOfInflation, d.Raw.Slice);
+        double c = Math.Cosh(bg.FieldsAt(2.0)[0]);
+        Assert.Equal(-L1 * c / lsq, d.Gradient[0], d.Raw.GradientError[0] + 1e-9);
+        Assert.Equal(18.0, d.Raw.NRemaining, 1e-8);
+    }
 }
