@@ -143,4 +143,26 @@ public class MultiFieldWriterTests
         Assert.Single(lines, l => l.StartsWith("trajectory (phi, chi): largest eta_perp = ", StringComparison.Ordinal));
         Assert.DoesNotContain('\u001b', s);
     }
+
+    [Fact]
+    public void WriteAll_writes_the_n_field_files_and_refuses_an_inconsistent_trajectory()
+    {
+        var r = Report();
+        string dir = SyntheticReport.TempDir();
+        try
+        {
+            var files = RunOutputs.Standard(table: false).Concat(RunOutputs.FieldPlots(2)).ToList();
+            var written = RunOutputs.WriteAll(r, dir, files);
+            Assert.Equal(files.Count, written.Count);
+            foreach (var name in new[] { "trajectory.png", "trajectory.svg", "turn-rate.png", "turn-rate.svg", "run.h5", "summary.json" })
+                Assert.True(File.Exists(Path.Combine(dir, name)), name);
+            Assert.Equal(2, RunOutputs.FieldPlots(3).Count);
+            Assert.Empty(RunOutputs.FieldPlots(1));
+            var t = r.MultiField!.Trajectory;
+            var broken = r with { MultiField = r.MultiField with { Trajectory = t with { Fields = t.Fields.RemoveAt(0) } } };
+            var ex = Assert.Throws<ArgumentException>(() => RunOutputs.WriteAll(broken, dir, files));
+            Assert.Contains("trajectory fields and velocities", ex.Message);
+        }
+        finally { Directory.Delete(dir, true); }
+    }
 }
