@@ -182,4 +182,21 @@ public class TrajectoryKinematicsTests
         }
         Assert.True(worstTurn > 1e-3, $"the trajectory should turn (largest eta_perp {worstTurn:E2})");
     }
+
+    [Fact]
+    public void DeltaNDisagreement_IsFlaggedBeyondTheErrorsAndTheAllowanceOnly()
+    {
+        // delta N's P_zeta for the double quadratic at N = 2 set against a "modes" value 10% off (beyond the allowance of a
+        // few percent) and against delta N's own value: one flag, then none.
+        var settings = new BackgroundSettings { Fields0 = new[] { 13.0, 8.0 }, Tolerance = 1e-12, EFoldsAfterEnd = 1 };
+        var bg = FieldBackgroundSolver.Solve(FieldBackgroundTests.DoubleQuadratic(1, 2), settings);
+        var raw = ModeSolver.Estimates.DeltaN.Compute(bg, settings, 2.0);
+        var off = TrajectoryFlags.DeltaNAgreement(raw, 1.1 * raw.Pzeta, 0, 1.0, 0.05, 0.05);
+        Assert.NotNull(off);
+        Assert.Equal(FlagKinds.DeltaNDisagreement, off!.Kind);
+        Assert.Equal(raw.Pzeta, off.SlowRoll);
+        Assert.DoesNotContain('\n', off.Message);
+        Assert.Null(TrajectoryFlags.DeltaNAgreement(raw, 1.04 * raw.Pzeta, 0, 1.0, 0.05, 0.05));
+        Assert.Null(TrajectoryFlags.DeltaNAgreement(raw, raw.Pzeta, 0, 1.0, 0.0, 0.05));
+    }
 }
