@@ -26,12 +26,7 @@ internal static class MultiFieldPrinter
                 d.Agrees ? null : "yellow");
         else Say($"{m.DeltaNNote}", "yellow");
         var t = m.Trajectory;
-        int turn = -1, mass = -1;
-        for (int i = 0; i < t.N.Length; i++)
-        {
-            if (double.IsFinite(t.TurnRate[i]) && (turn < 0 || t.TurnRate[i] > t.TurnRate[turn])) turn = i;
-            if (double.IsFinite(t.EntropicMass[i]) && (mass < 0 || t.EntropicMass[i] < t.EntropicMass[mass])) mass = i;
-        }
+        int turn = t.LargestTurnIndex, mass = t.SmallestEntropicMassIndex;
         string turnText = turn < 0 ? "n/a" : string.Create(Inv, $"{t.TurnRate[turn]:G3} at N = {t.N[turn]:0.00}");
         string massText = mass < 0 ? "" : string.Create(Inv, $", smallest m_s^2/H^2 = {t.EntropicMass[mass]:G3} at N = {t.N[mass]:0.00}");
         Say($"trajectory ({string.Join(", ", t.FieldNames)}): largest eta_perp = {turnText}{massText}");

@@ -30,6 +30,20 @@ public sealed record TrajectorySamples(
     /// <summary>The number of fields.</summary>
     public int FieldCount => FieldNames.Length;
 
+    /// <summary>The sample with the largest finite eta_perp (-1 when none is finite).</summary>
+    public int LargestTurnIndex => Extreme(TurnRate, largest: true);
+
+    /// <summary>The sample with the smallest finite m_s^2/H^2 (-1 when none is finite, e.g. n != 2).</summary>
+    public int SmallestEntropicMassIndex => Extreme(EntropicMass, largest: false);
+
+    private static int Extreme(ImmutableArray<double> values, bool largest)
+    {
+        int best = -1;
+        for (int i = 0; i < values.Length; i++)
+            if (double.IsFinite(values[i]) && (best < 0 || (largest ? values[i] > values[best] : values[i] < values[best]))) best = i;
+        return best;
+    }
+
     /// <summary>
     /// Samples <paramref name="background"/> at <paramref name="count"/> equally spaced N from <paramref name="from"/> to
     /// <paramref name="to"/> (both inside the background's range).

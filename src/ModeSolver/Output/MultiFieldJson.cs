@@ -64,12 +64,7 @@ internal static class MultiFieldJson
         }
 
         var t = m.Trajectory;
-        int maxTurn = -1, minMass = -1;
-        for (int i = 0; i < t.N.Length; i++)
-        {
-            if (double.IsFinite(t.TurnRate[i]) && (maxTurn < 0 || t.TurnRate[i] > t.TurnRate[maxTurn])) maxTurn = i;
-            if (double.IsFinite(t.EntropicMass[i]) && (minMass < 0 || t.EntropicMass[i] < t.EntropicMass[minMass])) minMass = i;
-        }
+        int maxTurn = t.LargestTurnIndex, minMass = t.SmallestEntropicMassIndex;
         w.WriteStartObject("trajectory");
         w.WriteStartArray("field_names");
         foreach (var f in t.FieldNames) w.WriteStringValue(f);
