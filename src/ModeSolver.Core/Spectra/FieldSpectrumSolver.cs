@@ -1,7 +1,5 @@
-using System.Collections.Concurrent;
 using ModeSolver.Background;
 using ModeSolver.Perturbations;
-using ModeSolver.Physics;
 
 namespace ModeSolver.Spectra;
 
@@ -113,28 +111,7 @@ public static class FieldSpectrumSolver
 
     private static FieldModeResult[] SolveAll(AdiabaticBackground background, double[] ks, ModeSettings ms, int dop)
     {
-        var results = new FieldModeResult[ks.Length];
-        var options = new ParallelOptions { MaxDegreeOfParallelism = dop > 0 ? dop : Environment.ProcessorCount };
-        var exceptions = new ConcurrentQueue<(int Index, Exception Error)>();
         var scan = FrictionScan.FromStart(background);
-        Parallel.ForEach(Partitioner.Create(0, ks.Length, Math.Max(1, ks.Length / (4 * options.MaxDegreeOfParallelism))), options,
-            () => new FieldModeIntegrator(background),
-            (range, _, integrator) =>
-            {
-                for (int i = range.Item1; i < range.Item2; i++)
-                {
-                    try { results[i] = integrator.Solve(background, ks[i], ms, transfer: true, scan); }
-                    catch (Exception e) { exceptions.Enqueue((i, e)); }
-                }
-                return integrator;
-            },
-            _ => { });
-        if (!exceptions.IsEmpty)
-        {
-            var first = exceptions.OrderBy(x => x.Index).First().Error;
-            if (first is PhysicsException) throw first;
-            throw new PhysicsException($"mode k = {ks[exceptions.Min(x => x.Index)]:G6} failed: {first.Message}", first);
-        }
-        return results;
+        return ParallelModes.Solve(ks, dop, () => new FieldModeIntegrator(background), (integrator, k) => integrator.Solve(background, k, ms, transfer: true, scan));
     }
 }
