@@ -181,7 +181,7 @@ public static partial class TheoryRun
         }
         var isocurvature = new IsocurvatureResults(run.Theory.FieldCount,
             new IsocurvaturePivot(iso.Ps, iso.Crs, iso.CosDelta, iso.BetaIso, iso.Trs, iso.PrExit, iso.PsError),
-            Imm(kMpc), Of(x => x.Ps), Of(x => x.Crs), Of(x => x.CosDelta), Of(x => x.BetaIso), Of(x => x.Trs), Of(x => x.PrExit));
+            Imm(kMpc), Of(x => x.Ps), Of(x => x.Crs), Of(x => FieldIsocurvature.Resolved(x.Ps, x.Pr, kr.Tolerance) ? x.CosDelta : double.NaN), Of(x => x.BetaIso), Of(x => x.Trs), Of(x => x.PrExit));
 
         long rhs = 0;
         foreach (int r in spectrum.RhsEvaluations) rhs += r;

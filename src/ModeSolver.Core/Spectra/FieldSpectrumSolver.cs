@@ -13,7 +13,8 @@ public sealed record FieldSpectrum(PrimordialSpectrum Spectrum, FieldModeResult[
 /// n-field spectra on a log-spaced k grid (no refinement): one n x n mode (with tensors) per k in parallel, bit-identical
 /// for any thread count. n_s and n_t are finite differences of ln P in ln k on the grid (5-point inside, 3-point
 /// one-sided at the two ends on each side), alpha_s the 3-point second difference, each with the error bound of
-/// <see cref="FieldSlopes"/>. Error checks: a few spread samples re-run 10x tighter; each sample's error is the larger
+/// <see cref="FieldSlopes"/>. Error checks: a few spread samples re-run 10x tighter from 4x deeper starts (so that the initial-data error is
+/// measured too); each sample's error is the larger
 /// of its own estimate and twice the deviation at the nearest check.
 /// </summary>
 public static class FieldSpectrumSolver
@@ -41,7 +42,12 @@ public static class FieldSpectrumSolver
             checkIdx[c] = (int)Math.Round((double)c * (count - 1) / (ErrorChecks - 1));
             checkK[c] = ks[checkIdx[c]];
         }
-        var tight = SolveAll(background, checkK, settings with { Tolerance = tolerance * 0.1 }, threads);
+        var tight = new FieldModeResult[ErrorChecks];
+        for (int c = 0; c < ErrorChecks; c++)
+            tight[c] = SolveAll(background, [checkK[c]], settings with
+            {
+                Tolerance = tolerance * 0.1, StartDepth = FieldModeIntegrator.CheckDepthFactor * modes[checkIdx[c]].StartDepth, MaxSteps = 200_000,
+            }, threads)[0];
         var dev = new double[ErrorChecks];
         for (int c = 0; c < ErrorChecks; c++)
         {

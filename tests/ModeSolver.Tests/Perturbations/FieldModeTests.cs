@@ -57,6 +57,8 @@ public class FieldModeTests(ITestOutputHelper output)
         Assert.Equal(1.0, field.Pr / single.Ps, 1e-6);
         Assert.Equal(1.0, field.Pt / single.Pt, 1e-6);
         Assert.True(Math.Abs(field.CosDelta) < 1e-6, $"cos Delta = {field.CosDelta}");
+        // No conversion after exit: T_RS = 0 to its resolution (FieldModeIntegrator.ExitEFolds: about 1e-2).
+        Assert.True(field.Trs < 2e-2, $"T_RS = {field.Trs}");
     }
 
     [Fact]
@@ -76,6 +78,7 @@ public class FieldModeTests(ITestOutputHelper output)
         Assert.Equal(1.0, ip.Ps / ic.Ps, 1e-6);
         Assert.Equal(ic.Crs / Math.Sqrt(ic.Ps * vc.Ps), ip.Crs / Math.Sqrt(ip.Ps * vp.Ps), 1e-6);
         Assert.Equal(vc.Ns, vp.Ns, 1e-6);
+        Assert.Equal(ic.Trs, ip.Trs, 1e-6);
         Assert.True(ic.Ps > 1e-3 * vc.Ps && Math.Abs(ic.CosDelta) > 1e-3, "the test needs a real, correlated isocurvature");
     }
 
