@@ -35,6 +35,24 @@ public sealed class FieldModeIntegrator
     /// <summary>How much deeper the error checks of n-field modes start than the mode they check.</summary>
     public const double CheckDepthFactor = 4;
 
+    /// <summary>
+    /// The start depth of the check of a mode of <paramref name="k"/> that started at <paramref name="depth"/>:
+    /// <see cref="CheckDepthFactor"/> times deeper, but no deeper than 0.95 of k/aH at the background's start.
+    /// </summary>
+    public static double CheckDepth(IBackground background, double k, double depth)
+    {
+        ArgumentNullException.ThrowIfNull(background);
+        double available = k / (Math.Exp(background.NStart) * background.At(background.NStart).H);
+        return Math.Max(depth, Math.Min(CheckDepthFactor * depth, 0.95 * available));
+    }
+
+    /// <summary>The start depth an n-field mode uses by default at <paramref name="settings"/>' tolerance.</summary>
+    public static double StartDepthFor(ModeSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        return settings.StartDepth != 0 ? settings.StartDepth : Math.Max(settings.EffectiveStartDepth, MinimumStartDepth);
+    }
+
     private readonly ModeDriver _driver;
     private readonly FieldModeSystem _fields;
     private readonly IModeSystem[] _both, _scalar;
@@ -66,7 +84,7 @@ public sealed class FieldModeIntegrator
             if (t < background.NEnd)
                 throw new PhysicsException($"the n-field perturbations cannot cross the non-smooth point at N = {t - background.NStart:G6} e-folds after the start (a kink of V puts a delta function into the mass matrix); use a smooth potential");
         var ms = settings.Derivatives ? settings with { Derivatives = false } : settings;
-        if (ms.StartDepth == 0) ms = ms with { StartDepth = Math.Max(ms.EffectiveStartDepth, MinimumStartDepth) };
+        if (ms.StartDepth == 0) ms = ms with { StartDepth = StartDepthFor(ms) };
         var systems = (ms.Kinds & ModeKinds.Tensor) != 0 ? _both : _scalar;
         double nExit = transfer ? background.NAtHorizonExit(k) : double.NaN;
         _driver.SnapshotN = nExit + ExitEFolds;

@@ -71,7 +71,7 @@ public static class FieldPivotValues
         double h = FieldSlopes.Step;
         for (int j = 0; j < 5; j++)
         {
-            var sj = @checked is null ? settings : settings with { StartDepth = FieldModeIntegrator.CheckDepthFactor * @checked[j].StartDepth, MaxSteps = 200_000 };
+            var sj = @checked is null ? settings : settings with { StartDepth = FieldModeIntegrator.CheckDepth(bg, @checked[j].K, @checked[j].StartDepth), MaxSteps = 200_000 };
             modes[j] = integrator.Solve(bg, k * Math.Exp((j - 2) * h), sj, transfer: j == 2);
             if (j == 2) work = modes[j].RhsEvaluations;
             lnR[j] = Math.Log(modes[j].Pr);

@@ -13,8 +13,8 @@ public sealed record FieldSpectrum(PrimordialSpectrum Spectrum, FieldModeResult[
 /// n-field spectra on a log-spaced k grid (no refinement): one n x n mode (with tensors) per k in parallel, bit-identical
 /// for any thread count. n_s and n_t are finite differences of ln P in ln k on the grid (5-point inside, 3-point
 /// one-sided at the two ends on each side), alpha_s the 3-point second difference, each with the error bound of
-/// <see cref="FieldSlopes"/>. Error checks: a few spread samples re-run 10x tighter from 4x deeper starts (so that the initial-data error is
-/// measured too); each sample's error is the larger
+/// <see cref="FieldSlopes"/>. Error checks: a few spread samples re-run 10x tighter from 4x deeper starts where the background allows
+/// (<see cref="FieldModeIntegrator.CheckDepth"/>; so that the initial-data error is measured too); each sample's error is the larger
 /// of its own estimate and twice the deviation at the nearest check.
 /// </summary>
 public static class FieldSpectrumSolver
@@ -46,7 +46,7 @@ public static class FieldSpectrumSolver
         for (int c = 0; c < ErrorChecks; c++)
             tight[c] = SolveAll(background, [checkK[c]], settings with
             {
-                Tolerance = tolerance * 0.1, StartDepth = FieldModeIntegrator.CheckDepthFactor * modes[checkIdx[c]].StartDepth, MaxSteps = 200_000,
+                Tolerance = tolerance * 0.1, StartDepth = FieldModeIntegrator.CheckDepth(background, checkK[c], modes[checkIdx[c]].StartDepth), MaxSteps = 200_000,
             }, threads)[0];
         var dev = new double[ErrorChecks];
         for (int c = 0; c < ErrorChecks; c++)
