@@ -62,6 +62,24 @@ public class FieldModeTests(ITestOutputHelper output)
     }
 
     [Fact]
+    public void ThreeEqualMasses_RadialStart_EqualSingleFieldQuadratic()
+    {
+        // The same oracle with n = 3 (physics.md 7): V = m^2 |phi|^2/2 from a radial start at |phi| = 15.
+        var theory = new MetricFieldTheory(new[] { "a", "b", "c" }, p => 0.5 * (p[0] * p[0] + p[1] * p[1] + p[2] * p[2]),
+            gradient: (p, g) => { g[0] = p[0]; g[1] = p[1]; g[2] = p[2]; },
+            hessian: (p, h) => { h.Clear(); h[0] = h[4] = h[8] = 1; });
+        var three = AdiabaticBackground.Of(FieldBackgroundSolver.Solve(theory, Start([10.0, 10.0, 5.0])));
+        var one = BackgroundSolver.Solve(new Quadratic(), new BackgroundSettings { Phi0 = 15.0, Tolerance = 1e-12, EFoldsAfterEnd = 0 });
+        double k = KAt(one, 20);
+        var single = new ModeIntegrator().Solve(one, k, Tight with { Derivatives = true });
+        var field = new FieldModeIntegrator(three).Solve(three, k, Tight);
+        output.WriteLine($"P single {single.Ps:R} three-field {field.Pr:R} rel {field.Pr / single.Ps - 1:E3}; P_S {field.Ps:E4}; C_RS {field.Crs}");
+        Assert.Equal(1.0, field.Pr / single.Ps, 1e-6);
+        Assert.True(double.IsNaN(field.Crs), "C_RS is defined for two fields only");
+        Assert.True(field.Ps > 0);
+    }
+
+    [Fact]
     public void CartesianAndPolarFields_GiveTheSameSpectra()
     {
         // physics.md 7: in curvilinear coordinates on a flat field space every result equals the Cartesian one.
