@@ -11,7 +11,14 @@ using ModeSolver.Pipeline;
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
 // `--resonant-depths DECK [f]`: RHS work per mode against the start depth on a resonant deck, with and without the propagator.
 // `--error-honesty [CASE] [--all]`: per-k error estimate against a 1000x tighter re-solve on the hard models (docs/modes.md).
+// `--counts`: the deterministic work counts of ModeBenchmarks (right-hand sides of the quadratic pivot mode at 1e-6,
+// and per mode of its 200-mode spectrum), without timing.
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
+if (args.Length >= 1 && args[0] == "--counts")
+{
+    new ModeSolver.Benchmarks.Perturbations.ModeBenchmarks().Setup();
+    return;
+}
 if (args.Length >= 2 && args[0] == "--resonant-depths")
 {
     ModeSolver.Benchmarks.Perturbations.ResonantDepthWork.Run(args);
