@@ -127,7 +127,11 @@ internal sealed class ProgramJit
         private void EmitJetBody()
         {
             Set(0, 0, new Expr(_phi, Scope)); Set(0, 1, 1.0); Set(0, 2, 0.0); Set(0, 3, 0.0);
-            EmitCode((pc, I) => Set4(I.Dst, Kernels.Jet(I.Op, R4(I.A), R4(I.B), C(pc), I.N)));
+            EmitCode((pc, I) =>
+            {
+                Kernels.Jet(I.Op, R4(I.A), R4(I.B), C(pc), I.N, out var v);
+                Set4(I.Dst, v);
+            });
         }
     }
 }
