@@ -109,6 +109,7 @@ internal static class MultiKernels
     }
 
     /// <summary>d = F(a) by the multivariate chain rule, given F and its first three derivatives at a0.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void Compose<T, R>(MultiLayout L, R a, R d, T f0, T f1, T f2, T f3)
         where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
     {
@@ -128,6 +129,7 @@ internal static class MultiKernels
     }
 
     /// <summary>d = a b (the Leibniz rule for each partial).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void Mul<T, R>(MultiLayout L, R a, R b, R d)
         where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
     {
@@ -148,6 +150,7 @@ internal static class MultiKernels
     }
 
     /// <summary>d = a / b, from a = d b order by order (b0 non-zero).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void Div<T, R>(MultiLayout L, R a, R b, R d)
         where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
     {
