@@ -14,7 +14,8 @@ public class FormulaGeneratedCodeTests
 {
     private static string R(double x) => x.ToString("R", CultureInfo.InvariantCulture);
 
-    private static void Same(double expected, double actual, string what)
+    /// <summary>Fails unless the interpreter's and the generated code's values have the same bits (any NaN matches any NaN).</summary>
+    internal static void Same(double expected, double actual, string what)
     {
         if (BitConverter.DoubleToInt64Bits(expected) == BitConverter.DoubleToInt64Bits(actual)) return;
         if (double.IsNaN(expected) && double.IsNaN(actual)) return;

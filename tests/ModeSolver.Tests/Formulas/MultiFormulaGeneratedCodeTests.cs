@@ -14,12 +14,7 @@ public class MultiFormulaGeneratedCodeTests
 {
     private static string R(double x) => x.ToString("R", CultureInfo.InvariantCulture);
 
-    private static void Same(double expected, double actual, string what)
-    {
-        if (BitConverter.DoubleToInt64Bits(expected) == BitConverter.DoubleToInt64Bits(actual)) return;
-        if (double.IsNaN(expected) && double.IsNaN(actual)) return;
-        Assert.Fail($"{what}: interpreter {R(expected)}, generated code {R(actual)}");
-    }
+    private static void Same(double expected, double actual, string what) => FormulaGeneratedCodeTests.Same(expected, actual, what);
 
     private static void Agree(MultiFormula f, double[] x, string text)
     {
