@@ -93,6 +93,7 @@ internal static unsafe class MultiJetEvaluator
     /// <see cref="MultiLayout.Width"/> doubles per register. Returns a pointer to the result register's series.
     /// </summary>
     [SkipLocalsInit]
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static double* Run(CompiledProgram program, MultiLayout L, ReadOnlySpan<double> point, double* s)
     {
         int w = L.Width;

@@ -53,10 +53,11 @@ internal static class MultiKernels
     /// One instruction (not a jump): d = op(a, b) with constant <paramref name="c"/> and integer <paramref name="n"/>;
     /// <paramref name="l"/> and <paramref name="m"/> are the instruction's two scratch registers (used by Pow).
     /// </summary>
-    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static void Run<T, R>(MultiLayout L, Op op, R d, R a, R b, R l, R m, T c, int n)
         where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
     {
+        // Small enough to inline into the interpreter's loop; the longer rules are methods of their own.
         int w = L.Width;
         switch (op)
         {
@@ -71,41 +72,55 @@ internal static class MultiKernels
             case Op.DivC: { T q = T.Let(c); for (int k = 0; k < w; k++) d.Set(k, a[k] / q); return; }
             case Op.Mul: Mul<T, R>(L, a, b, d); return;
             case Op.Div: Div<T, R>(L, a, b, d); return;
-            case Op.Pow:
-            {
-                // a^b = exp(b log a), with the value pow(a0, b0).
-                T a0 = T.Let(a[0]);
-                Kernels.Chain(Op.Log, a0, 0.0, 0, out T l0, out T l1, out T l2, out T l3);
-                Compose(L, a, l, l0, l1, l2, l3);
-                Mul<T, R>(L, b, l, m);
-                T p = T.Let(T.Pow(a0, b[0]));
-                Compose(L, m, d, p, p, p, p);
-                return;
-            }
-            case Op.Abs:
-            {
-                // Right-hand branch at a zero: the sign of the first non-zero coefficient (value, then derivatives in slot order).
-                T sign = T.Let(T.FirstSign(a.Slots(w)));
-                d.Set(0, T.Abs(a[0]));
-                for (int k = 1; k < w; k++) d.Set(k, sign * a[k]);
-                return;
-            }
+            case Op.Pow: Pow<T, R>(L, a, b, l, m, d); return;
+            case Op.Abs: Abs<T, R>(L, a, d); return;
             case Op.Step: d.Set(0, T.Step(a[0])); for (int k = 1; k < w; k++) d.Set(k, 0.0); return;
-            case Op.Min:
-            case Op.Max:
-            {
-                // NaN in either value: NaN everywhere; else the lexicographically smaller (larger) series.
-                T choice = T.Let(T.ChooseSeries(a.Slots(w), b.Slots(w), op == Op.Min));
-                for (int k = 0; k < w; k++) d.Set(k, T.Pick(choice, a[k], b[k]));
-                return;
-            }
-            default:
-            {
-                Kernels.Chain(op, a[0], c, n, out T f0, out T f1, out T f2, out T f3);
-                Compose(L, a, d, f0, f1, f2, f3);
-                return;
-            }
+            case Op.Min: case Op.Max: Select<T, R>(L, a, b, d, op == Op.Min); return;
+            default: Function<T, R>(L, op, a, d, c, n); return;
         }
+    }
+
+    /// <summary>d = a^b = exp(b log a), with the value pow(a0, b0); <paramref name="l"/> and <paramref name="m"/> are scratch.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void Pow<T, R>(MultiLayout L, R a, R b, R l, R m, R d)
+        where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
+    {
+        T a0 = T.Let(a[0]);
+        Kernels.Chain(Op.Log, a0, 0.0, 0, out T l0, out T l1, out T l2, out T l3);
+        Compose(L, a, l, l0, l1, l2, l3);
+        Mul<T, R>(L, b, l, m);
+        T p = T.Let(T.Pow(a0, b[0]));
+        Compose(L, m, d, p, p, p, p);
+    }
+
+    /// <summary>d = |a|; at a zero, the branch of the sign of the first non-zero coefficient (value, then derivatives in slot order).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void Abs<T, R>(MultiLayout L, R a, R d)
+        where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
+    {
+        int w = L.Width;
+        T sign = T.Let(T.FirstSign(a.Slots(w)));
+        d.Set(0, T.Abs(a[0]));
+        for (int k = 1; k < w; k++) d.Set(k, sign * a[k]);
+    }
+
+    /// <summary>min or max: NaN in either value gives NaN everywhere, else the lexicographically smaller (larger) series.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void Select<T, R>(MultiLayout L, R a, R b, R d, bool min)
+        where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
+    {
+        int w = L.Width;
+        T choice = T.Let(T.ChooseSeries(a.Slots(w), b.Slots(w), min));
+        for (int k = 0; k < w; k++) d.Set(k, T.Pick(choice, a[k], b[k]));
+    }
+
+    /// <summary>d = F(a) for a one-argument function (Kernels.IsChained): F, F', F'', F''' from Kernels.Chain.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void Function<T, R>(MultiLayout L, Op op, R a, R d, T c, int n)
+        where T : struct, IFormulaNumber<T> where R : struct, IMultiRegister<T>
+    {
+        Kernels.Chain(op, a[0], c, n, out T f0, out T f1, out T f2, out T f3);
+        Compose(L, a, d, f0, f1, f2, f3);
     }
 
     /// <summary>d = F(a) by the multivariate chain rule, given F and its first three derivatives at a0.</summary>
