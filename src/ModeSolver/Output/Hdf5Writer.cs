@@ -25,6 +25,7 @@ namespace ModeSolver.Output;
 /// <item>/flags: kind, quantity, message, where (string arrays), lower, upper, exact, slow_roll, difference; attribute count.</item>
 /// <item>/statistics: attributes wall_seconds, modes, rhs_evaluations, workers; datasets stage (strings) and stage_seconds.</item>
 /// <item>/observables (when computed): data_distance, peak, induced_gw (Omega_GW h^2 against f), pbh (beta and f_PBH against M); see ObservablesHdf5.</item>
+/// <item>/bispectrum (when computed): f_NL at the pivot as attributes, the equilateral curve and the shape grid; see BispectrumOutputs.</item>
 /// </list>
 /// NaN stays NaN in HDF5 (it is a valid IEEE value there).
 /// </summary>
@@ -194,6 +195,7 @@ public static class Hdf5Writer
         stats.Attributes["workers"] = st.Workers;
         file["statistics"] = stats;
         ObservablesHdf5.Add(file, report.Observables);
+        BispectrumOutputs.AddHdf5(file, report.Bispectrum);
         return file;
     }
 
