@@ -184,6 +184,13 @@ public class SettingsSchemaTests
             [reheating]
             efolds = 5
             w = 0.2
+            [bispectrum]
+            equilateral = 10
+            squeezed_ratio = 0.02
+            shape_grid = 5
+            flag_threshold = 0.1
+            tolerance = 1e-6
+            damping = 0.5
             """,
             "[model]\ncatalogue = \"monomial\"\n[pivot]\nefolds = 55\n",
         };
