@@ -11,10 +11,16 @@ using ModeSolver.Pipeline;
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
 // `--resonant-depths DECK [f]`: RHS work per mode against the start depth on a resonant deck, with and without the propagator.
 // `--error-honesty [CASE] [--all]`: per-k error estimate against a 1000x tighter re-solve on the hard models (docs/modes.md).
+// `--fnl-speed [DECK] [REPS]`: equilateral f_NL at the pivot and a 200-point equilateral curve on 1 and 2 threads (docs/speed.md).
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
 if (args.Length >= 2 && args[0] == "--resonant-depths")
 {
     ModeSolver.Benchmarks.Perturbations.ResonantDepthWork.Run(args);
+    return;
+}
+if (args.Length >= 1 && args[0] == "--fnl-speed")
+{
+    ModeSolver.Benchmarks.Bispectrum.BispectrumSpeed.Run(args);
     return;
 }
 if (args.Length >= 1 && args[0] == "--error-honesty")
