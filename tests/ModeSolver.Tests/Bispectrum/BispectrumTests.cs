@@ -8,13 +8,9 @@ namespace ModeSolver.Tests.Bispectrum;
 
 public class BispectrumTests
 {
-    private static readonly Lazy<BackgroundSolution> QuadraticBackground = new(() => SpectrumTests.Solve(new Quadratic(1e-10), 17.5));
+    private static Lazy<BackgroundSolution> QuadraticBackground => SpectrumTests.QuadraticBackground;
 
-    private static double PivotK(IBackground bg, double efoldsBeforeEnd)
-    {
-        double n = bg.NEnd - efoldsBeforeEnd;
-        return Math.Exp(n) * bg.At(n).H;
-    }
+    private static double PivotK(IBackground bg, double efoldsBeforeEnd) => SpectrumTests.PivotK(bg, efoldsBeforeEnd);
 
     [Fact]
     public void Quadratic_EquilateralAgreesWithLeadingOrderSlowRoll()
@@ -113,5 +109,26 @@ public class BispectrumTests
         double kLate = PivotK(bg, 0.5);
         var e = Assert.Throws<ModeSolver.Physics.PhysicsException>(() => new BispectrumSolver(bg).Solve(Triangle.Equilateral(kLate)));
         Assert.Contains("end of inflation", e.Message);
+    }
+
+    [Fact]
+    public void PoleKineticTerm_GivesTheBispectrumOfItsCanonicalForm()
+    {
+        // Kallosh, Linde & Roest 2013, JHEP 11, 198: V = phi^2/(6 alpha) with K = (1 - phi^2/(6 alpha))^-2 is the T-model
+        // V = tanh^2(chi/sqrt(6 alpha)) in chi = sqrt(6 alpha) artanh(phi/sqrt(6 alpha)). The cubic action in zeta sees the
+        // theory only through e1, e2, e2' and H, so the two must give the same f_NL (within the reported errors and the
+        // difference of the two backgrounds, which start on their attractors from the same field value).
+        double alpha = 1.0, c = Math.Sqrt(6 * alpha), chi0 = 7.5;
+        var canonical = SpectrumTests.Solve(new TModel(alpha), chi0);
+        var pole = SpectrumTests.Solve(new PoleTModel(alpha), c * Math.Tanh(chi0 / c));
+        foreach (var (bg, name) in new[] { ((IBackground)canonical, "canonical"), (pole, "pole") })
+            Assert.True(bg.NEnd > 60, $"{name}: {bg.NEnd} e-folds");
+        double kc = PivotK(canonical, 55), kp = PivotK(pole, 55);
+        var settings = new BispectrumSettings { EstimateTolerance = false };
+        var rc = new BispectrumSolver(canonical, settings).Solve([Triangle.Equilateral(kc), Triangle.Squeezed(kc, 0.05)]);
+        var rp = new BispectrumSolver(pole, settings).Solve([Triangle.Equilateral(kp), Triangle.Squeezed(kp, 0.05)]);
+        for (int i = 0; i < rc.Length; i++)
+            Assert.True(Math.Abs(rc[i].FNL - rp[i].FNL) <= rc[i].Error + rp[i].Error + 1e-4 * Math.Abs(rc[i].FNL),
+                $"triangle {i}: canonical {rc[i].FNL:G8} +- {rc[i].Error:G2}, pole {rp[i].FNL:G8} +- {rp[i].Error:G2}");
     }
 }
