@@ -29,7 +29,7 @@ public static class BispectrumSpeed
         for (int i = 0; i < curve.Length; i++) curve[i] = Triangle.Equilateral(a * Math.Pow(b / a, i / 199.0));
         solver.Solve([Triangle.Equilateral(kp)]); // JIT
         double one = Median(reps, () => solver.Solve([Triangle.Equilateral(kp)]), out var r1);
-        Console.WriteLine(FormattableString.Invariant($"equilateral at the pivot, 1 thread: {one * 1e3:F1} ms (f_NL = {r1[0].FNL:G6} +- {r1[0].Error:G2}, {r1[0].RhsEvaluations} right-hand sides, start K/aH = {r1[0].StartDepth:F0})"));
+        Console.WriteLine(FormattableString.Invariant($"equilateral at the pivot, 1 thread: {one * 1e3:F1} ms (f_NL = {r1[0].FNL:G6} +- {r1[0].Error:G2}, {r1[0].RhsEvaluations} right-hand sides, {r1[0].IntegrandEvaluations} integrand evaluations, start K/aH = {r1[0].StartDepth:F0})"));
         foreach (int threads in new[] { 1, 2 })
         {
             double t = Median(Math.Max(1, reps / 3), () => solver.Solve(curve, threads), out var rc);

@@ -25,11 +25,15 @@ public sealed record BispectrumSettings
     /// </summary>
     public double EndDepth { get; init; } = 1e-3;
 
-    /// <summary>Largest e-fold width of one quadrature panel (default 0.2).</summary>
-    public double MaxPanel { get; init; } = 0.2;
+    /// <summary>Largest e-fold width of one quadrature panel before adaptive halving (default 0.5).</summary>
+    public double MaxPanel { get; init; } = 0.5;
 
-    /// <summary>Phase advance K/(aH) dN of one 10-point Gauss-Legendre panel (default 2 radians).</summary>
-    public double PanelPhase { get; init; } = 2.0;
+    /// <summary>
+    /// Phase advance K/(aH) dN of one panel before adaptive halving (default 5 radians): the panel is integrated by
+    /// 10-point Gauss-Legendre whole and in two halves, and halved again where the two disagree by more than 1e-2
+    /// tolerance of its integral of |integrand|.
+    /// </summary>
+    public double PanelPhase { get; init; } = 5.0;
 
     /// <summary>Whether to rerun the histories at a tenth of the tolerance for the error estimate (default true).</summary>
     public bool EstimateTolerance { get; init; } = true;
@@ -42,7 +46,7 @@ public sealed record BispectrumSettings
         if (StartDepth != 0 && !(StartDepth >= 20 && StartDepth <= 1e5)) throw new ArgumentOutOfRangeException(nameof(StartDepth), StartDepth, "start depth K/aH must lie in [20, 1e5] (or 0 for automatic)");
         if (!(EndDepth > 0 && EndDepth <= 0.1)) throw new ArgumentOutOfRangeException(nameof(EndDepth), EndDepth, "end depth k/aH must lie in (0, 0.1]");
         if (!(MaxPanel > 0 && MaxPanel <= 1)) throw new ArgumentOutOfRangeException(nameof(MaxPanel), MaxPanel, "panel width must lie in (0, 1] e-folds");
-        if (!(PanelPhase > 0 && PanelPhase <= 4)) throw new ArgumentOutOfRangeException(nameof(PanelPhase), PanelPhase, "panel phase must lie in (0, 4] radians");
+        if (!(PanelPhase > 0 && PanelPhase <= 8)) throw new ArgumentOutOfRangeException(nameof(PanelPhase), PanelPhase, "panel phase must lie in (0, 8] radians");
     }
 
     /// <summary>

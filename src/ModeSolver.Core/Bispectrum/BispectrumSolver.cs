@@ -50,12 +50,12 @@ public sealed class BispectrumSolver
             var m = main[i];
             var best = fine is null ? m : fine[i];
             double tolErr = fine is null ? double.NaN : Math.Abs(fine[i].Value - m.Value);
-            double err = best.Damping + best.Start + best.End + (double.IsNaN(tolErr) ? 0 : tolErr);
+            double err = best.Damping + best.Start + best.End + best.Quadrature + (double.IsNaN(tolErr) ? 0 : tolErr);
             result[i] = new BispectrumPoint(triangles[i], best.Value, err)
             {
-                DampingError = best.Damping, StartError = best.Start, EndError = best.End, ToleranceError = tolErr,
+                DampingError = best.Damping, StartError = best.Start, EndError = best.End, QuadratureError = best.Quadrature, ToleranceError = tolErr,
                 StartDepth = _settings.EffectiveStartDepth, EndDepth = plans[i].EndDepth, EndCapped = plans[i].Capped,
-                RhsEvaluations = work + fineWork,
+                RhsEvaluations = work + fineWork, IntegrandEvaluations = 10 * (m.Panels + (fine is null ? 0 : fine[i].Panels)),
             };
         }
         return result;
@@ -134,7 +134,7 @@ public sealed class BispectrumSolver
     private readonly record struct TrianglePlan(double NDeep, double NStart, double NEarly, double NEnd, double EndDepth, bool Capped);
 
     /// <summary>One pass (one tolerance): the kappa -> 0 extrapolation and its convergence terms.</summary>
-    private readonly record struct PassResult(double Value, double Damping, double Start, double End)
+    private readonly record struct PassResult(double Value, double Damping, double Start, double End, double Quadrature, int Panels)
     {
         public static PassResult From(in InInSums s)
         {
@@ -142,7 +142,8 @@ public sealed class BispectrumSolver
             double coarse = 2.0 * s.FNL(2, false, false) - s.FNL(1, false, false);
             // The late-time terms (the gradient terms of the field redefinition left out, the tail of the integral) fall off at
             // least as k/aH after exit (as (k/aH)^2 in slow roll): the end at 10x the end depth overstates them by 10x or more.
-            return new PassResult(v, Math.Abs(v - coarse), Math.Abs(Extrapolate(s, true, false) - v), 0.1 * Math.Abs(Extrapolate(s, false, true) - v));
+            return new PassResult(v, Math.Abs(v - coarse), Math.Abs(Extrapolate(s, true, false) - v), 0.1 * Math.Abs(Extrapolate(s, false, true) - v),
+                5.0 * s.QuadratureFNL, s.Panels); // the extrapolation weights the three integrals by 8/3, 2 and 1/3
         }
 
         // Richardson extrapolation to kappa = 0 from kappa, kappa/2, kappa/4 (removes the first- and second-order terms).
@@ -155,7 +156,7 @@ public sealed class BispectrumSolver
 /// <param name="Triangle">The triangle (background units).</param>
 /// <param name="FNL">f_NL = (5/6) B / (P1 P2 + P2 P3 + P3 P1), extrapolated to zero damping, at the finer tolerance.</param>
 /// <param name="Error">
-/// Estimated absolute error of <paramref name="FNL"/>: the sum of the damping, start, end and tolerance terms below.
+/// Estimated absolute error of <paramref name="FNL"/>: the sum of the damping, start, end, quadrature and tolerance terms below.
 /// </param>
 public sealed record BispectrumPoint(Triangle Triangle, double FNL, double Error)
 {
@@ -165,6 +166,8 @@ public sealed record BispectrumPoint(Triangle Triangle, double FNL, double Error
     public double StartError { get; init; }
     /// <summary>|f_NL ended at ten times the end depth - f_NL| / 10 (the late-time terms fall off at least as k/aH).</summary>
     public double EndError { get; init; }
+    /// <summary>The disagreement of the adaptive Gauss-Legendre panels with their halves, left at the accepted level.</summary>
+    public double QuadratureError { get; init; }
     /// <summary>|f_NL at the tolerance - f_NL at a tenth of it| (NaN when not estimated).</summary>
     public double ToleranceError { get; init; }
     /// <summary>K/aH at the start of the integral.</summary>
@@ -173,6 +176,8 @@ public sealed record BispectrumPoint(Triangle Triangle, double FNL, double Error
     public double EndDepth { get; init; }
     /// <summary>True when the end of inflation came before k_max/aH reached the end depth.</summary>
     public bool EndCapped { get; init; }
+    /// <summary>Evaluations of the in-in integrand of this triangle (both tolerance passes).</summary>
+    public int IntegrandEvaluations { get; init; }
     /// <summary>Right-hand sides of the mode histories of the whole call (shared by its triangles).</summary>
     public int RhsEvaluations { get; init; }
 }
