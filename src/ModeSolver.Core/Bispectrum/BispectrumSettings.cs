@@ -7,16 +7,11 @@ public sealed record BispectrumSettings
     public double Tolerance { get; init; } = 1e-7;
 
     /// <summary>
-    /// Damping kappa of the early-time factor exp(-kappa K/(aH)) (Chen, Easther &amp; Lim 2007, JCAP 06, 023), K the perimeter.
-    /// The integral is computed at kappa, kappa/2 and kappa/4 on the same nodes and extrapolated to kappa = 0 (default 0.4).
+    /// Start of the numerical in-in integral as K/(aH), K the perimeter (default 50). Earlier times enter through the
+    /// kappa -> 0 limit of the convergence factor exp(-kappa K/(aH)) taken analytically (<see cref="EarlyTimes"/>); the error
+    /// estimate also starts twice as deep.
     /// </summary>
-    public double Damping { get; init; } = 0.4;
-
-    /// <summary>
-    /// Start of the in-in integral as K/(aH); 0 chooses it so that the most weakly damped variant, exp(-kappa/4 K/aH),
-    /// has fallen below the tolerance times the growth of the integrand there. The error estimate also starts twice as deep.
-    /// </summary>
-    public double StartDepth { get; init; }
+    public double StartDepth { get; init; } = 50;
 
     /// <summary>
     /// End of the integral as k_max/(aH) (default 1e-3), k_max the largest side: late enough that zeta has frozen and the
@@ -42,26 +37,9 @@ public sealed record BispectrumSettings
     public void Validate()
     {
         if (!(Tolerance >= 1e-12 && Tolerance <= 1e-3)) throw new ArgumentOutOfRangeException(nameof(Tolerance), Tolerance, "bispectrum tolerance must lie in [1e-12, 1e-3]");
-        if (!(Damping > 0 && Damping <= 2)) throw new ArgumentOutOfRangeException(nameof(Damping), Damping, "damping kappa must lie in (0, 2]");
-        if (StartDepth != 0 && !(StartDepth >= 20 && StartDepth <= 1e5)) throw new ArgumentOutOfRangeException(nameof(StartDepth), StartDepth, "start depth K/aH must lie in [20, 1e5] (or 0 for automatic)");
+        if (!(StartDepth >= 10 && StartDepth <= 1e4)) throw new ArgumentOutOfRangeException(nameof(StartDepth), StartDepth, "start depth K/aH must lie in [10, 1e4]");
         if (!(EndDepth > 0 && EndDepth <= 0.1)) throw new ArgumentOutOfRangeException(nameof(EndDepth), EndDepth, "end depth k/aH must lie in (0, 0.1]");
         if (!(MaxPanel > 0 && MaxPanel <= 1)) throw new ArgumentOutOfRangeException(nameof(MaxPanel), MaxPanel, "panel width must lie in (0, 1] e-folds");
         if (!(PanelPhase > 0 && PanelPhase <= 8)) throw new ArgumentOutOfRangeException(nameof(PanelPhase), PanelPhase, "panel phase must lie in (0, 8] radians");
-    }
-
-    /// <summary>
-    /// The start depth used: K/(aH) where (K/aH)^2 exp(-kappa/4 K/aH) = tolerance / 100 (the integrand grows as (K/aH)^2
-    /// inside the horizon), at least 40.
-    /// </summary>
-    public double EffectiveStartDepth
-    {
-        get
-        {
-            if (StartDepth != 0) return StartDepth;
-            double kMin = 0.25 * Damping, target = Math.Log(100.0 / Tolerance);
-            double x = 40;
-            for (int i = 0; i < 60; i++) x = (target + 2.0 * Math.Log(x)) / kMin; // fixed point: kMin x - 2 ln x = target
-            return Math.Max(40.0, x);
-        }
     }
 }

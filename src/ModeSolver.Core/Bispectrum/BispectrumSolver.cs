@@ -50,11 +50,11 @@ public sealed class BispectrumSolver
             var m = main[i];
             var best = fine is null ? m : fine[i];
             double tolErr = fine is null ? double.NaN : Math.Abs(fine[i].Value - m.Value);
-            double err = best.Damping + best.Start + best.End + best.Quadrature + (double.IsNaN(tolErr) ? 0 : tolErr);
+            double err = best.Early + best.Start + best.End + best.Quadrature + (double.IsNaN(tolErr) ? 0 : tolErr);
             result[i] = new BispectrumPoint(triangles[i], best.Value, err)
             {
-                DampingError = best.Damping, StartError = best.Start, EndError = best.End, QuadratureError = best.Quadrature, ToleranceError = tolErr,
-                StartDepth = _settings.EffectiveStartDepth, EndDepth = plans[i].EndDepth, EndCapped = plans[i].Capped,
+                EarlyTimeError = best.Early, StartError = best.Start, EndError = best.End, QuadratureError = best.Quadrature, ToleranceError = tolErr,
+                StartDepth = _settings.StartDepth, EndDepth = plans[i].EndDepth, EndCapped = plans[i].Capped,
                 RhsEvaluations = work + fineWork, IntegrandEvaluations = 10 * (m.Panels + (fine is null ? 0 : fine[i].Panels)),
             };
         }
@@ -77,7 +77,7 @@ public sealed class BispectrumSolver
             for (int s = 0; s < 3; s++)
             {
                 double k = t.Side(s);
-                double need = Math.Max(50.0, 1.05 * 2.0 * _settings.EffectiveStartDepth * k / t.Perimeter);
+                double need = Math.Max(20.0, 1.1 * 2.0 * _settings.StartDepth * k / t.Perimeter); // the stencil of EarlyTimes reaches 0.04 e-folds before
                 if (!index.TryGetValue(k, out int j))
                 {
                     j = ks.Count;
@@ -113,10 +113,10 @@ public sealed class BispectrumSolver
 
     private TrianglePlan Plan(in Triangle t)
     {
-        double xs = _settings.EffectiveStartDepth;
+        double xs = _settings.StartDepth;
         double kTot = t.Perimeter, kMax = t.Largest;
         double xFirst = kTot * Math.Exp(-_bg.NStart) / _bg.At(_bg.NStart).H;
-        if (!(xFirst >= 2.0 * xs * 1.05))
+        if (!(xFirst >= 2.0 * xs * 1.1))
             throw new PhysicsException($"bispectrum: triangle ({t.K1:G6}, {t.K2:G6}, {t.K3:G6}) is only at K/aH = {xFirst:G4} at the start of the background (N = {_bg.NStart:G8}); the in-in integral starts at K/aH = {2 * xs:G4}: start the field further up the potential or choose larger k");
         double nDeep = HorizonExit.Find(_bg, kTot / (2.0 * xs));
         double nStart = HorizonExit.Find(_bg, kTot / xs);
@@ -133,35 +133,30 @@ public sealed class BispectrumSolver
 
     private readonly record struct TrianglePlan(double NDeep, double NStart, double NEarly, double NEnd, double EndDepth, bool Capped);
 
-    /// <summary>One pass (one tolerance): the kappa -> 0 extrapolation and its convergence terms.</summary>
-    private readonly record struct PassResult(double Value, double Damping, double Start, double End, double Quadrature, int Panels)
+    /// <summary>One pass (one tolerance): the value and its convergence terms.</summary>
+    private readonly record struct PassResult(double Value, double Early, double Start, double End, double Quadrature, int Panels)
     {
         public static PassResult From(in InInSums s)
         {
-            double v = Extrapolate(s, false, false);
-            double coarse = 2.0 * s.FNL(2, false, false) - s.FNL(1, false, false);
+            double v = s.FNL(false, false);
             // The late-time terms (the gradient terms of the field redefinition left out, the tail of the integral) fall off at
             // least as k/aH after exit (as (k/aH)^2 in slow roll): the end at 10x the end depth overstates them by 10x or more.
-            return new PassResult(v, Math.Abs(v - coarse), Math.Abs(Extrapolate(s, true, false) - v), 0.1 * Math.Abs(Extrapolate(s, false, true) - v),
-                5.0 * s.QuadratureFNL, s.Panels); // the extrapolation weights the three integrals by 8/3, 2 and 1/3
+            return new PassResult(v, s.AsFNL(s.TailTerm), Math.Abs(s.FNL(true, false) - v), 0.1 * Math.Abs(s.FNL(false, true) - v),
+                s.AsFNL(s.QuadratureError), s.Panels);
         }
-
-        // Richardson extrapolation to kappa = 0 from kappa, kappa/2, kappa/4 (removes the first- and second-order terms).
-        private static double Extrapolate(in InInSums s, bool deep, bool early) =>
-            (8.0 * s.FNL(2, deep, early) - 6.0 * s.FNL(1, deep, early) + s.FNL(0, deep, early)) / 3.0;
     }
 }
 
 /// <summary>f_NL of one triangle and its error estimate.</summary>
 /// <param name="Triangle">The triangle (background units).</param>
-/// <param name="FNL">f_NL = (5/6) B / (P1 P2 + P2 P3 + P3 P1), extrapolated to zero damping, at the finer tolerance.</param>
+/// <param name="FNL">f_NL = (5/6) B / (P1 P2 + P2 P3 + P3 P1), at the finer tolerance.</param>
 /// <param name="Error">
-/// Estimated absolute error of <paramref name="FNL"/>: the sum of the damping, start, end, quadrature and tolerance terms below.
+/// Estimated absolute error of <paramref name="FNL"/>: the sum of the early-time, start, end, quadrature and tolerance terms below.
 /// </param>
 public sealed record BispectrumPoint(Triangle Triangle, double FNL, double Error)
 {
-    /// <summary>|extrapolation from (kappa, kappa/2, kappa/4) - extrapolation from (kappa/2, kappa/4)|.</summary>
-    public double DampingError { get; init; }
+    /// <summary>The last (fourth) term of the analytic early-time limit at the start, as an error of f_NL.</summary>
+    public double EarlyTimeError { get; init; }
     /// <summary>|f_NL with the integral started twice as deep - f_NL|.</summary>
     public double StartError { get; init; }
     /// <summary>|f_NL ended at ten times the end depth - f_NL| / 10 (the late-time terms fall off at least as k/aH).</summary>

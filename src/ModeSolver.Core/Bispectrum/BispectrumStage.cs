@@ -99,7 +99,7 @@ public static class BispectrumStage
     {
         ArgumentNullException.ThrowIfNull(bg);
         ArgumentNullException.ThrowIfNull(settings);
-        double lo = 2.0 * 1.06 * settings.EffectiveStartDepth * Math.Exp(bg.NStart) * bg.At(bg.NStart).H / 3.0;
+        double lo = 1.03 * Math.Max(20.0, 2.2 * settings.StartDepth / 3.0) * Math.Exp(bg.NStart) * bg.At(bg.NStart).H;
         double hi = 0.099 * Math.Exp(bg.NEnd) * bg.At(bg.NEnd).H;
         return (lo, hi);
     }

@@ -141,9 +141,9 @@ public static class SettingsSchema
         new() { Path = "bispectrum.tolerance", Option = "--fnl-tolerance", Kind = SettingKind.Number, Default = "1e-7", SpectrumOnly = true,
             Doc = "relative accuracy of the mode histories of the in-in integral, in [1e-10, 1e-4]",
             Check = v => v >= 1e-10 && v <= 1e-4 ? null : $"must lie in [1e-10, 1e-4] (got {v})", ReportRank = 285 },
-        new() { Path = "bispectrum.damping", Option = "--fnl-damping", Kind = SettingKind.Number, Default = "0.4", SpectrumOnly = true,
-            Doc = "damping kappa of the early-time factor exp(-kappa K/aH), in [0.05, 2] (extrapolated to 0 from kappa, kappa/2, kappa/4)",
-            Check = v => v >= 0.05 && v <= 2 ? null : $"must lie in [0.05, 2] (got {v})", ReportRank = 286 },
+        new() { Path = "bispectrum.start_depth", Option = "--fnl-start-depth", Kind = SettingKind.Number, Default = "50", SpectrumOnly = true,
+            Doc = "K/aH (K = k1 + k2 + k3) where the numerical in-in integral starts, in [10, 10000]; earlier times are the analytic kappa -> 0 limit of the damping exp(-kappa K/aH)",
+            Check = v => v >= 10 && v <= 1e4 ? null : $"must lie in [10, 10000] (got {v})", ReportRank = 286 },
 
         .. FlagThresholds.Select(f => new SettingDef
         {

@@ -163,8 +163,8 @@ public static class SpectrumPipeline
         ArgumentNullException.ThrowIfNull(settings);
         var v = settings.Values;
         double? points = v.Number("bispectrum.equilateral"), ratio = v.Number("bispectrum.squeezed_ratio"), grid = v.Number("bispectrum.shape_grid"),
-            flag = v.Number("bispectrum.flag_threshold"), tol = v.Number("bispectrum.tolerance"), damping = v.Number("bispectrum.damping");
-        if (points is null && ratio is null && grid is null && flag is null && tol is null && damping is null) return null;
+            flag = v.Number("bispectrum.flag_threshold"), tol = v.Number("bispectrum.tolerance"), start = v.Number("bispectrum.start_depth");
+        if (points is null && ratio is null && grid is null && flag is null && tol is null && start is null) return null;
         var defaults = new BispectrumRequest();
         return new BispectrumRequest
         {
@@ -172,7 +172,7 @@ public static class SpectrumPipeline
             SqueezedRatio = ratio ?? defaults.SqueezedRatio,
             ShapeGrid = (int)(grid ?? 0),
             FlagThreshold = flag ?? defaults.FlagThreshold,
-            Numerics = defaults.Numerics with { Tolerance = tol ?? defaults.Numerics.Tolerance, Damping = damping ?? defaults.Numerics.Damping },
+            Numerics = defaults.Numerics with { Tolerance = tol ?? defaults.Numerics.Tolerance, StartDepth = start ?? defaults.Numerics.StartDepth },
         };
     }
 

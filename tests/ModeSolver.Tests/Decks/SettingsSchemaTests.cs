@@ -190,7 +190,7 @@ public class SettingsSchemaTests
             shape_grid = 5
             flag_threshold = 0.1
             tolerance = 1e-6
-            damping = 0.5
+            start_depth = 60
             """,
             "[model]\ncatalogue = \"monomial\"\n[pivot]\nefolds = 55\n",
         };
