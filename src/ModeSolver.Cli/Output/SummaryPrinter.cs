@@ -90,6 +90,12 @@ public static class SummaryPrinter
         {
             Line(console, plain, string.Create(CultureInfo.InvariantCulture,
                 $"bispectrum at k_* = {b.KPivot:G4} /Mpc: f_NL equilateral = {b.Equilateral.FNL:G5} +- {b.Equilateral.Error:G2} (slow roll {b.Equilateral.SlowRoll:G5}), squeezed (k3/k1 = {b.SqueezedRatio:G3}) = {b.Squeezed.FNL:G5} +- {b.Squeezed.Error:G2} (consistency (5/12)(1 - n_s) = {b.Squeezed.SlowRoll:G5})"), null);
+            for (int i = 0; i < b.Triangles.Length && i < 10; i++)
+            {
+                var t = b.Triangles[i];
+                Line(console, plain, string.Create(CultureInfo.InvariantCulture, $"  triangle ({t.K1:G4}, {t.K2:G4}, {t.K3:G4}) /Mpc: f_NL = {t.FNL:G5} +- {t.Error:G2}"), null);
+            }
+            if (b.Triangles.Length > 10) Line(console, plain, $"  ... {b.Triangles.Length - 10} more triangles in summary.json", null);
             if (b.Curve.K.Length > 0)
             {
                 double lo = double.PositiveInfinity, hi = double.NegativeInfinity;

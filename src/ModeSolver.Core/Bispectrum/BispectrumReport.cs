@@ -18,6 +18,9 @@ public sealed record BispectrumReport(
     double KPivot, FnlValue Equilateral, FnlValue Squeezed, double SqueezedRatio,
     EquilateralCurve Curve, ShapeGrid? Shape, ImmutableArray<string> Flags, double FlagThreshold)
 {
+    /// <summary>f_NL at the triangles the run asked for (k in 1/Mpc), in their order.</summary>
+    public ImmutableArray<TriangleValue> Triangles { get; init; } = [];
+
     /// <summary>Wall time of the stage (s).</summary>
     public double Seconds { get; init; }
 }
@@ -41,3 +44,11 @@ public sealed record EquilateralCurve(ImmutableArray<double> K, ImmutableArray<d
 /// <param name="FNL">f_NL[i2 * X.Length + i3] at (X[i2], X[i3]).</param>
 /// <param name="Error">The error estimates on the same grid.</param>
 public sealed record ShapeGrid(double K1, ImmutableArray<double> X, ImmutableArray<double> FNL, ImmutableArray<double> Error);
+
+/// <summary>f_NL at one triangle of the user's choice.</summary>
+/// <param name="K1">k1 (1/Mpc).</param>
+/// <param name="K2">k2 (1/Mpc).</param>
+/// <param name="K3">k3 (1/Mpc).</param>
+/// <param name="FNL">Exact f_NL.</param>
+/// <param name="Error">Its error estimate.</param>
+public readonly record struct TriangleValue(double K1, double K2, double K3, double FNL, double Error);

@@ -15,6 +15,9 @@ public sealed record BispectrumRequest
     /// <summary>Flag a point where |f_NL exact - slow roll| exceeds this plus the point's error estimate.</summary>
     public double FlagThreshold { get; init; } = 0.05;
 
+    /// <summary>Triangles of the user's choice (k in 1/Mpc).</summary>
+    public IReadOnlyList<Triangle> Triangles { get; init; } = [];
+
     /// <summary>Numerical settings of the in-in integral.</summary>
     public BispectrumSettings Numerics { get; init; } = new();
 }

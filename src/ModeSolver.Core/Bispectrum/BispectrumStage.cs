@@ -54,7 +54,16 @@ public static class BispectrumStage
                 shapeIndex[i2 * g + i3] = triangles.Count;
                 triangles.Add(Triangle.Shape(kp, x2, x3));
             }
+        int userFrom = triangles.Count;
+        foreach (var t in request.Triangles)
+            triangles.Add(new Triangle(pivot.ToBackgroundUnits(t.K1), pivot.ToBackgroundUnits(t.K2), pivot.ToBackgroundUnits(t.K3)));
         var r = solver.Solve(triangles, threads);
+        var user = ImmutableArray.CreateBuilder<TriangleValue>();
+        for (int i = 0; i < request.Triangles.Count; i++)
+        {
+            var t = request.Triangles[i];
+            user.Add(new TriangleValue(t.K1, t.K2, t.K3, r[userFrom + i].FNL, r[userFrom + i].Error));
+        }
         var eqExit = SlowRollBispectrum.AtExit(bg, kp);
         var eq = new FnlValue(r[0].FNL, r[0].Error, SlowRollBispectrum.Equilateral(eqExit.Epsilon1, eqExit.Epsilon2));
         var sq = new FnlValue(r[1].FNL, r[1].Error, SlowRollBispectrum.Consistency(ns));
@@ -91,7 +100,7 @@ public static class BispectrumStage
         }
         return new BispectrumReport(pivot.KPivot, eq, sq, request.SqueezedRatio,
             new EquilateralCurve(ck.ToImmutable(), cf.ToImmutable(), ce.ToImmutable(), cs.ToImmutable()), shape, flags.ToImmutable(), request.FlagThreshold)
-        { Seconds = clock.Elapsed.TotalSeconds };
+        { Seconds = clock.Elapsed.TotalSeconds, Triangles = user.ToImmutable() };
     }
 
     /// <summary>The equilateral k (background units) the background serves: deep enough at its start, out of the horizon at the end.</summary>

@@ -8,7 +8,7 @@ namespace ModeSolver.Output;
 /// <summary>
 /// The bispectrum in summary.json (object "bispectrum": f_NL_equilateral and f_NL_squeezed at the pivot with their errors
 /// and slow-roll values, the convention, the curve's range and the flags) and in run.h5 (group /bispectrum: attributes as
-/// in the JSON; datasets equilateral_k, equilateral_f_NL, equilateral_f_NL_error, equilateral_f_NL_slow_roll; with a shape
+/// in the JSON; datasets triangle_k1, triangle_k2, triangle_k3, triangle_f_NL, triangle_f_NL_error (the deck's triangles), equilateral_k, equilateral_f_NL, equilateral_f_NL_error, equilateral_f_NL_slow_roll; with a shape
 /// grid, shape_x (the values of x2 = k2/k1 and x3 = k3/k1), shape_f_NL and shape_f_NL_error [x2, x3], NaN outside the triangles).
 /// </summary>
 internal static class BispectrumOutputs
@@ -45,6 +45,18 @@ internal static class BispectrumOutputs
             Num(w, "equilateral_f_NL_max", hi);
             Num(w, "equilateral_max_error", err);
         }
+        w.WriteStartArray("triangles");
+        foreach (var t in b.Triangles)
+        {
+            w.WriteStartObject();
+            Num(w, "k1", t.K1);
+            Num(w, "k2", t.K2);
+            Num(w, "k3", t.K3);
+            Num(w, "f_NL", t.FNL);
+            Num(w, "f_NL_error", t.Error);
+            w.WriteEndObject();
+        }
+        w.WriteEndArray();
         w.WriteNumber("shape_grid", b.Shape?.X.Length ?? 0);
         Num(w, "flag_threshold", b.FlagThreshold);
         w.WriteStartArray("flags");
@@ -65,6 +77,14 @@ internal static class BispectrumOutputs
             ["equilateral_f_NL_slow_roll"] = Arr(b.Curve.SlowRoll),
         };
         g.Attributes["convention"] = Convention;
+        if (b.Triangles.Length > 0)
+        {
+            g["triangle_k1"] = b.Triangles.Select(t => t.K1).ToArray();
+            g["triangle_k2"] = b.Triangles.Select(t => t.K2).ToArray();
+            g["triangle_k3"] = b.Triangles.Select(t => t.K3).ToArray();
+            g["triangle_f_NL"] = b.Triangles.Select(t => t.FNL).ToArray();
+            g["triangle_f_NL_error"] = b.Triangles.Select(t => t.Error).ToArray();
+        }
         g.Attributes["k_pivot"] = b.KPivot;
         g.Attributes["f_NL_equilateral"] = b.Equilateral.FNL;
         g.Attributes["f_NL_equilateral_error"] = b.Equilateral.Error;

@@ -164,7 +164,8 @@ public static class SpectrumPipeline
         var v = settings.Values;
         double? points = v.Number("bispectrum.equilateral"), ratio = v.Number("bispectrum.squeezed_ratio"), grid = v.Number("bispectrum.shape_grid"),
             flag = v.Number("bispectrum.flag_threshold"), tol = v.Number("bispectrum.tolerance"), start = v.Number("bispectrum.start_depth");
-        if (points is null && ratio is null && grid is null && flag is null && tol is null && start is null) return null;
+        var triangles = TriangleList.Parse(settings.BispectrumTriangles);
+        if (points is null && ratio is null && grid is null && flag is null && tol is null && start is null && triangles.Count == 0) return null;
         var defaults = new BispectrumRequest();
         return new BispectrumRequest
         {
@@ -172,6 +173,7 @@ public static class SpectrumPipeline
             SqueezedRatio = ratio ?? defaults.SqueezedRatio,
             ShapeGrid = (int)(grid ?? 0),
             FlagThreshold = flag ?? defaults.FlagThreshold,
+            Triangles = [.. triangles.Select(t => new Triangle(t.K1, t.K2, t.K3))],
             Numerics = defaults.Numerics with { Tolerance = tol ?? defaults.Numerics.Tolerance, StartDepth = start ?? defaults.Numerics.StartDepth },
         };
     }

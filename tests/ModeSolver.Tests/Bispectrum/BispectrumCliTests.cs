@@ -4,7 +4,8 @@ using PureHDF;
 namespace ModeSolver.Tests.Bispectrum;
 
 /// <summary>The plateau demo with a small bispectrum request (6 equilateral points, a 4 x 4 shape grid).</summary>
-public sealed class PlateauBispectrumRun() : CliDeckRun("fnl", "runs/plateau-demo.toml", "--k-count", "12", "--fnl-equilateral", "6", "--fnl-shape-grid", "4");
+public sealed class PlateauBispectrumRun() : CliDeckRun("fnl", "runs/plateau-demo.toml", "--k-count", "12", "--fnl-equilateral", "6", "--fnl-shape-grid", "4",
+    "--fnl-triangles", "0.05:0.05:0.05,0.05:0.04:0.03");
 
 [Collection("ConsoleCapture")]
 public class BispectrumCliTests(PlateauBispectrumRun run) : IClassFixture<PlateauBispectrumRun>
@@ -27,6 +28,12 @@ public class BispectrumCliTests(PlateauBispectrumRun run) : IClassFixture<Platea
         Assert.True(eqErr > 0 && eqErr < 0.02 * Math.Abs(eq));
         Assert.Equal(6, b.GetProperty("equilateral_points").GetInt32());
         Assert.Equal(0, b.GetProperty("flags").GetArrayLength());
+        var tri = b.GetProperty("triangles");
+        Assert.Equal(2, tri.GetArrayLength());
+        // The deck's equilateral triangle at k_* is the pivot's equilateral value (shared histories, same triangle).
+        Assert.True(Math.Abs(tri[0].GetProperty("f_NL").GetDouble() / eq - 1) < 1e-6);
+        Assert.Equal(0.03, tri[1].GetProperty("k3").GetDouble());
+        Assert.Contains("triangle (0.05, 0.04, 0.03) /Mpc", run.Out);
         using var file = H5File.OpenRead(run.File("run.h5"));
         var g = file.Group("bispectrum");
         Assert.Equal(eq, g.Attribute("f_NL_equilateral").Read<double>());

@@ -191,6 +191,7 @@ public class SettingsSchemaTests
             flag_threshold = 0.1
             tolerance = 1e-6
             start_depth = 60
+            triangles = ["0.05:0.04:0.03"]
             """,
             "[model]\ncatalogue = \"monomial\"\n[pivot]\nefolds = 55\n",
         };
