@@ -104,6 +104,7 @@ public static class SummaryPrinter
                     $"  equilateral f_NL(k): {b.Curve.K.Length} points over k = {b.Curve.K[0]:G3} .. {b.Curve.K[^1]:G3} /Mpc, f_NL from {lo:G4} to {hi:G4}"), null);
             }
         }
+        MultiFieldPrinter.Print(console, plain, report);
 
         // Flags and warnings: one line each. Plain output bypasses Spectre's wrapping so a line is never split.
         if (report.Flags.IsDefaultOrEmpty)

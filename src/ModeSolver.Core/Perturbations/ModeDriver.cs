@@ -129,7 +129,9 @@ internal sealed class ModeDriver
             n = Segments(n, SnapshotN, options, k);
             if (!_freeze.Frozen)
             {
-                _snapshot = _y.AsSpan(0, _ctx.Layout.Dimension).ToArray();
+                int dim = _ctx.Layout.Dimension;
+                if (_snapshot.Length != dim) _snapshot = new double[dim];
+                _y.AsSpan(0, dim).CopyTo(_snapshot);
                 SnapshotTaken = true;
                 n = Segments(n, nEnd, options, k);
             }

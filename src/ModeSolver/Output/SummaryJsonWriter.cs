@@ -75,6 +75,7 @@ public static class SummaryJsonWriter
         WriteDerived(w, r.Derived);
         ObservablesJson.Write(w, r.Observables);
         BispectrumOutputs.WriteJson(w, r.Bispectrum);
+        MultiFieldJson.Write(w, r);
 
         w.WriteStartObject("slow_roll");
         Estimate(w, "first_order", r.SlowRoll.FirstOrder);
