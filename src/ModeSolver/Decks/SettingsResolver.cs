@@ -219,6 +219,7 @@ public static class SettingsResolver
             // Every number of the schema checked (the ones above were checked where they are used, so this pass adds
             // no new message for them) and kept for the stage that reads it.
             Values = SettingValues.From(input),
+            BispectrumTriangles = input.GetValue(SettingsSchema.Get("bispectrum.triangles")) is Located<IReadOnlyList<string>> tl ? TriangleList.Canonical(tl) : null,
         };
         CheckTheory(settings, input, entry);
         return settings;
