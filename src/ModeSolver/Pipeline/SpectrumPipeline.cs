@@ -71,6 +71,7 @@ public static class SpectrumPipeline
     {
         ArgumentNullException.ThrowIfNull(settings);
         options ??= new PipelineOptions();
+        if (settings.Model.IsMultiField) throw FieldPipeline.NotYet(settings, "the pivot matching and the spectrum");
         if (settings.Amplitude.SolveFor is not null)
         {
             options.Stage?.Invoke("background");
