@@ -116,6 +116,17 @@ public class FieldDeckTests
     }
 
     [Fact]
+    public void WrittenDeck_ReadsBackToTheSameSettings()
+    {
+        var s = SettingsResolver.Resolve(DeckReader.Parse(Deck, "fields.toml"));
+        var back = SettingsResolver.Resolve(DeckReader.Parse(DeckWriter.Write(s), "written.toml"));
+        Assert.Equal(s.Model.Describe(), back.Model.Describe());
+        Assert.Equal(s.Initial.Fields0!, back.Initial.Fields0!);
+        Assert.Equal(s.Initial.Velocity0!, back.Initial.Velocity0!);
+        Assert.Equal(s.Model.End, back.Model.End);
+    }
+
+    [Fact]
     public void SpectrumOfSeveralFields_IsRefusedInOneLine()
     {
         var s = SettingsResolver.Resolve(DeckReader.Parse(Deck, "fields.toml"));
