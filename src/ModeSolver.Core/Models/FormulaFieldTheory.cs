@@ -198,49 +198,35 @@ public sealed partial class FormulaFieldTheory : IFieldTheory
     {
         int n = _n, n2 = n * n, n3 = n2 * n;
         if (IsCanonical) { christoffel[..n3].Clear(); return; }
-        int own = 3 * n2 + n3, length = own + MetricWork(1);
-        double[] work = ArrayPool<double>.Shared.Rent(length);
-        try
-        {
-            var span = work.AsSpan(0, length);
-            var g = span[..n2];
-            var inverse = span.Slice(n2, n2);
-            var scratch = span.Slice(2 * n2, n2);
-            var dg = span.Slice(3 * n2, n3);
-            MetricJets(phi, g, dg, Span<double>.Empty, span[own..]);
-            if (!FieldGeometry.Inverse(g, n, inverse, scratch)) { christoffel[..n3].Fill(double.NaN); return; }
-            FieldGeometry.Christoffel(n, inverse, dg, christoffel);
-        }
-        finally
-        {
-            ArrayPool<double>.Shared.Return(work);
-        }
+        GeometryFromMetric(phi, christoffel, 1);
     }
 
     /// <inheritdoc/>
     public void Riemann(ReadOnlySpan<double> phi, Span<double> riemann)
     {
-        int n = _n, n2 = n * n, n3 = n2 * n, n4 = n3 * n;
+        int n = _n, n4 = n * n * n * n;
         if (IsCanonical) { riemann[..n4].Clear(); return; }
-        int own = 3 * n2 + 2 * n3 + 2 * n4 + FieldGeometry.ChristoffelDerivativeScratch(n);
-        int length = own + MetricWork(2);
+        GeometryFromMetric(phi, riemann, 2);
+    }
+
+    // The Christoffel symbols (order 1) or the Riemann tensor (order 2) from the exact metric jets, in pooled work arrays.
+    private void GeometryFromMetric(ReadOnlySpan<double> phi, Span<double> result, int order)
+    {
+        int n = _n, n2 = n * n, n3 = n2 * n, n4 = n3 * n;
+        int jets = n2 + n3 + (order == 2 ? n4 : 0);
+        int own = jets + (order == 2 ? FieldGeometry.RiemannFromMetricScratch(n) : FieldGeometry.ChristoffelFromMetricScratch(n));
+        int length = own + MetricWork(order);
         double[] work = ArrayPool<double>.Shared.Rent(length);
         try
         {
             var span = work.AsSpan(0, length);
             var g = span[..n2];
-            var inverse = span.Slice(n2, n2);
-            var scratch = span.Slice(2 * n2, n2);
-            var dg = span.Slice(3 * n2, n3);
-            var gamma = span.Slice(3 * n2 + n3, n3);
-            var ddg = span.Slice(3 * n2 + 2 * n3, n4);
-            var dgamma = span.Slice(3 * n2 + 2 * n3 + n4, n4);
-            var geometryScratch = span.Slice(3 * n2 + 2 * n3 + 2 * n4, FieldGeometry.ChristoffelDerivativeScratch(n));
+            var dg = span.Slice(n2, n3);
+            var ddg = order == 2 ? span.Slice(n2 + n3, n4) : Span<double>.Empty;
+            var scratch = span[jets..own];
             MetricJets(phi, g, dg, ddg, span[own..]);
-            if (!FieldGeometry.Inverse(g, n, inverse, scratch)) { riemann[..n4].Fill(double.NaN); return; }
-            FieldGeometry.Christoffel(n, inverse, dg, gamma);
-            FieldGeometry.ChristoffelDerivative(n, inverse, dg, ddg, dgamma, geometryScratch);
-            FieldGeometry.Riemann(n, gamma, dgamma, riemann);
+            if (order == 2) FieldGeometry.RiemannFromMetric(n, g, dg, ddg, result, scratch);
+            else FieldGeometry.ChristoffelFromMetric(n, g, dg, result, scratch);
         }
         finally
         {

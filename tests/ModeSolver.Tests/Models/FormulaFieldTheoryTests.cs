@@ -166,6 +166,37 @@ public class FormulaFieldTheoryTests
     }
 
     [Fact]
+    public void Evaluations_AllocateNothingPerCall()
+    {
+        // The right-hand-side calls (V and its gradient, the metric, the Christoffel symbols, the Hessian, the Riemann
+        // tensor) of a Jordan-frame theory, the longest path: 1000 more calls must not allocate 1000 more bytes (any
+        // allocation costs at least 24 bytes; the margin is for the runtime's own one-off allocations).
+        var t = FormulaFieldTheory.Jordan(PhiChi, "l*(phi^2 + chi^2)^2/4", "1 + xi*phi^2 + xc*chi^2", [["1", "0"], ["0", "1 + phi^2"]],
+            false, new Dictionary<string, double> { ["xi"] = 5.0, ["xc"] = 2.0, ["l"] = 0.01 });
+        var x = new[] { 0.8, -0.45 };
+        var grad = new double[2];
+        var m = new double[4];
+        var gamma = new double[8];
+        var riemann = new double[16];
+        long Measure(int calls)
+        {
+            long before = GC.GetAllocatedBytesForCurrentThread();
+            for (int i = 0; i < calls; i++)
+            {
+                t.PotentialGradient(x, grad);
+                t.PotentialHessian(x, m);
+                t.Metric(x, m);
+                t.Christoffel(x, gamma);
+                t.Riemann(x, riemann);
+            }
+            return GC.GetAllocatedBytesForCurrentThread() - before;
+        }
+        Measure(50); // warm-up (JIT, pool)
+        long few = Measure(10), many = Measure(1010);
+        Assert.True(many - few < 1000, $"allocation grew by {many - few} bytes over 1000 extra calls");
+    }
+
+    [Fact]
     public void MetricNotPositiveDefiniteAtTheStart_NamesTheFieldValues()
     {
         var t = FormulaFieldTheory.Einstein(PhiChi, "phi^2 + chi^2", [["1", "0"], ["0", "1 - chi"]]);
