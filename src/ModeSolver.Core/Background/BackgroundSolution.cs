@@ -17,7 +17,7 @@ internal sealed record BackgroundSegment(double Start, double Stop, OdeSolution 
 /// The shape (phi(N), e_n(N)) does not depend on the scale of V; <see cref="WithVScale"/> gives a rescaled view
 /// sharing the same storage, in which only H (and V) change.
 /// </summary>
-public sealed class BackgroundSolution : IShapeSharedBackground, IHorizonExitLookup
+public sealed class BackgroundSolution : IScalableBackground
 {
     private readonly Shared _shared;
 
@@ -120,6 +120,9 @@ public sealed class BackgroundSolution : IShapeSharedBackground, IHorizonExitLoo
             throw new ArgumentOutOfRangeException(nameof(scale), scale, "V scale must be positive and finite.");
         return new BackgroundSolution(_shared, scale);
     }
+
+    /// <inheritdoc/>
+    IScalableBackground IScalableBackground.WithVScale(double scale) => WithVScale(scale);
 
     /// <summary>
     /// Backgrounds whose end of inflation lies more than this many e-folds after the start measure N from the end of

@@ -112,6 +112,37 @@ public sealed class FieldBackgroundSolution
         return new FieldBackgroundPoint(n, Math.Sqrt(hsq), e1, e1 != 0 ? e1d / e1 : 0.0);
     }
 
+    /// <summary>
+    /// The background at N with every field-space quantity of <see cref="FieldPoint"/> (the Riemann tensor only with
+    /// <paramref name="riemann"/>), written into <paramref name="point"/>. Allocation-free.
+    /// </summary>
+    public void Evaluate(double n, FieldPoint point, bool riemann = false)
+    {
+        ArgumentNullException.ThrowIfNull(point);
+        if (point.FieldCount != FieldCount) throw new ArgumentException($"the workspace is for {point.FieldCount} fields, the background has {FieldCount}", nameof(point));
+        n = EfoldRange.Clamp(n, NStart, NStop);
+        int f = FieldCount;
+        var seg = _segments[SegmentIndex(n)];
+        var y = point.State.AsSpan(0, seg.Regular ? 2 * f + 1 : 2 * f);
+        seg.Solution.Evaluate(Math.Min(n, seg.Stop), y);
+        y[..f].CopyTo(point.Phi);
+        y.Slice(f, f).CopyTo(point.DPhi);
+        point.Complete(Theory, n, seg.Regular ? y[2 * f] : double.NaN, riemann);
+    }
+
+    /// <summary>The accepted step times of every segment, ascending and distinct (the grid of derived tables).</summary>
+    internal List<double> StepGrid()
+    {
+        var grid = new List<double>();
+        foreach (var s in _segments)
+        {
+            var times = s.Solution.StepTimes;
+            for (int j = 0; j < times.Length; j++)
+                if (grid.Count == 0 || times[j] > grid[^1]) grid.Add(times[j]);
+        }
+        return grid;
+    }
+
     /// <summary>The field values at N as a new array (convenience for tests and outputs, not for hot paths).</summary>
     public double[] FieldsAt(double n)
     {

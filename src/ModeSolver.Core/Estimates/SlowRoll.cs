@@ -75,6 +75,33 @@ public static class SlowRoll
         return new SlowRollSet(n, background.NEnd - n, Math.Exp(n) * p.H, q, PotentialForm(q, vScaled), HubbleFirstOrder(p), HubbleSecondOrder(p));
     }
 
+    /// <summary>
+    /// All three estimates for the k that leaves the horizon at N on the adiabatic view of an n-field background: the
+    /// Hubble-flow forms on the trajectory (H, epsilon_1..3 of the n-field background), and the potential form with
+    /// epsilon_V = G^IJ V_I V_J/(2 V^2) and eta_V = e_sigma^I e_sigma^J nabla_I nabla_J V / V along the trajectory (xi_V^2
+    /// not formed: its alpha_s is NaN). These are the single-field estimates of the adiabatic direction; they know
+    /// nothing of the isocurvature and its conversion after exit.
+    /// </summary>
+    public static SlowRollSet AtN(AdiabaticBackground background, double n)
+    {
+        ArgumentNullException.ThrowIfNull(background);
+        var p = background.At(n);
+        var w = new FieldPoint(background.Fields.FieldCount);
+        background.Evaluate(n, w, false);
+        int f = w.FieldCount;
+        double gg = 0, hh = 0;
+        for (int i = 0; i < f; i++)
+            for (int j = 0; j < f; j++)
+            {
+                gg += w.Inverse[i * f + j] * w.Gradient[i] * w.Gradient[j];
+                hh += w.Hessian[i * f + j] * w.DPhi[i] * w.DPhi[j];
+            }
+        double v = w.V;
+        double speed2 = 2.0 * w.Epsilon1;
+        var q = new PotentialSlowRollParameters(w.Phi[0], 0.5 * gg / (v * v), speed2 > 0 ? hh / (speed2 * v) : double.NaN, double.NaN);
+        return new SlowRollSet(n, background.NEnd - n, Math.Exp(n) * p.H, q, PotentialForm(q, background.VScale * v), HubbleFirstOrder(p), HubbleSecondOrder(p));
+    }
+
     /// <summary>All three estimates for k in background units, at its horizon exit k = aH.</summary>
     public static SlowRollSet AtK(BackgroundSolution background, double kBackground)
         => AtN(background, background.NAtHorizonExit(kBackground));

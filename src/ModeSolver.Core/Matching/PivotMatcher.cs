@@ -21,6 +21,18 @@ public static class PivotMatcher
     /// <summary>Matches and normalises; throws <see cref="PhysicsException"/> when it cannot be done.</summary>
     public static PivotSolution Match(BackgroundSolution background, PivotSettings settings, IPivotAmplitude amplitude)
     {
+        var m = MatchAny(background, settings, amplitude);
+        var final = background.WithVScale(m.VScale);
+        return PivotSolution.From(m, final, SlowRoll.AtN(final, m.NPivot));
+    }
+
+    /// <summary>
+    /// Matches and normalises any scalable background (single field, or the adiabatic view of n fields): the numbers of
+    /// the match; the caller takes the view at <see cref="PivotMatch.VScale"/>. Throws <see cref="PhysicsException"/>
+    /// when it cannot be done.
+    /// </summary>
+    public static PivotMatch MatchAny(IScalableBackground background, PivotSettings settings, IPivotAmplitude amplitude)
+    {
         ArgumentNullException.ThrowIfNull(background);
         ArgumentNullException.ThrowIfNull(settings);
         ArgumentNullException.ThrowIfNull(amplitude);
@@ -172,8 +184,8 @@ public static class PivotMatcher
 
         double lnKUnit = Math.Log(kbgStar) - lnKStar;
         var (lnKMin, lnKMax) = final.LnKRange(settings.RangeStartDepth, settings.RangeEndDepth);
-        double vStar = s * final.Theory.Potential(p.Phi).Value;
-        return new PivotSolution(
+        double vStar = final.V(nPivot);
+        return new PivotMatch(
             KPivot: settings.KPivot, NStar: nStar, NPivot: nPivot, VScale: s, LnKUnit: lnKUnit,
             HStar: p.H, HStarGeV: p.H * Constants.ReducedPlanckMassGeV, PhiStar: p.Phi,
             VStarQuarterGeV: Math.Pow(vStar, 0.25) * Constants.ReducedPlanckMassGeV,
@@ -181,8 +193,7 @@ public static class PivotMatcher
             W: fromReheating ? reh.W : double.NaN, RhoEnd: rhoEnd,
             KMinMpc: Math.Exp(lnKMin - lnKUnit), KMaxMpc: Math.Exp(lnKMax - lnKUnit),
             Iterations: iterations, AmplitudeName: settings.ScalarAmplitude is null ? "none" : amplitude.Name,
-            PsPivot: settings.ScalarAmplitude is null ? double.NaN : psPivot,
-            Background: final, PivotSlowRoll: SlowRoll.AtN(final, nPivot));
+            PsPivot: settings.ScalarAmplitude is null ? double.NaN : psPivot);
     }
 
     /// <summary>Temperature (GeV) of radiation with energy density rho (M_pl^4) and g relativistic degrees of freedom.</summary>
@@ -223,7 +234,7 @@ public static class PivotMatcher
         return (0.0, TemperatureGeV(rhoEnd, s.GReh));
     }
 
-    private static void ValidateTemperature(ReheatingHistory reh, double tReh, double rhoEnd, PivotSettings s, double nEnd, BackgroundSolution bg)
+    private static void ValidateTemperature(ReheatingHistory reh, double tReh, double rhoEnd, PivotSettings s, double nEnd, IScalableBackground bg)
     {
         double tEnd = TemperatureGeV(rhoEnd, s.GReh);
         if (tReh > tEnd * (1 + 1e-12))

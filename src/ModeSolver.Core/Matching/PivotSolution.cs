@@ -34,6 +34,36 @@ public sealed record PivotSolution(
     double KMinMpc, double KMaxMpc, int Iterations, string AmplitudeName, double PsPivot,
     BackgroundSolution Background, SlowRollSet PivotSlowRoll)
 {
+    /// <summary>The solution of a match on <paramref name="background"/> (the view at the matched scale).</summary>
+    public static PivotSolution From(PivotMatch m, BackgroundSolution background, SlowRollSet slowRoll)
+    {
+        ArgumentNullException.ThrowIfNull(m);
+        return new PivotSolution(m.KPivot, m.NStar, m.NPivot, m.VScale, m.LnKUnit, m.HStar, m.HStarGeV, m.PhiStar, m.VStarQuarterGeV,
+            m.NTotal, m.NReh, m.TRehGeV, m.W, m.RhoEnd, m.KMinMpc, m.KMaxMpc, m.Iterations, m.AmplitudeName, m.PsPivot, background, slowRoll);
+    }
+
+    /// <summary>Converts k from 1/Mpc to background units.</summary>
+    public double ToBackgroundUnits(double kMpc) => kMpc * Math.Exp(LnKUnit);
+
+    /// <summary>Converts k from background units to 1/Mpc.</summary>
+    public double ToInverseMpc(double kBackground) => kBackground * Math.Exp(-LnKUnit);
+
+    /// <summary>The numbers of the match without the background.</summary>
+    public PivotMatch Numbers => new(KPivot, NStar, NPivot, VScale, LnKUnit, HStar, HStarGeV, PhiStar, VStarQuarterGeV,
+        NTotal, NReh, TRehGeV, W, RhoEnd, KMinMpc, KMaxMpc, Iterations, AmplitudeName, PsPivot);
+}
+
+/// <summary>
+/// The numbers of a pivot match without the background (<see cref="PivotMatcher.MatchAny"/>); the parameters are those
+/// of <see cref="PivotSolution"/> of the same names. <see cref="PhiStar"/> is the background point's field value (the
+/// first field for n fields).
+/// </summary>
+public sealed record PivotMatch(
+    double KPivot, double NStar, double NPivot, double VScale, double LnKUnit,
+    double HStar, double HStarGeV, double PhiStar, double VStarQuarterGeV,
+    double NTotal, double NReh, double TRehGeV, double W, double RhoEnd,
+    double KMinMpc, double KMaxMpc, int Iterations, string AmplitudeName, double PsPivot)
+{
     /// <summary>Converts k from 1/Mpc to background units.</summary>
     public double ToBackgroundUnits(double kMpc) => kMpc * Math.Exp(LnKUnit);
 

@@ -56,6 +56,20 @@ internal sealed class ModeDriver
     /// <summary>The carried state at the end of the last integration.</summary>
     public ReadOnlySpan<double> State => _y.AsSpan(0, _ctx.Layout.Dimension);
 
+    /// <summary>
+    /// N at which <see cref="Solve"/> keeps a copy of the carried state (<see cref="Snapshot"/>) on the way (NaN: none).
+    /// The integration restarts there, so a run with a snapshot is not bit-identical to one without.
+    /// </summary>
+    public double SnapshotN { get; set; } = double.NaN;
+
+    /// <summary>True when the last <see cref="Solve"/> reached <see cref="SnapshotN"/> before it froze.</summary>
+    public bool SnapshotTaken { get; private set; }
+
+    private double[] _snapshot = [];
+
+    /// <summary>The carried state at <see cref="SnapshotN"/> of the last <see cref="Solve"/> (valid when <see cref="SnapshotTaken"/>).</summary>
+    public ReadOnlySpan<double> Snapshot => _snapshot;
+
     /// <summary>ln of the amplitude reference of the carried state.</summary>
     public double LnRef => _data.LnRef;
 
@@ -108,7 +122,19 @@ internal sealed class ModeDriver
             Observer = _observer,
         };
         double n = DeepRegime(n0, options.RelativeTolerance, settings.MaxSteps);
-        n = Segments(n, nEnd, options, k);
+        SnapshotTaken = false;
+        if (SnapshotN > n && SnapshotN < nEnd)
+        {
+            // Integrate to the snapshot and on from it (a restart there; no system sees it).
+            n = Segments(n, SnapshotN, options, k);
+            if (!_freeze.Frozen)
+            {
+                _snapshot = _y.AsSpan(0, _ctx.Layout.Dimension).ToArray();
+                SnapshotTaken = true;
+                n = Segments(n, nEnd, options, k);
+            }
+        }
+        else n = Segments(n, nEnd, options, k);
         bool frozen = _freeze.Frozen;
         if (frozen) _freeze.Apply(_y.AsSpan(0, _ctx.Layout.Dimension), _k1);
         double xf = Math.Exp(_ctx.LnK - n) / background.At(n).H;

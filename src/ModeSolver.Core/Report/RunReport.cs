@@ -42,6 +42,9 @@ public sealed record RunReport(
     /// <summary>T_reh, rho_end^(1/4) and r at 0.002 /Mpc; null when the producer did not derive them.</summary>
     public DerivedQuantities? Derived { get; init; }
 
+    /// <summary>The isocurvature of an n-field run (P_S, C_RS, cos Delta, beta_iso, T_RS at the pivot and per k); null for one field.</summary>
+    public IsocurvatureResults? Isocurvature { get; init; }
+
     /// <summary>Distance to the data, peak summary, induced GWs and black holes; null when the run computed none.</summary>
     public Observables.ObservablesReport? Observables { get; init; }
 

@@ -13,8 +13,20 @@ namespace ModeSolver.Runs;
 /// </summary>
 public sealed record RunRequest
 {
-    /// <summary>Initial field value (ignored when <see cref="StartEfolds"/> is given, except as the guess of that solve).</summary>
-    public required double Phi0 { get; init; }
+    /// <summary>
+    /// Initial field value of a single-field run (ignored when <see cref="StartEfolds"/> is given, except as the guess of
+    /// that solve); NaN by default, so an n-field run gives <see cref="Fields0"/> instead.
+    /// </summary>
+    public double Phi0 { get; init; } = double.NaN;
+
+    /// <summary>Initial values of the n fields in field order (n-field runs; one value stands for <see cref="Phi0"/>).</summary>
+    public IReadOnlyList<double>? Fields0 { get; init; }
+
+    /// <summary>Initial d phi^I/dN in field order; null starts on the slow-roll attractor direction -G^IJ V_J / V.</summary>
+    public IReadOnlyList<double>? Velocity0 { get; init; }
+
+    /// <summary>The surface g(phi) = 0 where inflation is taken to end; null takes the last epsilon_1 = 1 crossing (or <see cref="PhiEnd"/>).</summary>
+    public Models.FieldSurface? EndSurface { get; init; }
 
     /// <summary>Initial d phi/dN; null starts on the slow-roll attractor.</summary>
     public double? DPhi0 { get; init; }

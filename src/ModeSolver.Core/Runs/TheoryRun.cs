@@ -28,7 +28,7 @@ public sealed record PivotStage(PivotSolution Pivot, PivotValues Exact, SlowRoll
 /// normalisation with the exact amplitude -> modes across k -> slow-roll comparison and flags -> observables. No
 /// files are written here (the IO side's writers take the report).
 /// </summary>
-public static class TheoryRun
+public static partial class TheoryRun
 {
     /// <summary>Depth k/aH at which the pivot matching measures the served k range (the mode solver's own start is shallower).</summary>
     private const double RangeStartDepth = 20;
@@ -88,7 +88,11 @@ public static class TheoryRun
     public static BackgroundSettings BackgroundSettingsFor(RunRequest request)
     {
         ArgumentNullException.ThrowIfNull(request);
-        return new BackgroundSettings { Phi0 = request.Phi0, DPhi0 = request.DPhi0, PhiEnd = request.PhiEnd };
+        return new BackgroundSettings
+        {
+            Phi0 = request.Phi0, DPhi0 = request.DPhi0, PhiEnd = request.PhiEnd,
+            Fields0 = request.Fields0, Velocity0 = request.Velocity0, EndSurface = request.EndSurface,
+        };
     }
 
     /// <summary>The pivot-matching settings of a request.</summary>
@@ -294,10 +298,13 @@ public static class TheoryRun
         string F(double x) => x.ToString("R", inv);
         var e = ImmutableArray.CreateBuilder<Setting>();
         void Add(string key, double? value) { if (value is { } v) e.Add(new Setting(key, F(v), double.IsFinite(v))); }
-        Add("start.phi0", r.Phi0);
+        string List(IReadOnlyList<double> v) => "[" + string.Join(", ", v.Select(F)) + "]";
+        if (r.Fields0 is { } f0) e.Add(new Setting("start.phi0", List(f0))); else Add("start.phi0", r.Phi0);
         Add("start.efolds", r.StartEfolds);
-        if (r.DPhi0 is null) e.Add(new Setting("start.dphi0", "attractor")); else Add("start.dphi0", r.DPhi0);
+        if (r.Velocity0 is { } u0) e.Add(new Setting("start.dphi0", List(u0)));
+        else if (r.DPhi0 is null) e.Add(new Setting("start.dphi0", "attractor")); else Add("start.dphi0", r.DPhi0);
         Add("model.phi_end", r.PhiEnd);
+        if (r.EndSurface is { } end) e.Add(new Setting("model.end", end.Name));
         Add("pivot.k", r.KPivot);
         Add("pivot.efolds", r.PivotEfolds);
         if (r.PivotEfolds is null)
@@ -336,6 +343,9 @@ public static class TheoryRun
     private static ImmutableArray<double> Imm(double[] a) => ImmutableArray.Create(a);
 
     private static BackgroundSamples SampleBackground(BackgroundSolution bg, PivotSolution pivot, KWindow kr, int count)
+        => SampleBackground(bg, pivot.NPivot, pivot.LnKUnit, bg.ContinuationStop, kr, count);
+
+    private static BackgroundSamples SampleBackground(IScalableBackground bg, double nPivot, double lnKUnit, string? continuationStop, KWindow kr, int count)
     {
         count = Math.Max(count, 16);
         var n = new double[count]; var phi = new double[count]; var dphi = new double[count]; var h = new double[count];
@@ -347,11 +357,12 @@ public static class TheoryRun
             var p = bg.At(x);
             n[i] = x - a; phi[i] = p.Phi; dphi[i] = p.DPhi; h[i] = p.H; e1[i] = p.Epsilon1; e2[i] = p.Epsilon2; e3[i] = p.Epsilon3;
         }
-        double windowStart = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMin), out double w0) ? w0 : bg.NStart;
-        double windowEnd = bg.TryNAtHorizonExit(pivot.ToBackgroundUnits(kr.KMax), out double w1) ? w1 : bg.NEnd;
+        double unit = Math.Exp(lnKUnit);
+        double windowStart = bg.TryNAtHorizonExit(kr.KMin * unit, out double w0) ? w0 : bg.NStart;
+        double windowEnd = bg.TryNAtHorizonExit(kr.KMax * unit, out double w1) ? w1 : bg.NEnd;
         // Recorded in e-folds since the start whatever the background's internal origin (long backgrounds count from the end).
-        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd - a, pivot.NPivot - a,
-            windowStart - a, windowEnd - a, [.. bg.EndCrossings.Select(c => c - a)], bg.ContinuationStop);
+        return new BackgroundSamples(Imm(n), Imm(phi), Imm(dphi), Imm(h), Imm(e1), Imm(e2), Imm(e3), bg.NEnd - a, nPivot - a,
+            windowStart - a, windowEnd - a, [.. bg.EndCrossings.Select(c => c - a)], continuationStop);
     }
 
     /// <summary>
@@ -390,13 +401,16 @@ public static class TheoryRun
     }
 
     private static PrimordialTable Table(PrimordialSpectrum spectrum, PivotSolution pivot, KWindow kr, int perDecade)
+        => Table(spectrum, pivot.LnKUnit, kr, perDecade);
+
+    private static PrimordialTable Table(PrimordialSpectrum spectrum, double lnKUnit, KWindow kr, int perDecade)
     {
         var grid = WavenumberGrid.LogSpaced(kr.KMin, kr.KMax, perDecade);
         var ps = new double[grid.Length];
         var pt = new double[grid.Length];
         for (int i = 0; i < grid.Length; i++)
         {
-            double kb = pivot.ToBackgroundUnits(grid[i]);
+            double kb = grid[i] * Math.Exp(lnKUnit);
             kb = Math.Clamp(kb, spectrum.K[0], spectrum.K[^1]);
             ps[i] = spectrum.InterpolatePs(kb);
             pt[i] = spectrum.InterpolatePt(kb);

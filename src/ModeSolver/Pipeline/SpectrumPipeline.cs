@@ -37,7 +37,7 @@ public sealed record PipelineOptions
 }
 
 /// <summary>The pivot-only result of a deck run: the Core pivot stages and the settings as run.</summary>
-/// <param name="Stage">The Core result (<see cref="TheoryRun.RunPivot"/>): matching, exact pivot values, slow roll.</param>
+/// <param name="Stage">The Core result (<see cref="TheoryRun.RunPivot(ModeSolver.Models.IInflatonTheory, RunRequest)"/>): matching, exact pivot values, slow roll.</param>
 /// <param name="Theory">The theory built from the settings.</param>
 public sealed record PivotRun(PivotStage Stage, IValidatedTheory Theory)
 {
