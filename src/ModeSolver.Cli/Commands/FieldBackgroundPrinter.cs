@@ -9,7 +9,8 @@ namespace ModeSolver.Cli.Commands;
 
 /// <summary>
 /// `modesolver background` for a several-field model: N_total, the end of inflation (epsilon_1 = 1 or the end surface)
-/// with the field values there, one line per epsilon_1 = 1 crossing, the start and the field-space curvature.
+/// with the field values there, one line per epsilon_1 = 1 crossing, the start and the field-space curvature; then the
+/// pivot matching, normalisation and the exact pivot values with the isocurvature (Core's n-field RunPivot).
 /// </summary>
 public static class FieldBackgroundPrinter
 {
@@ -51,9 +52,36 @@ public static class FieldBackgroundPrinter
         }
         if (bg.NonSmoothTimes.Count > 0)
             Line("non-smooth surfaces", string.Join(", ", bg.NonSmoothTimes.Select(t => "N = " + t.ToString("F4", Inv))));
-        output.WriteLine("  note: pivot matching, normalisation and spectra of several fields are not available here yet (background only)");
         if (bg.ContinuationStop is string stop) output.WriteLine("  note: " + TextSafety.Printable(stop));
         if (bg.ContinuationNote is string stopped) error.WriteLine("modesolver: warning: " + TextSafety.Printable(stopped));
+        PrintPivot(settings, output, error, progress, Fields);
         return 0;
+    }
+
+    // The pivot matching, normalisation and the exact pivot values with the isocurvature (TheoryRun.RunPivot of n fields).
+    private static void PrintPivot(RunSettings settings, TextWriter output, TextWriter error, bool progress, Func<double[], string> fields)
+    {
+        var options = new PipelineOptions { Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null };
+        var stage = FieldPipeline.RunPivot(settings, options);
+        var m = stage.Match;
+        void Line(string name, string value) => output.WriteLine(string.Format(Inv, "  {0,-26} {1}", name, value));
+        Line("k_pivot [1/Mpc]", m.KPivot.ToString("G6", Inv));
+        Line("N_*", string.Format(Inv, "{0:F6}{1}", m.NStar, settings.Pivot.Efolds is null ? string.Format(Inv, "  (from reheating: N_reh = {0:F3})", m.NReh) : "  (given)"));
+        if (stage.Background is { } view) Line("fields at the pivot", fields(view.Fields.FieldsAt(m.NPivot + view.Origin)));
+        Line("H_* [M_pl] / [GeV]", string.Format(Inv, "{0:G6} / {1:G6}", m.HStar, m.HStarGeV));
+        Line("V_*^(1/4) [GeV]", m.VStarQuarterGeV.ToString("G6", Inv));
+        Line("V scale", string.Format(Inv, "{0:G8}  (amplitude from {1}, {2} iterations)", m.VScale, m.AmplitudeName, m.Iterations));
+        Line("k served [1/Mpc]", string.Format(Inv, "[{0:G4}, {1:G4}]", m.KMinMpc, m.KMaxMpc));
+        output.WriteLine();
+        output.WriteLine(string.Format(Inv, "  {0,-22} {1,14} {2,14} {3,14} {4,14} {5,14}", "", "A_s", "n_s", "r", "alpha_s", "n_t"));
+        var e = stage.Exact;
+        output.WriteLine(string.Format(Inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "exact (n-field modes)", e.Ps, e.Ns, e.R, e.AlphaS, e.Nt));
+        foreach (var sr in new[] { stage.SlowRoll.SecondOrder, stage.SlowRoll.FirstOrder })
+            output.WriteLine(string.Format(Inv, "  {0,-22} {1,14:G7} {2,14:F7} {3,14:G6} {4,14:G5} {5,14:G6}", "slow roll, " + sr.Order, sr.Ps, sr.Ns, sr.R, sr.AlphaS, sr.Nt));
+        if (stage.Isocurvature is { } iso)
+        {
+            output.WriteLine();
+            Line("isocurvature at the pivot", string.Format(Inv, "P_S = {0:G6}, cos Delta = {1:G6}, beta_iso = {2:G6}, T_RS = {3:G6}", iso.Ps, iso.CosDelta, iso.BetaIso, iso.Trs));
+        }
     }
 }

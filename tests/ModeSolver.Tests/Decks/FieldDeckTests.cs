@@ -20,8 +20,8 @@ public class FieldDeckTests
         mu = 4.5e-6
         b = 0.15
         [start]
-        phi0 = [15.0, 2.0]
-        dphi0 = [-0.13, 0.0]
+        phi0 = [17.0, 2.0]
+        dphi0 = [-0.12, 0.0]
         """;
 
     [Fact]
@@ -32,12 +32,12 @@ public class FieldDeckTests
         Assert.Equal(["phi", "chi"], s.Model.Fields!);
         Assert.Equal("exp(2 * b * phi)", s.Model.Metric![1][1]);
         Assert.Equal("chi - 1.2", s.Model.End);
-        Assert.Equal([15.0, 2.0], s.Initial.Fields0!);
-        Assert.Equal([-0.13, 0.0], s.Initial.Velocity0!);
+        Assert.Equal([17.0, 2.0], s.Initial.Fields0!);
+        Assert.Equal([-0.12, 0.0], s.Initial.Velocity0!);
         var report = SettingsSchema.ReportEntries(s).ToDictionary(e => e.Key, e => e.Value);
         Assert.Equal("phi,chi", report["model.fields"]);
         Assert.Equal("1, 0; 0, exp(2 * b * phi)", report["model.metric"]);
-        Assert.Equal("15,2", report["start.phi0"]);
+        Assert.Equal("17,2", report["start.phi0"]);
     }
 
     [Fact]
@@ -52,8 +52,8 @@ public class FieldDeckTests
         input = RunInputKeys.WithNumber(input, "model.parameters.m", 6e-6);
         input = RunInputKeys.WithNumber(input, "model.parameters.mu", 4.5e-6);
         input = RunInputKeys.WithNumber(input, "model.parameters.b", 0.15);
-        input = RunInputKeys.WithText(input, "start.phi0", "15, 2");
-        input = RunInputKeys.WithText(input, "start.dphi0", "-0.13,0");
+        input = RunInputKeys.WithText(input, "start.phi0", "17, 2");
+        input = RunInputKeys.WithText(input, "start.dphi0", "-0.12,0");
         var a = SettingsResolver.Resolve(input);
         var b = SettingsResolver.Resolve(DeckReader.Parse(Deck, "fields.toml"));
         Assert.Equal(b.Model.Describe(), a.Model.Describe());
@@ -73,7 +73,7 @@ public class FieldDeckTests
             var fromDeck = CliRunner.Run("background", path, "--quiet");
             var fromOptions = CliRunner.Run("background", "--quiet", "--fields", "phi,chi", "--potential", "m^2 * phi^2 / 2 + mu^2 * chi^2 / 2",
                 "--metric", "1, 0; 0, exp(2 * b * phi)", "--end", "chi - 1.2", "--param", "m=6e-6", "--param", "mu=4.5e-6", "--param", "b=0.15",
-                "--phi0", "15,2", "--dphi0=-0.13,0");
+                "--phi0", "17,2", "--dphi0=-0.12,0");
             Assert.True(fromDeck.Code == 0, fromDeck.Err);
             Assert.Equal(fromDeck.Out, fromOptions.Out);
             Assert.Contains("on the end surface chi - 1.2 = 0", fromDeck.Out, StringComparison.Ordinal);
@@ -127,11 +127,26 @@ public class FieldDeckTests
     }
 
     [Fact]
-    public void SpectrumOfSeveralFields_IsRefusedInOneLine()
+    public void OneFieldPivotRecord_RefusesSeveralFieldsInOneLine()
     {
         var s = SettingsResolver.Resolve(DeckReader.Parse(Deck, "fields.toml"));
         var e = Assert.Throws<DeckException>(() => SpectrumPipeline.RunPivot(s));
-        Assert.Contains("fields.toml: the pivot matching and the spectrum of a model of 2 fields (phi, chi) is not available yet", e.Message, StringComparison.Ordinal);
+        Assert.Contains("fields.toml: the one-field pivot record (PivotRun) of a model of 2 fields (phi, chi) is not available", e.Message, StringComparison.Ordinal);
         Assert.DoesNotContain('\n', e.Message);
+    }
+
+    [Fact]
+    public void DemoDeck_RunsTheSpectrumEndToEnd()
+    {
+        // The several-field deck through the deck adapter and Core's n-field run: normalised to the requested A_s,
+        // with the isocurvature in the report and the deck's settings list.
+        string demo = DeckTests.RepoFile("runs/two-field-demo.toml");
+        var s = SettingsResolver.Load(demo, RunInputKeys.WithNumber(new RunInput(), "modes.count", 5));
+        var report = SpectrumPipeline.Run(s);
+        Assert.True(Math.Abs(report.Pivot.As / 2.099e-9 - 1) < 1e-4, $"A_s = {report.Pivot.As}");
+        Assert.NotNull(report.Isocurvature);
+        Assert.Equal(2, report.Isocurvature!.FieldCount);
+        Assert.Contains(report.Settings.Entries, e => e.Key == "model.fields" && e.Value == "phi,chi");
+        Assert.Equal("[1, 0; 0, exp(2 * b * phi)]", report.Model.Kinetic);
     }
 }
