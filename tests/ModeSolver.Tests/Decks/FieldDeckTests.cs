@@ -149,4 +149,25 @@ public class FieldDeckTests
         Assert.Contains(report.Settings.Entries, e => e.Key == "model.fields" && e.Value == "phi,chi");
         Assert.Equal("[1, 0; 0, exp(2 * b * phi)]", report.Model.Kinetic);
     }
+
+    [Fact]
+    public void SweepOverASeveralFieldParameter_RunsEveryPoint()
+    {
+        string dir = CliRunner.TempDir("field-sweep");
+        Directory.CreateDirectory(dir);
+        try
+        {
+            string deck = Path.Combine(dir, "sweep.toml");
+            File.WriteAllText(deck, "[model]\ncatalogue = \"double-quadratic\"\n[pivot]\nefolds = 55\n[sweep]\n[[sweep.axis]]\nkey = \"param.R\"\nvalues = [1.0, 3.0]\n");
+            var (code, _, err) = CliRunner.Run("sweep", deck, "--out", Path.Combine(dir, "out"), "--quiet");
+            Assert.True(code == 0, err);
+            var rows = File.ReadAllLines(Path.Combine(dir, "out", "points.csv"));
+            Assert.Equal(3, rows.Length);
+            Assert.All(rows.Skip(1), r => Assert.Contains(",ok,", r, StringComparison.Ordinal));
+        }
+        finally
+        {
+            Directory.Delete(dir, true);
+        }
+    }
 }
