@@ -16,8 +16,9 @@ namespace ModeSolver.Models;
 /// </summary>
 /// <remarks>
 /// Non-smooth surfaces are the zero sets of the formulas' switching arguments (abs, step, min, max, piecewise conditions;
-/// <see cref="SwitchingArguments"/>); a Jordan-frame theory has the boundary Omega^2 = 0 (valid where Omega^2 &gt; 0). Where
-/// the metric is not positive definite the background stops with the field values (see <see cref="Background"/>'s solver).
+/// <see cref="SwitchingArguments"/>); a Jordan-frame theory has the boundary Omega^2 = 0 (valid where Omega^2 &gt; 0), and a
+/// metric that depends on the fields the boundary where it stops being positive definite (<see cref="SmallestMetricPivot"/>
+/// falling through zero): the background stops there and names the field values.
 /// With one field the theory equals <see cref="EinsteinFrameTheory"/> (G = K) or <see cref="JordanFrameTheory"/> to round-off.
 /// Evaluations allocate nothing (stack or pooled work arrays) and are thread-safe.
 /// </remarks>
@@ -47,7 +48,31 @@ public sealed partial class FormulaFieldTheory : IFieldTheory
         _inducedScale = omega2 is not null && !palatini ? 1.5 : 0.0;
         Description = description;
         _nonSmooth = SwitchSurfaces(names, texts, parameters);
-        _boundaries = omega2 is null ? [] : [FieldSurface.FromFunction("Omega^2 = 0", phi => omega2.Value(phi[.._n]), SurfaceCrossing.Falling)];
+        var boundaries = new List<FieldSurface>(2);
+        if (omega2 is not null) boundaries.Add(FieldSurface.FromFunction("Omega^2 = 0", phi => omega2.Value(phi[.._n]), SurfaceCrossing.Falling));
+        // A metric that depends on the fields may stop being positive definite: the smallest pivot of its Cholesky
+        // factorisation falls through zero there (the valid side is pivot > 0).
+        if (!metric.IsConstant)
+            boundaries.Add(FieldSurface.FromFunction("G_IJ not positive definite: smallest Cholesky pivot = 0", SmallestMetricPivot, SurfaceCrossing.Falling));
+        _boundaries = [.. boundaries];
+    }
+
+    /// <summary>The smallest pivot of the Cholesky factorisation of G_IJ at <paramref name="phi"/>: positive exactly where G is positive definite.</summary>
+    public double SmallestMetricPivot(ReadOnlySpan<double> phi)
+    {
+        int n2 = _n * _n, length = 2 * n2;
+        double[]? rented = null;
+        Span<double> work = length <= StackDoubles ? stackalloc double[length] : (rented = ArrayPool<double>.Shared.Rent(length)).AsSpan(0, length);
+        try
+        {
+            var g = work[..n2];
+            Metric(phi, g);
+            return FieldGeometry.SmallestPivot(g, _n, work[n2..]);
+        }
+        finally
+        {
+            if (rented is not null) ArrayPool<double>.Shared.Return(rented);
+        }
     }
 
     /// <summary>An Einstein-frame theory: V(phi^I) and G_IJ(phi^K) as formulas in <paramref name="fields"/>.</summary>

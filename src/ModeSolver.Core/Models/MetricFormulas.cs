@@ -23,7 +23,11 @@ internal sealed class MetricFormulas
             for (int j = 0; j < n; j++)
                 if (formula[i * n + j] is not null || constant[i * n + j] != (i == j ? 1.0 : 0.0)) identity = false;
         IsIdentity = identity;
+        IsConstant = Array.TrueForAll(formula, f => f is null);
     }
+
+    /// <summary>True when no entry depends on the fields.</summary>
+    public bool IsConstant { get; }
 
     /// <summary>True when every entry is the constant of the identity matrix.</summary>
     public bool IsIdentity { get; }

@@ -126,8 +126,8 @@ public class FormulaFieldTheoryTests
         var gm = new double[4];
         t.Metric(x, gm);
         Close(1 / w + (palatini ? 0 : 1.5 * wphi * wphi / (w * w)), gm[0], 1e-14, "G_phiphi");
-        Assert.Single(t.Boundaries);
-        Assert.True(t.Boundaries[0].IsInside(x));
+        Assert.Equal(["Omega^2 = 0", "G_IJ not positive definite: smallest Cholesky pivot = 0"], t.Boundaries.Select(b => b.Name));
+        Assert.All(t.Boundaries, b => Assert.True(b.IsInside(x)));
     }
 
     [Fact]
@@ -194,6 +194,20 @@ public class FormulaFieldTheoryTests
         Measure(50); // warm-up (JIT, pool)
         long few = Measure(10), many = Measure(1010);
         Assert.True(many - few < 1000, $"allocation grew by {many - few} bytes over 1000 extra calls");
+    }
+
+    [Fact]
+    public void MetricNotPositiveDefiniteAlongTheRun_NamesTheFieldValuesAndN()
+    {
+        // G_chichi = chi - 1/2 vanishes as chi rolls down from 3: the run stops there in one line with the place.
+        var t = FormulaFieldTheory.Einstein(PhiChi, "m^2*phi^2/2 + m^2*chi^2", [["1", "0"], ["0", "chi - 0.5"]], new Dictionary<string, double> { ["m"] = 1e-5 });
+        Assert.Single(t.Boundaries);
+        Assert.True(t.SmallestMetricPivot(new[] { 15.0, 3.0 }) > 0);
+        Assert.True(t.SmallestMetricPivot(new[] { 15.0, 0.4 }) < 0);
+        var e = Assert.Throws<PhysicsException>(() => FieldBackgroundSolver.Solve(t, new BackgroundSettings { Fields0 = [15.0, 3.0] }));
+        Assert.Matches(@"not positive definite at \(phi, chi\) = \([0-9.]+, 0\.49999", e.Message);
+        Assert.Contains("N = ", e.Message, StringComparison.Ordinal);
+        Assert.DoesNotContain('\n', e.Message);
     }
 
     [Fact]
