@@ -170,4 +170,13 @@ public class FieldDeckTests
             Directory.Delete(dir, true);
         }
     }
+
+    [Fact]
+    public void Check_PrintsTheStartPerFieldAndTheBoundaries()
+    {
+        var (code, output, err) = CliRunner.Run("background", "--check", "--model", "two-field-nonminimal");
+        Assert.True(code == 0, err);
+        Assert.Contains("Start at (phi, chi) = (0.33, 0.001) on the slow-roll attractor direction.", output, StringComparison.Ordinal);
+        Assert.Contains("The valid region is bounded by: Omega^2 = 0.", output, StringComparison.Ordinal);
+    }
 }
