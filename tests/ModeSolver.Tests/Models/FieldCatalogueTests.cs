@@ -64,6 +64,23 @@ public class FieldCatalogueTests
     }
 
     [Theory]
+    [InlineData(1.0, 0.0)]
+    [InlineData(1.0 / 3.0, 0.3)]
+    public void Disk_WithoutAngularForce_IsTheSingleFieldTModel(double alpha, double a)
+    {
+        // On the disk the radial direction is a geodesic (G_phiphi = 1, Gamma^phi_phiphi = 0): with no angular force
+        // (A = 0, or theta at the maximum of cos theta) theta stays put and phi is the single-field T-model
+        // (Kallosh, Linde & Roest 2013 potential; its one-field reduction, Achucarro et al. 2018).
+        var disk = Resolve($"[model]\ncatalogue = \"disk-alpha\"\n[model.parameters]\nalpha = {alpha:R}\nA = {a:R}\n[start]\nphi0 = [6.0, 0.0]\n");
+        var one = Resolve($"[model]\ncatalogue = \"t-model\"\n[model.parameters]\nalpha = {alpha:R}\n[start]\nphi0 = 6.0\n");
+        var field = FieldPipeline.RunBackground(disk).Background;
+        var single = SpectrumPipeline.SolveBackground(TheoryFactory.Build(one), one);
+        double nSingle = single.NEnd - single.NStart;
+        Assert.True(Math.Abs(field.NTotal - nSingle) <= 1e-8 * nSingle, $"N_total: disk {field.NTotal:R}, T-model {nSingle:R}");
+        Assert.Equal(0.0, field.FieldsAt(field.NEnd)[1]);
+    }
+
+    [Theory]
     [InlineData(2)]
     [InlineData(5)]
     public void EqualMasses_AreTheSingleFieldQuadraticInTheRadius(int n)
