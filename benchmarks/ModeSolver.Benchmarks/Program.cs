@@ -11,7 +11,26 @@ using ModeSolver.Pipeline;
 // `--frames [ROUNDS]`: background right-hand side, Jordan frame (fused, Taylor path) against the Einstein-frame equivalent.
 // `--resonant-depths DECK [f]`: RHS work per mode against the start depth on a resonant deck, with and without the propagator.
 // `--error-honesty [CASE] [--all]`: per-k error estimate against a 1000x tighter re-solve on the hard models (docs/modes.md).
+// `--interpreter-times [ROUNDS]`: Stopwatch ns per evaluation of the one-variable interpreter and generated code (also builds native).
+// `--multi-times [ROUNDS]`: the same for two-field MultiFormulas (value, orders 2 and 3).
+// `--counts`: the deterministic work counts of ModeBenchmarks (right-hand sides of the quadratic pivot mode at 1e-6,
+// and per mode of its 200-mode spectrum), without timing.
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
+if (args.Length >= 1 && args[0] == "--interpreter-times")
+{
+    ModeSolver.Benchmarks.Formulas.InterpreterTimes.Run(args.Length >= 2 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 15);
+    return;
+}
+if (args.Length >= 1 && args[0] == "--multi-times")
+{
+    ModeSolver.Benchmarks.Formulas.MultiFormulaTimes.Run(args.Length >= 2 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 15);
+    return;
+}
+if (args.Length >= 1 && args[0] == "--counts")
+{
+    new ModeSolver.Benchmarks.Perturbations.ModeBenchmarks().Setup();
+    return;
+}
 if (args.Length >= 2 && args[0] == "--resonant-depths")
 {
     ModeSolver.Benchmarks.Perturbations.ResonantDepthWork.Run(args);

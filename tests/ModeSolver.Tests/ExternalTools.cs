@@ -30,14 +30,14 @@ internal static class ExternalTools
         return o;
     }
 
-    /// <summary>The numbers of an h5dump DATA block (index prefixes like "(3):" removed).</summary>
+    /// <summary>The numbers of an h5dump DATA block in storage order (index prefixes like "(3):" or "(3,1):" removed).</summary>
     public static double[] H5DumpDataValues(string dump)
     {
         int at = dump.IndexOf("DATA {", StringComparison.Ordinal);
         Assert.True(at >= 0, "no DATA block in h5dump output");
         string body = dump[(at + 6)..];
         body = body[..body.IndexOf('}')];
-        body = Regex.Replace(body, @"\(\d+\):", " ");
+        body = Regex.Replace(body, @"\(\d+(,\d+)*\):", " "); // "(3):", or "(3,1):" in a 2-D dataset
         return body.Split([',', ' ', '\n', '\t', '\r'], StringSplitOptions.RemoveEmptyEntries)
             .Select(t => double.Parse(t, CultureInfo.InvariantCulture)).ToArray();
     }

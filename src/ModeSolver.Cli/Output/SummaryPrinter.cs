@@ -86,6 +86,7 @@ public static class SummaryPrinter
         info.AddRow("RHS evals / mode", Num(p.RhsEvaluationsPerMode, "0"), "");
         console.Write(info);
         ObservablesPrinter.Print(console, plain, report.Observables);
+        MultiFieldPrinter.Print(console, plain, report);
 
         // Flags and warnings: one line each. Plain output bypasses Spectre's wrapping so a line is never split.
         if (report.Flags.IsDefaultOrEmpty)

@@ -1,5 +1,3 @@
-using ModeSolver.Physics;
-
 namespace ModeSolver.Background;
 
 /// <summary>
@@ -22,11 +20,9 @@ public sealed class AdiabaticBackground : IScalableBackground
         public required double Origin { get; init; }
         public required double[] EndCrossings { get; init; }
         public required double[] NonSmooth { get; init; }
-        public required double[] GridN { get; init; }
-        public required int GridEndIndex { get; init; }
-        public required double[] SuffixMinLnAH { get; init; }
         public required ThreadLocal<FieldPoint> Workspace { get; init; }
-        public object? ShapeTable;
+        public HorizonExitTable Exits { get; set; } = null!;
+        public ShapeSlot Slot { get; } = new();
     }
 
     private readonly Shared _shared;
@@ -59,12 +55,10 @@ public sealed class AdiabaticBackground : IScalableBackground
         {
             Fields = fields, Origin = origin,
             EndCrossings = Shift(fields.EndCrossings, origin), NonSmooth = Shift(fields.NonSmoothTimes, origin),
-            GridN = gridN, GridEndIndex = endIndex, SuffixMinLnAH = new double[endIndex + 1],
             Workspace = new ThreadLocal<FieldPoint>(() => new FieldPoint(f)),
         };
         var bg = new AdiabaticBackground(shared, 1.0);
-        for (int i = 0; i <= endIndex; i++) shared.SuffixMinLnAH[i] = gridN[i] + Math.Log(bg.At(gridN[i]).H);
-        for (int i = endIndex - 1; i >= 0; i--) shared.SuffixMinLnAH[i] = Math.Min(shared.SuffixMinLnAH[i], shared.SuffixMinLnAH[i + 1]);
+        shared.Exits = new HorizonExitTable(bg, gridN, endIndex);
         return bg;
     }
 
@@ -114,18 +108,7 @@ public sealed class AdiabaticBackground : IScalableBackground
     IScalableBackground IScalableBackground.WithVScale(double scale) => WithVScale(scale);
 
     /// <inheritdoc/>
-    public T ShapeTable<T>(Func<IBackground, T> create) where T : class
-    {
-        ArgumentNullException.ThrowIfNull(create);
-        object? held = Volatile.Read(ref _shared.ShapeTable);
-        if (held is null)
-        {
-            Interlocked.CompareExchange(ref _shared.ShapeTable, create(this), null);
-            held = _shared.ShapeTable!;
-        }
-        return held as T ?? throw new InvalidOperationException(
-            $"this background already holds a shape table of type {held.GetType().Name}; it has one slot");
-    }
+    public T ShapeTable<T>(Func<IBackground, T> create) where T : class => _shared.Slot.Get(this, create);
 
     /// <summary>
     /// The n-field quantities at this view's N (the field-space ones do not depend on the V scale; H in
@@ -151,48 +134,15 @@ public sealed class AdiabaticBackground : IScalableBackground
     }
 
     /// <inheritdoc/>
-    public bool TryNAtHorizonExit(double kBackground, out double n)
-    {
-        n = double.NaN;
-        if (!(kBackground > 0)) return false;
-        double lnk = Math.Log(kBackground) - _halfLnScale;
-        var suf = _shared.SuffixMinLnAH;
-        int last = _shared.GridEndIndex;
-        if (!(lnk > suf[0]) || lnk > suf[last]) return false;
-        int lo = 0, hi = last;
-        while (hi - lo > 1)
-        {
-            int mid = (lo + hi) >> 1;
-            if (suf[mid] < lnk) lo = mid; else hi = mid;
-        }
-        var gn = _shared.GridN;
-        double F(double x) => x + Math.Log(At(x).H) - _halfLnScale - lnk;
-        double a = gn[lo], b = gn[hi], fa = F(a), fb = F(b);
-        if (fb == 0) { n = b; return true; }
-        if (fa > 0) fa = -1e-300;
-        n = Numerics.Roots.Brent(F, a, b, fa, fb, 1e-14);
-        return true;
-    }
+    public bool TryNAtHorizonExit(double kBackground, out double n) => _shared.Exits.TryFind(this, _halfLnScale, kBackground, out n);
 
     /// <inheritdoc/>
-    public double NAtHorizonExit(double kBackground)
-    {
-        if (TryNAtHorizonExit(kBackground, out double n)) return n;
-        var (kMin, kMax) = KRange(1.0, 1.0);
-        throw new PhysicsException($"k = {kBackground:G6} (background units) never leaves the horizon during inflation; the background serves {kMin:G6} to {kMax:G6}; start the fields further up the potential or choose another k.");
-    }
+    public double NAtHorizonExit(double kBackground) => _shared.Exits.Find(this, _halfLnScale, kBackground, "fields");
 
     /// <inheritdoc/>
-    public (double KMin, double KMax) KRange(double startDepth, double endDepth)
-    {
-        var (lnMin, lnMax) = LnKRange(startDepth, endDepth);
-        return (Math.Exp(lnMin), Math.Exp(lnMax));
-    }
+    public (double KMin, double KMax) KRange(double startDepth, double endDepth) => _shared.Exits.KRange(_halfLnScale, startDepth, endDepth);
 
     /// <inheritdoc/>
     public (double LnKMin, double LnKMax) LnKRange(double startDepth, double endDepth)
-    {
-        var suf = _shared.SuffixMinLnAH;
-        return (Math.Log(startDepth) + suf[0] + _halfLnScale, Math.Log(endDepth) + suf[_shared.GridEndIndex] + _halfLnScale);
-    }
+        => _shared.Exits.LnKRange(_halfLnScale, startDepth, endDepth);
 }

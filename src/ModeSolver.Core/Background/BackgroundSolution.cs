@@ -39,24 +39,14 @@ public sealed class BackgroundSolution : IScalableBackground
         public required double[] GridN { get; init; }      // all step times over [NStart, NStop]
         public required double[] GridPhi { get; init; }
         public required int GridEndIndex { get; init; }     // GridN[GridEndIndex] == NEnd
-        public required double[] SuffixMinLnAH { get; init; } // suffix minimum of ln(aH) (unscaled) over [0, NEnd]
+        // The ln(aH) table of the horizon-exit lookup (set once in Create).
+        public HorizonExitTable Exits { get; set; } = null!;
         // One derived table that does not depend on the V scale (built once, shared by every view and thread).
-        public object? ShapeTable;
+        public ShapeSlot Slot { get; } = new();
     }
 
     /// <inheritdoc/>
-    public T ShapeTable<T>(Func<IBackground, T> create) where T : class
-    {
-        ArgumentNullException.ThrowIfNull(create);
-        object? held = Volatile.Read(ref _shared.ShapeTable);
-        if (held is null)
-        {
-            Interlocked.CompareExchange(ref _shared.ShapeTable, create(this), null);
-            held = _shared.ShapeTable!;
-        }
-        return held as T ?? throw new InvalidOperationException(
-            $"this background already holds a shape table of type {held.GetType().Name}; it has one slot");
-    }
+    public T ShapeTable<T>(Func<IBackground, T> create) where T : class => _shared.Slot.Get(this, create);
 
     private BackgroundSolution(Shared shared, double vScale)
     {
@@ -178,17 +168,11 @@ public sealed class BackgroundSolution : IScalableBackground
             Theory = theory, Segments = segs, SegmentStarts = starts, NEnd = nEnd, Origin = origin, ContinuationNote = continuationNote, ContinuationStop = continuationStop,
             EndCrossings = crossings.ToArray(), RisingCrossings = rising.ToArray(), NonSmoothTimes = nonSmooth.ToArray(),
             EndedAtPhiEnd = endedAtPhiEnd, GridN = gridN.ToArray(), GridPhi = new double[gridN.Count],
-            GridEndIndex = endIndex, SuffixMinLnAH = new double[endIndex + 1],
+            GridEndIndex = endIndex,
         };
         var bg = new BackgroundSolution(shared0, 1.0);
-        for (int i = 0; i < shared0.GridN.Length; i++)
-        {
-            var pt = bg.At(shared0.GridN[i]);
-            shared0.GridPhi[i] = pt.Phi;
-            if (i <= endIndex) shared0.SuffixMinLnAH[i] = pt.N + Math.Log(pt.H);
-        }
-        for (int i = endIndex - 1; i >= 0; i--)
-            shared0.SuffixMinLnAH[i] = Math.Min(shared0.SuffixMinLnAH[i], shared0.SuffixMinLnAH[i + 1]);
+        for (int i = 0; i < shared0.GridN.Length; i++) shared0.GridPhi[i] = bg.At(shared0.GridN[i]).Phi;
+        shared0.Exits = new HorizonExitTable(bg, shared0.GridN, endIndex);
         return bg;
     }
 
@@ -250,64 +234,18 @@ public sealed class BackgroundSolution : IScalableBackground
     /// The last N before the end of inflation at which k = aH (final horizon exit), k in background units
     /// (k = aH with a = e^N, H in M_pl, in this view's scale). Returns false when k is outside the served range.
     /// </summary>
-    public bool TryNAtHorizonExit(double kBackground, out double n)
-    {
-        n = double.NaN;
-        if (!(kBackground > 0)) return false;
-        double lnk = Math.Log(kBackground) - _halfLnScale;
-        var suf = _shared.SuffixMinLnAH;
-        int last = _shared.GridEndIndex;
-        if (!(lnk > suf[0]) || lnk > suf[last]) return false;
-        // suf is non-decreasing: find i with suf[i] < lnk <= suf[i+1].
-        int lo = 0, hi = last;
-        while (hi - lo > 1)
-        {
-            int mid = (lo + hi) >> 1;
-            if (suf[mid] < lnk) lo = mid; else hi = mid;
-        }
-        var gn = _shared.GridN;
-        double a = gn[lo], b = gn[hi];
-        double fa = a + Math.Log(At(a).H) - _halfLnScale - lnk;
-        double fb = b + Math.Log(At(b).H) - _halfLnScale - lnk;
-        if (fb == 0) { n = b; return true; }
-        if (fa > 0) fa = -1e-300; // guard rounding at the bracket edge
-        var exit = new LnAHMinus(this, lnk + _halfLnScale);
-        n = Numerics.Roots.SafeNewton(ref exit, a, b, fa, fb, 1e-14);
-        return true;
-    }
-
-    /// <summary>ln(aH)(N) - target = N + ln H - target and its exact derivative 1 - e1 (allocation-free).</summary>
-    private readonly struct LnAHMinus(BackgroundSolution bg, double target) : Numerics.IRootFunctionWithDerivative
-    {
-        public (double Value, double Derivative) Evaluate(double x)
-        {
-            var p = bg.At(x);
-            return (x + Math.Log(p.H) - target, 1.0 - p.Epsilon1);
-        }
-    }
+    public bool TryNAtHorizonExit(double kBackground, out double n) => _shared.Exits.TryFind(this, _halfLnScale, kBackground, out n);
 
     /// <summary>As <see cref="TryNAtHorizonExit"/>, throwing <see cref="PhysicsException"/> when k is outside the range served.</summary>
-    public double NAtHorizonExit(double kBackground)
-    {
-        if (TryNAtHorizonExit(kBackground, out double n)) return n;
-        var (kMin, kMax) = KRange(1.0, 1.0);
-        throw new PhysicsException($"k = {kBackground:G6} (background units) never leaves the horizon during inflation; the background serves {kMin:G6} to {kMax:G6}; start the field further up the potential or choose another k.");
-    }
+    public double NAtHorizonExit(double kBackground) => _shared.Exits.Find(this, _halfLnScale, kBackground, "field");
 
     /// <summary>
     /// The k range (background units, this view's scale) the background can serve: k/aH reaches <paramref name="startDepth"/>
     /// after the start (k &gt;= startDepth times the smallest aH before its exit) and k/aH &lt;= <paramref name="endDepth"/> at NEnd.
     /// </summary>
-    public (double KMin, double KMax) KRange(double startDepth, double endDepth)
-    {
-        var (lnMin, lnMax) = LnKRange(startDepth, endDepth);
-        return (Math.Exp(lnMin), Math.Exp(lnMax));
-    }
+    public (double KMin, double KMax) KRange(double startDepth, double endDepth) => _shared.Exits.KRange(_halfLnScale, startDepth, endDepth);
 
     /// <summary>The logarithms of <see cref="KRange"/> (finite even where k itself under- or overflows a double).</summary>
     public (double LnKMin, double LnKMax) LnKRange(double startDepth, double endDepth)
-    {
-        var suf = _shared.SuffixMinLnAH;
-        return (Math.Log(startDepth) + suf[0] + _halfLnScale, Math.Log(endDepth) + suf[_shared.GridEndIndex] + _halfLnScale);
-    }
+        => _shared.Exits.LnKRange(_halfLnScale, startDepth, endDepth);
 }

@@ -36,6 +36,15 @@ public static class FlagKinds
 
     /// <summary>An N range inside the observable window where epsilon_1 or |epsilon_2| is large.</summary>
     public const string BackgroundPhase = "background-phase";
+
+    /// <summary>An N range where the entropic direction is light (m_s^2/H^2 &lt; 1) while the trajectory turns: the single-field reduction fails.</summary>
+    public const string LightEntropicTurn = "light-entropic-turn";
+
+    /// <summary>An N range where the entropic mass is negative (geometrical destabilisation when the curvature term drives it).</summary>
+    public const string EntropicInstability = "entropic-instability";
+
+    /// <summary>delta N and the mode equations disagree on P_zeta beyond their errors and the expected slow-roll difference.</summary>
+    public const string DeltaNDisagreement = "delta-n-disagreement";
 }
 
 /// <summary>Which slow-roll estimate the exact results are compared against.</summary>

@@ -109,6 +109,44 @@ internal readonly struct Expr : IFormulaNumber<Expr>
         return new(Expression.Call(method, a0.E, a1.E, a2.E, a3.E, b0.E, b1.E, b2.E, b3.E, Expression.Constant(min)), s);
     }
 
+    /// <summary>The loop of <see cref="Scalar.FirstSign"/> unrolled into nested conditionals (the same comparisons in the same order).</summary>
+    public static Expr FirstSign(ReadOnlySpan<Expr> a)
+    {
+        Expression r = Expression.Constant(1.0);
+        Scope? s = null;
+        for (int k = a.Length - 1; k >= 0; k--)
+        {
+            var x = a[k].E;
+            s ??= a[k].S;
+            r = Expression.Condition(Expression.NotEqual(x, Zero),
+                Expression.Condition(Expression.LessThan(x, Zero), Expression.Constant(-1.0), Expression.Constant(1.0)), r);
+        }
+        return new(r, s);
+    }
+
+    /// <summary>The loop of <see cref="Scalar.ChooseSeries"/> unrolled into nested conditionals (the same comparisons in the same order).</summary>
+    public static Expr ChooseSeries(ReadOnlySpan<Expr> a, ReadOnlySpan<Expr> b, bool min)
+    {
+        var compare = typeof(double).GetMethod(nameof(double.CompareTo), [typeof(double)])!;
+        var isNaN = typeof(double).GetMethod(nameof(double.IsNaN), [typeof(double)])!;
+        Scope? s = null;
+        Expression cmp = Expression.Call(a[^1].E, compare, b[^1].E);
+        for (int k = a.Length - 2; k >= 0; k--)
+        {
+            var c = Expression.Variable(typeof(int));
+            // c_k != 0 ? c_k : (later coefficients): evaluated lazily, like the loop that stops at the first difference.
+            cmp = Expression.Block(typeof(int), [c], Expression.Assign(c, Expression.Call(a[k].E, compare, b[k].E)),
+                Expression.Condition(Expression.NotEqual(c, Expression.Constant(0)), c, cmp));
+        }
+        for (int k = 0; k < a.Length; k++) s ??= a[k].S ?? b[k].S;
+        var take = min ? Expression.LessThanOrEqual(cmp, Expression.Constant(0)) : Expression.GreaterThanOrEqual(cmp, Expression.Constant(0));
+        var nan = Expression.OrElse(Expression.Call(isNaN, a[0].E), Expression.Call(isNaN, b[0].E));
+        return new(Expression.Condition(nan, Expression.Constant(2.0),
+            Expression.Condition(take, Expression.Constant(0.0), Expression.Constant(1.0))), s);
+    }
+
+    private static readonly ConstantExpression Zero = Expression.Constant(0.0);
+
     public static Expr Pick(Expr choice, Expr x, Expr y)
         => new(Expression.Condition(Expression.Equal(choice.E, Expression.Constant(0.0)), x.E,
             Expression.Condition(Expression.Equal(choice.E, Expression.Constant(1.0)), y.E, Expression.Constant(double.NaN))),

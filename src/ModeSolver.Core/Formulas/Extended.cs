@@ -99,4 +99,6 @@ internal readonly struct Extended : IFormulaNumber<Extended>
     public static Extended AbsSign(Extended a0, Extended a1, Extended a2, Extended a3) => Unsupported();
     public static Extended Choose(Extended a0, Extended a1, Extended a2, Extended a3, Extended b0, Extended b1, Extended b2, Extended b3, bool min) => Unsupported();
     public static Extended Pick(Extended choice, Extended x, Extended y) => Unsupported();
+    public static Extended FirstSign(ReadOnlySpan<Extended> a) => Unsupported();
+    public static Extended ChooseSeries(ReadOnlySpan<Extended> a, ReadOnlySpan<Extended> b, bool min) => Unsupported();
 }

@@ -1,4 +1,5 @@
 using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 
 namespace ModeSolver.Formulas;
 
@@ -63,6 +64,17 @@ internal interface IFormulaNumber<T> where T : struct, IFormulaNumber<T>
 
     /// <summary><paramref name="x"/> where <paramref name="choice"/> is 0, <paramref name="y"/> where 1, NaN otherwise.</summary>
     static abstract T Pick(T choice, T x, T y);
+
+    /// <summary>
+    /// The sign of the first coefficient that is not zero (NaN counts as not zero and gives 1), 1 if all are zero:
+    /// abs's branch at a zero of its argument in several variables (<see cref="Scalar.FirstSign"/>).
+    /// </summary>
+    static abstract T FirstSign(ReadOnlySpan<T> a);
+
+    /// <summary>
+    /// Lexicographic choice between two series of any length (<see cref="Scalar.ChooseSeries"/>): 0 first, 1 second, 2 NaN.
+    /// </summary>
+    static abstract T ChooseSeries(ReadOnlySpan<T> a, ReadOnlySpan<T> b, bool min);
 }
 
 /// <summary>The double-valued helpers of the switching functions, shared by every number type.</summary>
@@ -94,6 +106,26 @@ internal static class Scalar
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static double Pick(double choice, double x, double y) => choice == 0 ? x : choice == 1 ? y : double.NaN;
+
+    /// <summary>The sign of the first coefficient that is not zero (NaN counts as not zero and gives 1), 1 if all are zero.</summary>
+    public static double FirstSign(ReadOnlySpan<double> a)
+    {
+        for (int k = 0; k < a.Length; k++)
+            if (a[k] != 0) return a[k] < 0 ? -1 : 1;
+        return 1;
+    }
+
+    /// <summary>
+    /// Lexicographic choice between two series of the same length (by value, a tie by the first differing coefficient
+    /// in <see cref="double.CompareTo(double)"/>'s order): 0 first, 1 second, 2 when either value is NaN.
+    /// </summary>
+    public static double ChooseSeries(ReadOnlySpan<double> a, ReadOnlySpan<double> b, bool min)
+    {
+        if (double.IsNaN(a[0]) || double.IsNaN(b[0])) return 2;
+        int cmp = 0;
+        for (int k = 0; k < a.Length && cmp == 0; k++) cmp = a[k].CompareTo(b[k]);
+        return (min ? cmp <= 0 : cmp >= 0) ? 0 : 1;
+    }
 }
 
 /// <summary>A double as an <see cref="IFormulaNumber{T}"/>: the interpreter's arithmetic (every member is the plain double operation).</summary>
@@ -168,4 +200,7 @@ internal readonly struct Real : IFormulaNumber<Real>
         => new(Scalar.Choose(a0.V, a1.V, a2.V, a3.V, b0.V, b1.V, b2.V, b3.V, min));
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static Real Pick(Real choice, Real x, Real y) => new(Scalar.Pick(choice.V, x.V, y.V));
+    public static Real FirstSign(ReadOnlySpan<Real> a) => new(Scalar.FirstSign(MemoryMarshal.Cast<Real, double>(a)));
+    public static Real ChooseSeries(ReadOnlySpan<Real> a, ReadOnlySpan<Real> b, bool min)
+        => new(Scalar.ChooseSeries(MemoryMarshal.Cast<Real, double>(a), MemoryMarshal.Cast<Real, double>(b), min));
 }

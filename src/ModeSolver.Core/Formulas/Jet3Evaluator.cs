@@ -34,7 +34,7 @@ internal static unsafe class Jet3Evaluator
                     if (!CompiledProgram.Holds(I.Aux, ToDouble(r[I.A].C0), ToDouble(r[I.B].C0))) pc = I.N - 1;
                     break;
                 case Op.Jump: pc = I.N - 1; break;
-                default: r[I.Dst] = Kernels.Jet(I.Op, r[I.A], r[I.B], (T)I.C, I.N); break;
+                default: Kernels.Jet(I.Op, r[I.A], r[I.B], (T)I.C, I.N, out r[I.Dst]); break;
             }
         }
     }

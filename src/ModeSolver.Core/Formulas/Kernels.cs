@@ -23,6 +23,7 @@ internal readonly struct Series3<T> where T : struct, IFormulaNumber<T>
 /// (<see cref="MultiJetEvaluator"/>, which uses <see cref="Chain"/>) all run these, so their results agree bit for bit
 /// by construction. Only the arbitrary-order recurrences (<see cref="CompiledProgram.RunSeries"/>) are separate.
 /// </summary>
+[SkipLocalsInit]
 internal static class Kernels
 {
     /// <summary>The value of one instruction from its operands' values; <paramref name="c"/> is the instruction constant.</summary>
@@ -247,67 +248,92 @@ internal static class Kernels
 
     /// <summary>
     /// One instruction on order-3 series: <paramref name="a"/> and <paramref name="b"/> are the operands, <paramref name="c"/>
-    /// the instruction constant, <paramref name="n"/> its integer exponent. Not for jumps.
+    /// the instruction constant, <paramref name="n"/> its integer exponent, <paramref name="d"/> the destination (every
+    /// coefficient is computed before <paramref name="d"/> is written). Not for jumps.
     /// </summary>
     /// <remarks>
-    /// Compiled optimised at its first call: a command-line run is over before tiered compilation would replace the
+    /// The result is written in place rather than returned: a 32-byte struct comes back through a stack buffer that the
+    /// caller then copies with 16-byte loads across the callee's 8-byte stores, and such a load cannot be forwarded from
+    /// the store buffer; that stall cost the interpreter about 8 ns per instruction (measured with perf in the native build,
+    /// docs/speed.md). A small dispatcher, inlined into the interpreter's loop; the longer rules are methods of their own,
+    /// compiled optimised at their first call: a command-line run is over before tiered compilation would replace the
     /// unoptimised first version (whose un-inlined double-double operators made the extended path about ten times slower).
     /// </remarks>
-    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public static Series3<T> Jet<T>(Op op, in Series3<T> a, in Series3<T> b, T c, int n) where T : struct, IFormulaNumber<T>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public static void Jet<T>(Op op, in Series3<T> a, in Series3<T> b, T c, int n, out Series3<T> d) where T : struct, IFormulaNumber<T>
     {
         switch (op)
         {
-            case Op.LoadConst: return new(c, 0.0, 0.0, 0.0);
-            case Op.Copy: return a;
-            case Op.Neg: return new(-a.C0, -a.C1, -a.C2, -a.C3);
-            case Op.Add: return new(a.C0 + b.C0, a.C1 + b.C1, a.C2 + b.C2, a.C3 + b.C3);
-            case Op.Sub: return new(a.C0 - b.C0, a.C1 - b.C1, a.C2 - b.C2, a.C3 - b.C3);
-            case Op.Mul: return Mul(a, b);
-            case Op.Div:
-            {
-                T q0 = T.Let(a.C0 / b.C0);
-                T q1 = T.Let((a.C1 - b.C1 * q0) / b.C0);
-                T q2 = T.Let((a.C2 - b.C1 * q1 - b.C2 * q0) / b.C0);
-                return new(q0, q1, q2, (a.C3 - b.C1 * q2 - b.C2 * q1 - b.C3 * q0) / b.C0);
-            }
-            case Op.AddC: return new(a.C0 + c, a.C1, a.C2, a.C3);
-            case Op.MulC: { T k = T.Let(c); return new(a.C0 * k, a.C1 * k, a.C2 * k, a.C3 * k); }
-            case Op.SubCR: return new(c - a.C0, -a.C1, -a.C2, -a.C3);
-            case Op.DivC: { T k = T.Let(c); return new(a.C0 / k, a.C1 / k, a.C2 / k, a.C3 / k); }
+            case Op.LoadConst: d = new(c, 0.0, 0.0, 0.0); return;
+            case Op.Copy: d = a; return;
+            case Op.Neg: d = new(-a.C0, -a.C1, -a.C2, -a.C3); return;
+            case Op.Add: d = new(a.C0 + b.C0, a.C1 + b.C1, a.C2 + b.C2, a.C3 + b.C3); return;
+            case Op.Sub: d = new(a.C0 - b.C0, a.C1 - b.C1, a.C2 - b.C2, a.C3 - b.C3); return;
+            case Op.Mul: d = Mul(a, b); return;
+            case Op.Div: JetDiv(a, b, out d); return;
+            case Op.AddC: d = new(a.C0 + c, a.C1, a.C2, a.C3); return;
+            case Op.MulC: { T k = T.Let(c); d = new(a.C0 * k, a.C1 * k, a.C2 * k, a.C3 * k); return; }
+            case Op.SubCR: d = new(c - a.C0, -a.C1, -a.C2, -a.C3); return;
+            case Op.DivC: { T k = T.Let(c); d = new(a.C0 / k, a.C1 / k, a.C2 / k, a.C3 / k); return; }
             case Op.PowInt when n == 2:
-                return new(a.C0 * a.C0, 2 * a.C0 * a.C1, 2 * a.C0 * a.C2 + a.C1 * a.C1, 2 * (a.C0 * a.C3 + a.C1 * a.C2));
+                d = new(a.C0 * a.C0, 2 * a.C0 * a.C1, 2 * a.C0 * a.C2 + a.C1 * a.C1, 2 * (a.C0 * a.C3 + a.C1 * a.C2));
+                return;
             case Op.PowInt when n == 0:
-                return new(1.0, 0.0, 0.0, 0.0);
-            case Op.Pow:
-            {
-                // a^b = exp(b log a): the log series of a, times b, then exp composed on it with the value pow(a0, b0).
-                T x = T.Let(a.C0);
-                Chain(Op.Log, x, c, 0, out T l0, out T l1, out T l2, out T l3);
-                var l = Compose(a, l0, l1, l2, l3);
-                var y = new Series3<T>(T.Let(b.C0), T.Let(b.C1), T.Let(b.C2), T.Let(b.C3));
-                var m = Mul(y, l);
-                m = new Series3<T>(T.Let(m.C0), T.Let(m.C1), T.Let(m.C2), T.Let(m.C3));
-                T p = T.Let(T.Pow(x, y.C0));
-                return Compose(m, p, p, p, p);
-            }
-            case Op.Abs:
-            {
-                T sign = T.Let(T.AbsSign(a.C0, a.C1, a.C2, a.C3));
-                return new(T.Abs(a.C0), sign * a.C1, sign * a.C2, sign * a.C3);
-            }
-            case Op.Step: return new(T.Step(a.C0), 0.0, 0.0, 0.0);
-            case Op.Min:
-            case Op.Max:
-            {
-                T k = T.Let(T.Choose(a.C0, a.C1, a.C2, a.C3, b.C0, b.C1, b.C2, b.C3, op == Op.Min));
-                return new(T.Pick(k, a.C0, b.C0), T.Pick(k, a.C1, b.C1), T.Pick(k, a.C2, b.C2), T.Pick(k, a.C3, b.C3));
-            }
-            default:
-            {
-                Chain(op, a.C0, c, n, out T f0, out T f1, out T f2, out T f3);
-                return Compose(a, f0, f1, f2, f3);
-            }
+                d = new(1.0, 0.0, 0.0, 0.0);
+                return;
+            case Op.Pow: JetPow(a, b, c, out d); return;
+            case Op.Abs: JetAbs(a, out d); return;
+            case Op.Step: d = new(T.Step(a.C0), 0.0, 0.0, 0.0); return;
+            case Op.Min: case Op.Max: JetSelect(a, b, op == Op.Min, out d); return;
+            default: JetFunction(op, a, c, n, out d); return;
         }
+    }
+
+    /// <summary>The quotient a / b of order-3 series, coefficient by coefficient.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void JetDiv<T>(in Series3<T> a, in Series3<T> b, out Series3<T> d) where T : struct, IFormulaNumber<T>
+    {
+        T q0 = T.Let(a.C0 / b.C0);
+        T q1 = T.Let((a.C1 - b.C1 * q0) / b.C0);
+        T q2 = T.Let((a.C2 - b.C1 * q1 - b.C2 * q0) / b.C0);
+        d = new(q0, q1, q2, (a.C3 - b.C1 * q2 - b.C2 * q1 - b.C3 * q0) / b.C0);
+    }
+
+    /// <summary>a^b = exp(b log a): the log series of a, times b, then exp composed on it with the value pow(a0, b0).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void JetPow<T>(in Series3<T> a, in Series3<T> b, T c, out Series3<T> d) where T : struct, IFormulaNumber<T>
+    {
+        T x = T.Let(a.C0);
+        Chain(Op.Log, x, c, 0, out T l0, out T l1, out T l2, out T l3);
+        var l = Compose(a, l0, l1, l2, l3);
+        var y = new Series3<T>(T.Let(b.C0), T.Let(b.C1), T.Let(b.C2), T.Let(b.C3));
+        var m = Mul(y, l);
+        m = new Series3<T>(T.Let(m.C0), T.Let(m.C1), T.Let(m.C2), T.Let(m.C3));
+        T p = T.Let(T.Pow(x, y.C0));
+        d = Compose(m, p, p, p, p);
+    }
+
+    /// <summary>|a|, with the right-hand sign at a zero of the value.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void JetAbs<T>(in Series3<T> a, out Series3<T> d) where T : struct, IFormulaNumber<T>
+    {
+        T sign = T.Let(T.AbsSign(a.C0, a.C1, a.C2, a.C3));
+        d = new(T.Abs(a.C0), sign * a.C1, sign * a.C2, sign * a.C3);
+    }
+
+    /// <summary>min or max of two series (the lexicographic choice of <see cref="Scalar.Choose"/>).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void JetSelect<T>(in Series3<T> a, in Series3<T> b, bool min, out Series3<T> d) where T : struct, IFormulaNumber<T>
+    {
+        T k = T.Let(T.Choose(a.C0, a.C1, a.C2, a.C3, b.C0, b.C1, b.C2, b.C3, min));
+        d = new(T.Pick(k, a.C0, b.C0), T.Pick(k, a.C1, b.C1), T.Pick(k, a.C2, b.C2), T.Pick(k, a.C3, b.C3));
+    }
+
+    /// <summary>A one-argument function (<see cref="IsChained"/>): F, F', F'', F''' from <see cref="Chain"/>, composed on a.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void JetFunction<T>(Op op, in Series3<T> a, T c, int n, out Series3<T> d) where T : struct, IFormulaNumber<T>
+    {
+        Chain(op, a.C0, c, n, out T f0, out T f1, out T f2, out T f3);
+        d = Compose(a, f0, f1, f2, f3);
     }
 }

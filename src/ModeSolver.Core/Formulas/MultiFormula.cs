@@ -8,7 +8,8 @@ namespace ModeSolver.Formulas;
 /// for field-space functions of several fields: a potential V(phi^a) or a metric component G_ab(phi^c). Gives the value,
 /// the gradient, the Hessian and the third partial derivatives, exact up to rounding (truncated multivariate Taylor
 /// arithmetic, never finite differences), with mixed partials symmetric by construction. Same language as
-/// <see cref="Formula"/>; made by <see cref="Formula.Compile"/>. Evaluation allocates nothing and is thread-safe.
+/// <see cref="Formula"/>; made by <see cref="Formula.Compile"/>. Evaluation is thread-safe and allocates nothing, except
+/// that the first evaluation of each kind (value; order 1, 2 or 3) generates its straight-line code, where the runtime can.
 /// </summary>
 /// <remarks>
 /// With one variable every result is the one-variable <see cref="Formula"/>'s, bit for bit (it runs that path).
@@ -26,6 +27,11 @@ public sealed class MultiFormula
     private readonly MultiLayout _first, _second, _third;
     private readonly Formula? _single; // the one-variable path (bit-identical to Formula)
     private readonly string[] _variables;
+    // Generated straight-line code (MultiProgramJit), compiled on first use of each order (value, 1, 2, 3); null where
+    // the runtime cannot compile code or the program is too large. The interpreter stays the reference and the fallback.
+    private readonly double[] _constants;
+    private readonly Lazy<MultiValueCode?> _valueCode;
+    private readonly Lazy<MultiSeriesCode?>[] _seriesCode;
 
     private MultiFormula(string text, string[] variables, CompiledProgram program, IReadOnlyDictionary<string, double> parameters,
         IReadOnlyList<string> unused, Formula? single)
@@ -39,7 +45,17 @@ public sealed class MultiFormula
         _first = new MultiLayout(variables.Length, 1);
         _second = new MultiLayout(variables.Length, 2);
         _third = new MultiLayout(variables.Length, 3);
+        _constants = ProgramJit.Constants(program);
+        _valueCode = new(() => MultiProgramJit.ValueFor(program, variables.Length), LazyThreadSafetyMode.PublicationOnly);
+        _seriesCode = new Lazy<MultiSeriesCode?>[3];
+        for (int order = 1; order <= 3; order++)
+        {
+            var layout = LayoutOf(order);
+            _seriesCode[order - 1] = new(() => MultiProgramJit.SeriesFor(program, layout), LazyThreadSafetyMode.PublicationOnly);
+        }
     }
+
+    private MultiLayout LayoutOf(int order) => order == 3 ? _third : order == 2 ? _second : _first;
 
     /// <summary>The source text.</summary>
     public string Text { get; }
@@ -74,11 +90,32 @@ public sealed class MultiFormula
     }
 
     /// <summary>f at <paramref name="point"/> (one coordinate per variable).</summary>
-    [SkipLocalsInit]
     public unsafe double Value(ReadOnlySpan<double> point)
     {
         CheckPoint(point);
         if (_single != null) return _single.Value(point[0]);
+        if (_valueCode.Value is { } code)
+            fixed (double* x = point) return code(_constants, (nint)x);
+        return ValueProgram(point);
+    }
+
+    /// <summary>True when <see cref="Value"/> and <see cref="Evaluate(ReadOnlySpan{double}, Span{double}, Span{double}, Span{double})"/> run generated code (several variables, a runtime that compiles code).</summary>
+    internal bool IsGenerated => _single == null && _valueCode.Value != null && _seriesCode[2].Value != null;
+
+    /// <summary>f by the interpreter (the reference for the generated code).</summary>
+    internal double ValueInterpreted(ReadOnlySpan<double> point)
+    {
+        CheckPoint(point);
+        return ValueProgram(point);
+    }
+
+    /// <summary>As <see cref="Evaluate(ReadOnlySpan{double}, Span{double}, Span{double}, Span{double})"/> by the interpreter (the reference for the generated code).</summary>
+    internal double EvaluateInterpreted(ReadOnlySpan<double> point, Span<double> gradient, Span<double> hessian, Span<double> third)
+        => Evaluate(point, gradient, hessian, third, generated: false);
+
+    [SkipLocalsInit]
+    private unsafe double ValueProgram(ReadOnlySpan<double> point)
+    {
         int count = _program.RegisterCount;
         if (count > StackDoubles) return ValueRented(point);
         double* r = stackalloc double[count];
@@ -110,8 +147,11 @@ public sealed class MultiFormula
     /// f, its gradient (n), Hessian (n*n) and third partial derivatives (n*n*n, third[(i*n + j)*n + k]) at
     /// <paramref name="point"/>; returns f. Empty spans skip the orders from there on (an empty third: order 2).
     /// </summary>
+    public double Evaluate(ReadOnlySpan<double> point, Span<double> gradient, Span<double> hessian, Span<double> third)
+        => Evaluate(point, gradient, hessian, third, generated: true);
+
     [SkipLocalsInit]
-    public unsafe double Evaluate(ReadOnlySpan<double> point, Span<double> gradient, Span<double> hessian, Span<double> third)
+    private unsafe double Evaluate(ReadOnlySpan<double> point, Span<double> gradient, Span<double> hessian, Span<double> third, bool generated)
     {
         CheckPoint(point);
         int n = _variables.Length;
@@ -127,7 +167,13 @@ public sealed class MultiFormula
             if (order >= 3) third[0] = j.D3;
             return j.Value;
         }
-        var layout = order == 3 ? _third : order == 2 ? _second : _first;
+        var layout = LayoutOf(order);
+        if (generated && _seriesCode[order - 1].Value is { } code)
+        {
+            double* r = stackalloc double[layout.Width];
+            fixed (double* x = point) code(_constants, (nint)x, (nint)r);
+            return Store(layout, r, order, gradient, hessian, third);
+        }
         int count = _program.RegisterCount * layout.Width;
         if (count <= StackDoubles)
         {

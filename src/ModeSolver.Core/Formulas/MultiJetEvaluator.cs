@@ -81,11 +81,10 @@ internal sealed class MultiLayout
 }
 
 /// <summary>
-/// Runs a program in several variables on truncated multivariate Taylor series (value, gradient, second and third
-/// partials, <see cref="MultiLayout"/>): the exact mixed partial derivatives to rounding, in one pass. Elementary functions
-/// take their derivatives F', F'', F''' from <see cref="Kernels.Chain"/> (the declarations the one-variable paths use) and
-/// combine them by the multivariate chain rule: y_i = F' a_i, y_ij = F' a_ij + F'' a_i a_j,
-/// y_ijk = F' a_ijk + F'' (a_ij a_k + a_ik a_j + a_jk a_i) + F''' a_i a_j a_k. Allocation-free.
+/// The interpreter of a program in several variables on truncated multivariate Taylor series (value, gradient, second
+/// and third partials, <see cref="MultiLayout"/>): the exact mixed partial derivatives to rounding, in one pass, each
+/// instruction by its kernel in <see cref="MultiKernels"/> (which the generated code, <see cref="MultiProgramJit"/>,
+/// runs too). Allocation-free.
 /// </summary>
 internal static unsafe class MultiJetEvaluator
 {
@@ -94,6 +93,7 @@ internal static unsafe class MultiJetEvaluator
     /// <see cref="MultiLayout.Width"/> doubles per register. Returns a pointer to the result register's series.
     /// </summary>
     [SkipLocalsInit]
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static double* Run(CompiledProgram program, MultiLayout L, ReadOnlySpan<double> point, double* s)
     {
         int w = L.Width;
@@ -108,128 +108,18 @@ internal static unsafe class MultiJetEvaluator
         for (int pc = 0; pc < code.Length; pc++)
         {
             ref readonly Instr I = ref code[pc];
-            double* d = s + I.Dst * w;
-            double* a = s + I.A * w;
-            double* b = s + I.B * w;
-            double c = I.C;
             switch (I.Op)
             {
                 case Op.JumpIfNot:
-                    if (!CompiledProgram.Holds(I.Aux, a[0], b[0])) pc = I.N - 1;
+                    if (!CompiledProgram.Holds(I.Aux, s[I.A * w], s[I.B * w])) pc = I.N - 1;
                     break;
                 case Op.Jump: pc = I.N - 1; break;
-                case Op.LoadConst: d[0] = c; for (int k = 1; k < w; k++) d[k] = 0; break;
-                case Op.Copy: for (int k = 0; k < w; k++) d[k] = a[k]; break;
-                case Op.Neg: for (int k = 0; k < w; k++) d[k] = -a[k]; break;
-                case Op.Add: for (int k = 0; k < w; k++) d[k] = a[k] + b[k]; break;
-                case Op.Sub: for (int k = 0; k < w; k++) d[k] = a[k] - b[k]; break;
-                case Op.AddC: d[0] = a[0] + c; for (int k = 1; k < w; k++) d[k] = a[k]; break;
-                case Op.SubCR: d[0] = c - a[0]; for (int k = 1; k < w; k++) d[k] = -a[k]; break;
-                case Op.MulC: for (int k = 0; k < w; k++) d[k] = a[k] * c; break;
-                case Op.DivC: for (int k = 0; k < w; k++) d[k] = a[k] / c; break;
-                case Op.Mul: Mul(L, a, b, d); break;
-                case Op.Div: Div(L, a, b, d); break;
-                case Op.Pow:
-                {
-                    // a^b = exp(b log a), with the value pow(a0, b0).
-                    double* l = s + I.Aux * w;
-                    double* m = s + (I.Aux + 1) * w;
-                    Kernels.Chain<Real>(Op.Log, a[0], 0.0, 0, out var l0, out var l1, out var l2, out var l3);
-                    Compose(L, a, l, l0.V, l1.V, l2.V, l3.V);
-                    Mul(L, b, l, m);
-                    double p = Math.Pow(a[0], b[0]);
-                    Compose(L, m, d, p, p, p, p);
-                    break;
-                }
-                case Op.Abs:
-                {
-                    // Right-hand branch at a zero: the sign of the first non-zero coefficient (value, then derivatives in slot order).
-                    double sign = 1;
-                    for (int k = 0; k < w; k++)
-                        if (a[k] != 0) { sign = a[k] < 0 ? -1 : 1; break; }
-                    d[0] = Math.Abs(a[0]);
-                    for (int k = 1; k < w; k++) d[k] = sign * a[k];
-                    break;
-                }
-                case Op.Step: d[0] = Scalar.Step(a[0]); for (int k = 1; k < w; k++) d[k] = 0; break;
-                case Op.Min:
-                case Op.Max:
-                {
-                    if (double.IsNaN(a[0]) || double.IsNaN(b[0]))
-                    {
-                        for (int k = 0; k < w; k++) d[k] = double.NaN;
-                        break;
-                    }
-                    int cmp = 0;
-                    for (int k = 0; k < w && cmp == 0; k++) cmp = a[k].CompareTo(b[k]);
-                    double* src = (I.Op == Op.Min ? cmp <= 0 : cmp >= 0) ? a : b;
-                    for (int k = 0; k < w; k++) d[k] = src[k];
-                    break;
-                }
                 default:
-                {
-                    Kernels.Chain<Real>(I.Op, a[0], c, I.N, out var f0, out var f1, out var f2, out var f3);
-                    Compose(L, a, d, f0.V, f1.V, f2.V, f3.V);
+                    MultiKernels.Run<Real, MemoryRegister>(L, I.Op, new(s + I.Dst * w), new(s + I.A * w), new(s + I.B * w),
+                        new(s + I.Aux * w), new(s + (I.Aux + 1) * w), I.C, I.N);
                     break;
-                }
             }
         }
         return s + program.Result * w;
-    }
-
-    /// <summary>d = F(a) by the multivariate chain rule, given F and its first three derivatives at a0.</summary>
-    private static void Compose(MultiLayout L, double* a, double* d, double f0, double f1, double f2, double f3)
-    {
-        int n = L.N;
-        // Third partials first: they read a's first and second partials (d never aliases a).
-        foreach (var t in L.Triples)
-            d[t.At] = f1 * a[t.At] + f2 * (a[t.IJ] * a[t.K] + a[t.IK] * a[t.J] + a[t.JK] * a[t.I]) + f3 * a[t.I] * a[t.J] * a[t.K];
-        var pairs = L.Pairs;
-        for (int p = 0; p < pairs.Length; p++)
-        {
-            int at = 1 + n + p;
-            d[at] = f1 * a[at] + f2 * a[1 + pairs[p].I] * a[1 + pairs[p].J];
-        }
-        for (int i = 1; i <= n; i++) d[i] = f1 * a[i];
-        d[0] = f0;
-    }
-
-    /// <summary>d = a b (the Leibniz rule for each partial).</summary>
-    private static void Mul(MultiLayout L, double* a, double* b, double* d)
-    {
-        int n = L.N;
-        double a0 = a[0], b0 = b[0];
-        foreach (var t in L.Triples)
-            d[t.At] = a0 * b[t.At] + a[t.At] * b0
-                + a[t.I] * b[t.JK] + a[t.J] * b[t.IK] + a[t.K] * b[t.IJ]
-                + a[t.IJ] * b[t.K] + a[t.IK] * b[t.J] + a[t.JK] * b[t.I];
-        var pairs = L.Pairs;
-        for (int p = 0; p < pairs.Length; p++)
-        {
-            int at = 1 + n + p, i = 1 + pairs[p].I, j = 1 + pairs[p].J;
-            d[at] = a0 * b[at] + a[i] * b[j] + a[j] * b[i] + a[at] * b0;
-        }
-        for (int i = 1; i <= n; i++) d[i] = a0 * b[i] + a[i] * b0;
-        d[0] = a0 * b0;
-    }
-
-    /// <summary>d = a / b, from a = d b order by order (b0 non-zero).</summary>
-    private static void Div(MultiLayout L, double* a, double* b, double* d)
-    {
-        int n = L.N;
-        double b0 = b[0];
-        double q0 = a[0] / b0;
-        d[0] = q0;
-        for (int i = 1; i <= n; i++) d[i] = (a[i] - q0 * b[i]) / b0;
-        var pairs = L.Pairs;
-        for (int p = 0; p < pairs.Length; p++)
-        {
-            int at = 1 + n + p, i = 1 + pairs[p].I, j = 1 + pairs[p].J;
-            d[at] = (a[at] - q0 * b[at] - d[i] * b[j] - d[j] * b[i]) / b0;
-        }
-        foreach (var t in L.Triples)
-            d[t.At] = (a[t.At] - q0 * b[t.At]
-                - d[t.I] * b[t.JK] - d[t.J] * b[t.IK] - d[t.K] * b[t.IJ]
-                - d[t.IJ] * b[t.K] - d[t.IK] * b[t.J] - d[t.JK] * b[t.I]) / b0;
     }
 }

@@ -44,8 +44,12 @@ internal sealed class Dop853Stepper : Stepper
     /// <summary>h|lambda| estimate of the last accepted step (Hairer and Wanner II, sec. IV.2), 0 if undetermined.</summary>
     public double StiffnessIndicator { get; private set; }
 
-    /// <summary>The derivative at the current point (valid after Start and each accepted step).</summary>
-    public ReadOnlySpan<double> CurrentDerivative => _k1;
+    /// <inheritdoc/>
+    /// <remarks>
+    /// Valid after Start and each accepted step: after a step, the first-same-as-last stage f(tNew, yNew), computed
+    /// with the new T and Y themselves.
+    /// </remarks>
+    public override ReadOnlySpan<double> EndDerivative => _k1;
 
     public override void Start(double t, ReadOnlySpan<double> y, double hTrial)
     {

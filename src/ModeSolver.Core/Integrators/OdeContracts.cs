@@ -12,6 +12,14 @@ public delegate double EventFunction(double t, ReadOnlySpan<double> y);
 /// <summary>Called after every accepted step with the new (t, y). Return true to stop the integration there.</summary>
 public delegate bool StepObserver(double t, ReadOnlySpan<double> y);
 
+/// <summary>
+/// Called after every accepted step with the new (t, y) and, where the method has it at no cost, f(t, y) in
+/// <paramref name="dydt"/> (DOP853's first-same-as-last stage: the same call of the right-hand side with the same
+/// arguments, so the same bits); <paramref name="dydt"/> is empty where the method has no such stage (Radau IIA steps)
+/// and at a terminal event. Return true to stop the integration there.
+/// </summary>
+public delegate bool StepDerivativeObserver(double t, ReadOnlySpan<double> y, ReadOnlySpan<double> dydt);
+
 /// <summary>Which sign changes of an event function count.</summary>
 public enum EventDirection
 {
@@ -62,6 +70,11 @@ public sealed record OdeOptions
     public bool DenseOutput { get; init; } = true;
     /// <summary>Optional observer called after each accepted step; returning true stops the integration.</summary>
     public StepObserver? Observer { get; init; }
+    /// <summary>
+    /// Optional observer called after each accepted step (after <see cref="Observer"/>) with the derivative at the step's
+    /// end where the method has it at no cost; returning true stops the integration.
+    /// </summary>
+    public StepDerivativeObserver? DerivativeObserver { get; init; }
 }
 
 /// <summary>Why an integration ended.</summary>

@@ -184,11 +184,13 @@ internal static class OdeDriver
                     tFinal = tStop;
                     status = OdeStatus.TerminalEvent;
                     options.Observer?.Invoke(tStop, finalState);
+                    options.DerivativeObserver?.Invoke(tStop, finalState, ReadOnlySpan<double>.Empty);
                     break;
                 }
 
                 tFinal = tNew;
-                if (options.Observer is { } obs && obs(tNew, st.Y))
+                if ((options.Observer is { } obs && obs(tNew, st.Y))
+                    || (options.DerivativeObserver is { } dobs && dobs(tNew, st.Y, st.EndDerivative)))
                 {
                     status = OdeStatus.StoppedByObserver;
                     finalState = (double[])st.Y.Clone();

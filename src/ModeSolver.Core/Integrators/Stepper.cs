@@ -49,6 +49,12 @@ internal abstract class Stepper
     /// <summary>Signed size of the last accepted step.</summary>
     public double HLast;
 
+    /// <summary>
+    /// f(T, Y) at the current accepted point where the method has computed it with the very arguments (T, Y) as part
+    /// of its step (first same as last), else empty.
+    /// </summary>
+    public virtual ReadOnlySpan<double> EndDerivative => ReadOnlySpan<double>.Empty;
+
     /// <summary>Sets the state and computes what the method needs to start (derivative, Jacobian, first step).</summary>
     public abstract void Start(double t, ReadOnlySpan<double> y, double hTrial);
 

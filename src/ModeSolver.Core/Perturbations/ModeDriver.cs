@@ -19,7 +19,7 @@ internal sealed class ModeDriver
     private double[] _k1 = new double[24];
     private readonly IOdeMethod _method;
     private readonly RightHandSide _rhs;
-    private readonly StepObserver _observer;
+    private readonly StepDerivativeObserver _observer;
     private readonly ModeContext _ctx = new();
     private readonly StartPolicy _start;
     private readonly BunchDaviesData _data = new();
@@ -119,7 +119,7 @@ internal sealed class ModeDriver
             AbsoluteToleranceVector = AbsoluteTolerances(rkTol, n0, scan),
             DenseOutput = false,
             MaxSteps = settings.MaxSteps,
-            Observer = _observer,
+            DerivativeObserver = _observer,
         };
         double n = DeepRegime(n0, options.RelativeTolerance, settings.MaxSteps);
         SnapshotTaken = false;
@@ -129,7 +129,9 @@ internal sealed class ModeDriver
             n = Segments(n, SnapshotN, options, k);
             if (!_freeze.Frozen)
             {
-                _snapshot = _y.AsSpan(0, _ctx.Layout.Dimension).ToArray();
+                int dim = _ctx.Layout.Dimension;
+                if (_snapshot.Length != dim) _snapshot = new double[dim];
+                _y.AsSpan(0, dim).CopyTo(_snapshot);
                 SnapshotTaken = true;
                 n = Segments(n, nEnd, options, k);
             }
@@ -310,8 +312,12 @@ internal sealed class ModeDriver
         }
     }
 
-    /// <summary>Step observer: after k/aH &lt;= stop depth, tests the freeze-out criterion (one extra right-hand side per test, counted).</summary>
-    private bool Observe(double n, ReadOnlySpan<double> y)
+    /// <summary>
+    /// Step observer: after k/aH &lt;= stop depth, tests the freeze-out criterion. The right-hand side at the step's end is
+    /// the method's first-same-as-last stage where it has one (<paramref name="dy"/>: the same call with the same
+    /// arguments, so the same bits), else one extra right-hand side per test (counted).
+    /// </summary>
+    private bool Observe(double n, ReadOnlySpan<double> y, ReadOnlySpan<double> dy)
     {
         _freeze.Track(n, y);
         if (n < _freeze.NStopCandidate) return false;
@@ -321,7 +327,8 @@ internal sealed class ModeDriver
         double x = Math.Exp(_ctx.LnK - n) / p.H;
         _scan ??= ScanFrom(bg, n);
         if (!_freeze.BackgroundAllows(n, x, _scan)) return false;
-        Rhs(n, _y, _k1);
+        if (dy.Length == y.Length) dy.CopyTo(_k1);
+        else Rhs(n, _y, _k1);
         if (!_freeze.TryFreeze(_y.AsSpan(0, y.Length), _k1.AsSpan(0, y.Length))) return false;
         _freeze.Frozen = true;
         return true;

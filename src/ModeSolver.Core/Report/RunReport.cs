@@ -45,6 +45,9 @@ public sealed record RunReport(
     /// <summary>The isocurvature of an n-field run (P_S, C_RS, cos Delta, beta_iso, T_RS at the pivot and per k); null for one field.</summary>
     public IsocurvatureResults? Isocurvature { get; init; }
 
+    /// <summary>The n-field trajectory kinematics and delta N at the pivot; null for one field.</summary>
+    public MultiFieldResults? MultiField { get; init; }
+
     /// <summary>Distance to the data, peak summary, induced GWs and black holes; null when the run computed none.</summary>
     public Observables.ObservablesReport? Observables { get; init; }
 
@@ -168,6 +171,18 @@ public static class RunReportChecks
             throw new ArgumentException($"run report: slow-roll spectra have {sr.K.Length} k values but the exact spectrum has {s.K.Length}");
         Same("table", ("k", report.Table.K), ("P_s", report.Table.Ps), ("P_t", report.Table.Pt));
         Increasing("table.k", report.Table.K);
+        if (report.Isocurvature is { } iso)
+            Same("isocurvature", ("k", iso.K), ("P_S", iso.Ps), ("C_RS", iso.Crs), ("cos_delta", iso.CosDelta), ("beta_iso", iso.BetaIso),
+                ("T_RS", iso.Trs), ("P_R_exit", iso.PrExit));
+        if (report.MultiField is { } mf)
+        {
+            var t = mf.Trajectory;
+            Same("trajectory", ("N", t.N), ("epsilon_1", t.Epsilon1), ("eta_perp", t.TurnRate), ("m_s2_over_H2", t.EntropicMass), ("R_fs", t.RicciScalar));
+            Increasing("trajectory.N", t.N);
+            if (t.FieldNames.IsDefault || t.Fields.IsDefault || t.Velocities.IsDefault
+                || t.Fields.Length != t.N.Length * t.FieldCount || t.Velocities.Length != t.N.Length * t.FieldCount)
+                throw new ArgumentException($"run report: trajectory fields and velocities must hold {t.N.Length} rows of {t.FieldCount} values");
+        }
         if (report.Flags.IsDefault) throw new ArgumentException("run report: flags array is default (use an empty array)");
         if (report.Warnings.IsDefault) throw new ArgumentException("run report: warnings array is default (use an empty array)");
         if (report.Settings.Entries.IsDefault) throw new ArgumentException("run report: settings array is default (use an empty array)");

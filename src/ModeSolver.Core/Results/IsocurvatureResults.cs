@@ -11,7 +11,7 @@ namespace ModeSolver.Results;
 /// <param name="K">Wavenumbers, 1/Mpc (those of the exact spectrum).</param>
 /// <param name="Ps">P_S per k.</param>
 /// <param name="Crs">C_RS per k (NaN for n &gt; 2).</param>
-/// <param name="CosDelta">cos Delta = C_RS / sqrt(P_R P_S) per k.</param>
+/// <param name="CosDelta">cos Delta = C_RS / sqrt(P_R P_S) per k; NaN where P_S is below (10 tol)^2 P_R (not resolved).</param>
 /// <param name="BetaIso">beta_iso = P_S / (P_R + P_S) per k.</param>
 /// <param name="Trs">T_RS per k, from P_R(end) = P_R(exit) (1 + T_RS^2).</param>
 /// <param name="PrExit">P_R at horizon exit per k (three e-folds after k = aH, de Sitter decay divided out).</param>
@@ -29,7 +29,7 @@ public sealed record IsocurvatureResults(
 /// <summary>The isocurvature at the pivot.</summary>
 /// <param name="Ps">P_S at k_*.</param>
 /// <param name="Crs">C_RS at k_* (NaN for n &gt; 2).</param>
-/// <param name="CosDelta">cos Delta at k_*.</param>
+/// <param name="CosDelta">cos Delta at k_*; NaN where P_S is not resolved (<paramref name="PsError"/> at least P_S).</param>
 /// <param name="BetaIso">beta_iso at k_*.</param>
 /// <param name="Trs">T_RS at k_* (not resolved below about 1e-2: see FieldModeIntegrator.ExitEFolds).</param>
 /// <param name="PrExit">P_R at the pivot's horizon exit.</param>

@@ -107,6 +107,9 @@ public static partial class TheoryRun
         if (bg.Fields.ContinuationNote is string stopped) warnings.Add(stopped);
         var served = new SpectrumSettings { KMin = kr.KMin * unit, KMax = kr.KMax * unit, Tolerance = kr.Tolerance };
         var (lo, hi) = SpectrumSolver.ServedRange(bg, served);
+        // n-field modes start deeper than single-field ones (FieldModeIntegrator.MinimumStartDepth).
+        var modeSettings = served.ModeSettings();
+        lo *= Perturbations.FieldModeIntegrator.StartDepthFor(modeSettings) / modeSettings.EffectiveStartDepth;
         if (request.KMinIsDefault && lo / unit * 1.0001 > kr.KMin && lo / unit * 1.0001 < kr.KMax)
         {
             double servedLo = lo / unit * 1.0001;
@@ -116,8 +119,8 @@ public static partial class TheoryRun
         }
         if (kr.KMin * unit < lo * (1 + 1e-12) || kr.KMax * unit > hi)
             throw new PhysicsException(string.Format(CultureInfo.InvariantCulture,
-                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves at tolerance {4:G3}, [{2:G4}, {3:G4}] /Mpc; narrow k_min/k_max, or start the fields further up the potential for smaller k",
-                kr.KMin, kr.KMax, lo / unit * 1.0001, hi / unit * 0.9999, kr.Tolerance));
+                "the k range [{0:G4}, {1:G4}] /Mpc is outside what this background serves at tolerance {4:G3}, [{2:G4}, {3:G4}] /Mpc (n-field modes start at least {5:G3} times inside the horizon after the background's start); narrow k_min/k_max, or start the fields further up the potential for smaller k",
+                kr.KMin, kr.KMax, lo / unit * 1.0001, hi / unit * 0.9999, kr.Tolerance, Perturbations.FieldModeIntegrator.MinimumStartDepth));
         var fs = FieldSpectrumSolver.Compute(bg, kr.KMin * unit, kr.KMax * unit, Math.Max(request.KCount, 5), kr.Tolerance, request.Threads);
         var spectrum = fs.Spectrum;
         Mark("modes");
@@ -171,6 +174,12 @@ public static partial class TheoryRun
             Mark("observables");
         }
 
+        request.Stage?.Invoke("delta N and trajectory");
+        var (multiField, multiFlags) = MultiFieldStage.Compute(bg.Fields, BackgroundSettingsFor(request), bg.Origin, m.NPivot, m.VScale,
+            background.WindowStart, exact.Ps, exact.Errors.As, m.KPivot);
+        flags = flags.AddRange(multiFlags);
+        Mark("delta N and trajectory");
+
         var iso = run.Isocurvature!;
         var modes = fs.Modes;
         ImmutableArray<double> Of(Func<Perturbations.FieldModeResult, double> get)
@@ -181,7 +190,7 @@ public static partial class TheoryRun
         }
         var isocurvature = new IsocurvatureResults(run.Theory.FieldCount,
             new IsocurvaturePivot(iso.Ps, iso.Crs, iso.CosDelta, iso.BetaIso, iso.Trs, iso.PrExit, iso.PsError),
-            Imm(kMpc), Of(x => x.Ps), Of(x => x.Crs), Of(x => x.CosDelta), Of(x => x.BetaIso), Of(x => x.Trs), Of(x => x.PrExit));
+            Imm(kMpc), Of(x => x.Ps), Of(x => x.Crs), Of(x => FieldIsocurvature.Resolved(x.Ps, x.Pr, kr.Tolerance) ? x.CosDelta : double.NaN), Of(x => x.BetaIso), Of(x => x.Trs), Of(x => x.PrExit));
 
         long rhs = 0;
         foreach (int r in spectrum.RhsEvaluations) rhs += r;
@@ -192,7 +201,7 @@ public static partial class TheoryRun
             ImmutableArray<ModelParameter>.Empty, TheoryFrame.Einstein);
         return new RunReport(model, ReportSettingsOf(request), pivotResults, pivotSlowRoll, background, spectrumSamples, srSpectra,
             table, flags, m.AmplitudeName, statistics, [.. warnings])
-        { Derived = derived, Observables = observables, Isocurvature = isocurvature };
+        { Derived = derived, Observables = observables, Isocurvature = isocurvature, MultiField = multiField };
     }
 
     /// <summary>T_reh, rho_end^(1/4) and r at 0.002 /Mpc of an n-field run (r from the spectrum when it covers 0.002 /Mpc).</summary>

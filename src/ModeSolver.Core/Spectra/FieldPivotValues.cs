@@ -13,8 +13,18 @@ namespace ModeSolver.Spectra;
 /// <param name="PsError">Estimated absolute error of P_S (twice the change against the tighter check plus the mode estimate).</param>
 public sealed record FieldIsocurvature(double Ps, double Crs, double CosDelta, double BetaIso, double Trs, double PrExit, double PsError)
 {
+    /// <summary>
+    /// The record of mode <paramref name="m"/>; cos Delta is NaN where P_S is not resolved (its error at least P_S: a
+    /// decayed isocurvature at the level of the integration error, whose correlation with R means nothing).
+    /// </summary>
     internal static FieldIsocurvature Of(in FieldModeResult m, double psError) =>
-        new(m.Ps, m.Crs, m.CosDelta, m.BetaIso, m.Trs, m.PrExit, psError);
+        new(m.Ps, m.Crs, psError < m.Ps ? m.CosDelta : double.NaN, m.BetaIso, m.Trs, m.PrExit, psError);
+
+    /// <summary>
+    /// True when P_S of a mode solved at <paramref name="tolerance"/> is resolved: above (10 tol)^2 P_R, the power an
+    /// absolute error of 10 tol in the carried Q (relative to its size) leaves in the normal direction.
+    /// </summary>
+    public static bool Resolved(double ps, double pr, double tolerance) => ps > 100.0 * tolerance * tolerance * pr;
 }
 
 /// <summary>Exact n-field observables at the pivot: the single-field set (<see cref="PivotValues"/>) and the isocurvature.</summary>
@@ -24,7 +34,7 @@ public static class FieldPivotValues
     /// The pivot values at k (background units of <paramref name="background"/>): P_R (as P_s), P_t, r from the
     /// centre mode; n_s - 1, alpha_s, n_t by <see cref="FieldSlopes"/> on five modes 0.2 apart in ln k. The modes run at
     /// min(tolerance, 1e-6)/100 (the differences divide the mode errors by h and h^2) and again 100x tighter (at least
-    /// 1e-11); each error is twice the change between the two plus the bound of <see cref="FieldSlopes"/> (indices) or
+    /// 1e-11) from 4x deeper starts (so the check sees the initial-data error too); each error is twice the change between the two plus the bound of <see cref="FieldSlopes"/> (indices) or
     /// the mode's own estimate (P). Ten n x n modes.
     /// </summary>
     public static (PivotValues Values, FieldIsocurvature Isocurvature) Compute(AdiabaticBackground background, double k, double tolerance = 1e-6)
@@ -32,8 +42,8 @@ public static class FieldPivotValues
         ArgumentNullException.ThrowIfNull(background);
         double tol = Math.Min(tolerance, 1e-6) * 0.01;
         var integrator = new FieldModeIntegrator(background);
-        var main = Stencil(integrator, background, k, tol, out int work);
-        var tight = Stencil(integrator, background, k, Math.Max(tol * 0.01, 1e-11), out _);
+        var main = Stencil(integrator, background, k, tol, null, out int work);
+        var tight = Stencil(integrator, background, k, Math.Max(tol * 0.01, 1e-11), main.Modes, out _);
         var m = main.Modes[2];
         var t = tight.Modes[2];
         double ns = 1.0 + main.Ns, nt = main.Nt, alpha = main.Alpha;
@@ -51,7 +61,8 @@ public static class FieldPivotValues
 
     private readonly record struct StencilResult(FieldModeResult[] Modes, double Ns, double NsError, double Alpha, double AlphaError, double Nt, double NtError);
 
-    private static StencilResult Stencil(FieldModeIntegrator integrator, AdiabaticBackground bg, double k, double tol, out int work)
+    /// <summary>The five modes; with <paramref name="checked"/>, each starts <see cref="FieldModeIntegrator.CheckDepthFactor"/> deeper than the mode it checks.</summary>
+    private static StencilResult Stencil(FieldModeIntegrator integrator, AdiabaticBackground bg, double k, double tol, FieldModeResult[]? @checked, out int work)
     {
         var settings = new ModeSettings { Tolerance = tol, Derivatives = false };
         var modes = new FieldModeResult[5];
@@ -60,7 +71,8 @@ public static class FieldPivotValues
         double h = FieldSlopes.Step;
         for (int j = 0; j < 5; j++)
         {
-            modes[j] = integrator.Solve(bg, k * Math.Exp((j - 2) * h), settings, transfer: j == 2);
+            var sj = @checked is null ? settings : settings with { StartDepth = FieldModeIntegrator.CheckDepth(bg, @checked[j].K, @checked[j].StartDepth), MaxSteps = 200_000 };
+            modes[j] = integrator.Solve(bg, k * Math.Exp((j - 2) * h), sj, transfer: j == 2);
             if (j == 2) work = modes[j].RhsEvaluations;
             lnR[j] = Math.Log(modes[j].Pr);
             lnT[j] = Math.Log(modes[j].Pt);

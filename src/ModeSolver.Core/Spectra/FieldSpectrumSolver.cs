@@ -1,7 +1,5 @@
-using System.Collections.Concurrent;
 using ModeSolver.Background;
 using ModeSolver.Perturbations;
-using ModeSolver.Physics;
 
 namespace ModeSolver.Spectra;
 
@@ -15,7 +13,8 @@ public sealed record FieldSpectrum(PrimordialSpectrum Spectrum, FieldModeResult[
 /// n-field spectra on a log-spaced k grid (no refinement): one n x n mode (with tensors) per k in parallel, bit-identical
 /// for any thread count. n_s and n_t are finite differences of ln P in ln k on the grid (5-point inside, 3-point
 /// one-sided at the two ends on each side), alpha_s the 3-point second difference, each with the error bound of
-/// <see cref="FieldSlopes"/>. Error checks: a few spread samples re-run 10x tighter; each sample's error is the larger
+/// <see cref="FieldSlopes"/>. Error checks: a few spread samples re-run 10x tighter from 4x deeper starts where the background allows
+/// (<see cref="FieldModeIntegrator.CheckDepth"/>; so that the initial-data error is measured too); each sample's error is the larger
 /// of its own estimate and twice the deviation at the nearest check.
 /// </summary>
 public static class FieldSpectrumSolver
@@ -43,7 +42,12 @@ public static class FieldSpectrumSolver
             checkIdx[c] = (int)Math.Round((double)c * (count - 1) / (ErrorChecks - 1));
             checkK[c] = ks[checkIdx[c]];
         }
-        var tight = SolveAll(background, checkK, settings with { Tolerance = tolerance * 0.1 }, threads);
+        var tight = new FieldModeResult[ErrorChecks];
+        for (int c = 0; c < ErrorChecks; c++)
+            tight[c] = SolveAll(background, [checkK[c]], settings with
+            {
+                Tolerance = tolerance * 0.1, StartDepth = FieldModeIntegrator.CheckDepth(background, checkK[c], modes[checkIdx[c]].StartDepth), MaxSteps = 200_000,
+            }, threads)[0];
         var dev = new double[ErrorChecks];
         for (int c = 0; c < ErrorChecks; c++)
         {
@@ -113,28 +117,7 @@ public static class FieldSpectrumSolver
 
     private static FieldModeResult[] SolveAll(AdiabaticBackground background, double[] ks, ModeSettings ms, int dop)
     {
-        var results = new FieldModeResult[ks.Length];
-        var options = new ParallelOptions { MaxDegreeOfParallelism = dop > 0 ? dop : Environment.ProcessorCount };
-        var exceptions = new ConcurrentQueue<(int Index, Exception Error)>();
         var scan = FrictionScan.FromStart(background);
-        Parallel.ForEach(Partitioner.Create(0, ks.Length, Math.Max(1, ks.Length / (4 * options.MaxDegreeOfParallelism))), options,
-            () => new FieldModeIntegrator(background),
-            (range, _, integrator) =>
-            {
-                for (int i = range.Item1; i < range.Item2; i++)
-                {
-                    try { results[i] = integrator.Solve(background, ks[i], ms, transfer: true, scan); }
-                    catch (Exception e) { exceptions.Enqueue((i, e)); }
-                }
-                return integrator;
-            },
-            _ => { });
-        if (!exceptions.IsEmpty)
-        {
-            var first = exceptions.OrderBy(x => x.Index).First().Error;
-            if (first is PhysicsException) throw first;
-            throw new PhysicsException($"mode k = {ks[exceptions.Min(x => x.Index)]:G6} failed: {first.Message}", first);
-        }
-        return results;
+        return ParallelModes.Solve(ks, dop, () => new FieldModeIntegrator(background), (integrator, k) => integrator.Solve(background, k, ms, transfer: true, scan));
     }
 }

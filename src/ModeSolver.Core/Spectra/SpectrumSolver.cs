@@ -1,4 +1,3 @@
-using System.Collections.Concurrent;
 using ModeSolver.Background;
 using ModeSolver.Perturbations;
 using ModeSolver.Physics;
@@ -141,31 +140,7 @@ public static class SpectrumSolver
     }
 
     private static List<ModeResult> SolveAll(IBackground background, double[] ks, ModeSettings ms, FrictionScan scan, int dop)
-    {
-        var results = new ModeResult[ks.Length];
-        var options = new ParallelOptions { MaxDegreeOfParallelism = dop > 0 ? dop : Environment.ProcessorCount };
-        var exceptions = new ConcurrentQueue<(int Index, Exception Error)>();
-        Parallel.ForEach(Partitioner.Create(0, ks.Length, Math.Max(1, ks.Length / (4 * options.MaxDegreeOfParallelism))), options,
-            () => new ModeIntegrator(),
-            (range, _, integrator) =>
-            {
-                for (int i = range.Item1; i < range.Item2; i++)
-                {
-                    try { results[i] = integrator.Solve(background, ks[i], ms, scan); }
-                    catch (Exception e) { exceptions.Enqueue((i, e)); }
-                }
-                return integrator;
-            },
-            _ => { });
-        if (!exceptions.IsEmpty)
-        {
-            // Report the failure at the smallest k, whatever the thread schedule.
-            var first = exceptions.OrderBy(x => x.Index).First().Error;
-            if (first is PhysicsException) throw first;
-            throw new PhysicsException($"mode k = {ks[exceptions.Min(x => x.Index)]:G6} failed: {first.Message}", first);
-        }
-        return new List<ModeResult>(results);
-    }
+        => new(ParallelModes.Solve(ks, dop, () => new ModeIntegrator(), (integrator, k) => integrator.Solve(background, k, ms, scan)));
 
     private static PrimordialSpectrum Assemble(List<ModeResult> s, double[] ownDev, double[] spreadK, double[] spreadDev,
         double[] checkK, double[] checkDev, double tol)

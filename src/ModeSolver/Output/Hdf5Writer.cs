@@ -25,6 +25,8 @@ namespace ModeSolver.Output;
 /// <item>/flags: kind, quantity, message, where (string arrays), lower, upper, exact, slow_roll, difference; attribute count.</item>
 /// <item>/statistics: attributes wall_seconds, modes, rhs_evaluations, workers; datasets stage (strings) and stage_seconds.</item>
 /// <item>/observables (when computed): data_distance, peak, induced_gw (Omega_GW h^2 against f), pbh (beta and f_PBH against M); see ObservablesHdf5.</item>
+/// <item>/multifield (n-field runs): trajectory (fields, velocities, eta_perp, m_s^2/H^2, R_fs against N) and delta_N;
+/// /isocurvature: P_S, C_RS, cos_delta, beta_iso, T_RS against k and the spectra matrix; see MultiFieldHdf5.</item>
 /// </list>
 /// NaN stays NaN in HDF5 (it is a valid IEEE value there).
 /// </summary>
@@ -194,6 +196,7 @@ public static class Hdf5Writer
         stats.Attributes["workers"] = st.Workers;
         file["statistics"] = stats;
         ObservablesHdf5.Add(file, report.Observables);
+        MultiFieldHdf5.Add(file, report);
         return file;
     }
 

@@ -40,6 +40,27 @@ public static class RunOutputs
     /// <summary>black-holes.svg.</summary>
     public static OutputFile PbhSvg { get; } = new("black-holes.svg", (r, p) => ObservablesPlots.SavePbh(r, p, PlotFormat.Svg));
 
+    /// <summary>trajectory.png: the two-field trajectory over contours of ln V.</summary>
+    public static OutputFile TrajectoryPng { get; } = new("trajectory.png", (r, p) => MultiFieldPlots.SaveTrajectory(r, p, PlotFormat.Png));
+
+    /// <summary>trajectory.svg.</summary>
+    public static OutputFile TrajectorySvg { get; } = new("trajectory.svg", (r, p) => MultiFieldPlots.SaveTrajectory(r, p, PlotFormat.Svg));
+
+    /// <summary>turn-rate.png: eta_perp and m_s^2/H^2 against N.</summary>
+    public static OutputFile TurnRatePng { get; } = new("turn-rate.png", (r, p) => MultiFieldPlots.SaveKinematics(r, p, PlotFormat.Png));
+
+    /// <summary>turn-rate.svg.</summary>
+    public static OutputFile TurnRateSvg { get; } = new("turn-rate.svg", (r, p) => MultiFieldPlots.SaveKinematics(r, p, PlotFormat.Svg));
+
+    /// <summary>The n-field plots of a run with this many fields: none for one field, the field-space plot for two, the turn-rate plot for two or more.</summary>
+    public static IReadOnlyList<OutputFile> FieldPlots(int fieldCount)
+    {
+        var list = new List<OutputFile>();
+        if (fieldCount == 2) list.AddRange([TrajectoryPng, TrajectorySvg]);
+        if (fieldCount >= 2) list.AddRange([TurnRatePng, TurnRateSvg]);
+        return list;
+    }
+
     /// <summary>The observables' plots a run with these settings writes (none unless induced GWs or black holes are on).</summary>
     public static IReadOnlyList<OutputFile> ObservablePlots(Observables.ObservablesSettings settings)
     {

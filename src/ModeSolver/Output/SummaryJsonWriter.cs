@@ -74,6 +74,7 @@ public static class SummaryJsonWriter
         w.WriteString("amplitude_method", r.AmplitudeMethod);
         WriteDerived(w, r.Derived);
         ObservablesJson.Write(w, r.Observables);
+        MultiFieldJson.Write(w, r);
 
         w.WriteStartObject("slow_roll");
         Estimate(w, "first_order", r.SlowRoll.FirstOrder);

@@ -14,7 +14,8 @@ public class FormulaGeneratedCodeTests
 {
     private static string R(double x) => x.ToString("R", CultureInfo.InvariantCulture);
 
-    private static void Same(double expected, double actual, string what)
+    /// <summary>Fails unless the interpreter's and the generated code's values have the same bits (any NaN matches any NaN).</summary>
+    internal static void Same(double expected, double actual, string what)
     {
         if (BitConverter.DoubleToInt64Bits(expected) == BitConverter.DoubleToInt64Bits(actual)) return;
         if (double.IsNaN(expected) && double.IsNaN(actual)) return;
@@ -70,13 +71,19 @@ public class FormulaGeneratedCodeTests
         Assert.True(generated >= checkedFormulas / 2, $"only {generated} of {checkedFormulas} catalogue formulas ran generated code");
     }
 
-    /// <summary>Every operation of the language, including the switching ones, with ties and zeros likely.</summary>
-    private static Gen<string> AllOps(int depth)
+    /// <summary>
+    /// Every operation of the language, including the switching ones, with ties and zeros likely; leaves are the
+    /// <paramref name="variables"/> (default phi; phi must be among them, the piecewise templates use it), a, and numbers.
+    /// </summary>
+    internal static Gen<string> AllOps(int depth, params string[] variables)
     {
-        var leaf = Gen.OneOf(Gen.Const("phi"), Gen.Const("a"), Gen.Const("0"), Gen.Const("1"), Gen.Const("pi"),
-            Gen.Int[-3, 6].Select(i => i.ToString(CultureInfo.InvariantCulture)), Gen.Double[-3, 3].Select(R));
+        if (variables.Length == 0) variables = ["phi"];
+        var leaves = new List<Gen<string>> { Gen.Const("a"), Gen.Const("0"), Gen.Const("1"), Gen.Const("pi"),
+            Gen.Int[-3, 6].Select(i => i.ToString(CultureInfo.InvariantCulture)), Gen.Double[-3, 3].Select(R) };
+        foreach (string v in variables) leaves.Add(Gen.Const(v));
+        var leaf = Gen.OneOf(leaves.ToArray());
         if (depth == 0) return leaf;
-        var sub = AllOps(depth - 1);
+        var sub = AllOps(depth - 1, variables);
         var unary = Gen.Select(sub, Gen.Int[0, 25], (x, k) => k switch
         {
             0 => $"-({x})",

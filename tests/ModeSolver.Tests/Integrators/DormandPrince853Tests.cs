@@ -141,6 +141,41 @@ public class DormandPrince853Tests
     }
 
     [Fact]
+    public void DerivativeObserverGetsTheLastStageBitForBitAndCanStop()
+    {
+        // DOP853's first-same-as-last stage is f(t, y) at the accepted step's end: the same bits as calling f again.
+        var p = new OdeProblem(TestProblems.Oscillator, 0.0, new[] { 1.0, 0.0 }, 50.0);
+        int calls = 0, mismatches = 0;
+        var again = new double[2];
+        var sol = new DormandPrince853().Solve(p, new OdeOptions
+        {
+            DenseOutput = false,
+            DerivativeObserver = (t, y, dydt) =>
+            {
+                calls++;
+                TestProblems.Oscillator(t, y, again);
+                if (dydt.Length != 2 || BitConverter.DoubleToInt64Bits(dydt[0]) != BitConverter.DoubleToInt64Bits(again[0])
+                    || BitConverter.DoubleToInt64Bits(dydt[1]) != BitConverter.DoubleToInt64Bits(again[1])) mismatches++;
+                return t > 10.0;
+            },
+        });
+        Assert.Equal(OdeStatus.StoppedByObserver, sol.Status);
+        Assert.Equal(calls, sol.Statistics.AcceptedSteps);
+        Assert.Equal(0, mismatches);
+        Assert.True(sol.TFinal > 10.0 && sol.TFinal < 50.0);
+    }
+
+    [Fact]
+    public void DerivativeObserverGetsNoDerivativeFromRadau()
+    {
+        var p = new OdeProblem(TestProblems.Oscillator, 0.0, new[] { 1.0, 0.0 }, 5.0);
+        int calls = 0, nonEmpty = 0;
+        new RadauIIA5().Solve(p, new OdeOptions { DerivativeObserver = (t, y, dydt) => { calls++; if (!dydt.IsEmpty) nonEmpty++; return false; } });
+        Assert.True(calls > 0);
+        Assert.Equal(0, nonEmpty);
+    }
+
+    [Fact]
     public void NaNRightHandSideIsReportedWithTimeAndState()
     {
         // f becomes NaN for t > 1 (as sqrt of a negative number would).

@@ -57,6 +57,26 @@ public class FieldModeTests(ITestOutputHelper output)
         Assert.Equal(1.0, field.Pr / single.Ps, 1e-6);
         Assert.Equal(1.0, field.Pt / single.Pt, 1e-6);
         Assert.True(Math.Abs(field.CosDelta) < 1e-6, $"cos Delta = {field.CosDelta}");
+        // No conversion after exit: T_RS = 0 to its resolution (FieldModeIntegrator.ExitEFolds: about 1e-2).
+        Assert.True(field.Trs < 2e-2, $"T_RS = {field.Trs}");
+    }
+
+    [Fact]
+    public void ThreeEqualMasses_RadialStart_EqualSingleFieldQuadratic()
+    {
+        // The same oracle with n = 3 (physics.md 7): V = m^2 |phi|^2/2 from a radial start at |phi| = 15.
+        var theory = new MetricFieldTheory(new[] { "a", "b", "c" }, p => 0.5 * (p[0] * p[0] + p[1] * p[1] + p[2] * p[2]),
+            gradient: (p, g) => { g[0] = p[0]; g[1] = p[1]; g[2] = p[2]; },
+            hessian: (p, h) => { h.Clear(); h[0] = h[4] = h[8] = 1; });
+        var three = AdiabaticBackground.Of(FieldBackgroundSolver.Solve(theory, Start([10.0, 10.0, 5.0])));
+        var one = BackgroundSolver.Solve(new Quadratic(), new BackgroundSettings { Phi0 = 15.0, Tolerance = 1e-12, EFoldsAfterEnd = 0 });
+        double k = KAt(one, 20);
+        var single = new ModeIntegrator().Solve(one, k, Tight with { Derivatives = true });
+        var field = new FieldModeIntegrator(three).Solve(three, k, Tight);
+        output.WriteLine($"P single {single.Ps:R} three-field {field.Pr:R} rel {field.Pr / single.Ps - 1:E3}; P_S {field.Ps:E4}; C_RS {field.Crs}");
+        Assert.Equal(1.0, field.Pr / single.Ps, 1e-6);
+        Assert.True(double.IsNaN(field.Crs), "C_RS is defined for two fields only");
+        Assert.True(field.Ps > 0);
     }
 
     [Fact]
@@ -76,6 +96,7 @@ public class FieldModeTests(ITestOutputHelper output)
         Assert.Equal(1.0, ip.Ps / ic.Ps, 1e-6);
         Assert.Equal(ic.Crs / Math.Sqrt(ic.Ps * vc.Ps), ip.Crs / Math.Sqrt(ip.Ps * vp.Ps), 1e-6);
         Assert.Equal(vc.Ns, vp.Ns, 1e-6);
+        Assert.Equal(ic.Trs, ip.Trs, 1e-6);
         Assert.True(ic.Ps > 1e-3 * vc.Ps && Math.Abs(ic.CosDelta) > 1e-3, "the test needs a real, correlated isocurvature");
     }
 

@@ -36,6 +36,10 @@ public class FieldTheoryRunTests(ITestOutputHelper output)
         Assert.Equal(9, iso.Ps.Length);
         Assert.Equal(2, iso.FieldCount);
         Assert.True(iso.Pivot.Ps > 0 && iso.Pivot.BetaIso is > 0 and < 1);
+        // The light field has converted its isocurvature (T_RS of order one) and what is left at the end is at the level
+        // of the integration error: its correlation with R is not reported.
+        Assert.True(iso.Pivot.Trs > 0.1, $"T_RS = {iso.Pivot.Trs}");
+        Assert.True(iso.Pivot.PsError >= iso.Pivot.Ps && double.IsNaN(iso.Pivot.CosDelta));
         Assert.Contains(report.Settings.Entries, e => e.Key == "start.phi0" && e.Value == "[14, 12]");
     }
 }
