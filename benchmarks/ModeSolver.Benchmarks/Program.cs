@@ -15,6 +15,7 @@ using ModeSolver.Pipeline;
 // `--multi-times [ROUNDS]`: the same for two-field MultiFormulas (value, orders 2 and 3).
 // `--counts`: the deterministic work counts of ModeBenchmarks (right-hand sides of the quadratic pivot mode at 1e-6,
 // and per mode of its 200-mode spectrum), without timing.
+// `--fnl-speed [DECK] [REPS]`: equilateral f_NL at the pivot and a 200-point equilateral curve on 1 and 2 threads (docs/speed.md).
 // Anything else: the BenchmarkDotNet switcher, e.g. `--filter '*' --job short`.
 if (args.Length >= 1 && args[0] == "--interpreter-times")
 {
@@ -34,6 +35,11 @@ if (args.Length >= 1 && args[0] == "--counts")
 if (args.Length >= 2 && args[0] == "--resonant-depths")
 {
     ModeSolver.Benchmarks.Perturbations.ResonantDepthWork.Run(args);
+    return;
+}
+if (args.Length >= 1 && args[0] == "--fnl-speed")
+{
+    ModeSolver.Benchmarks.Bispectrum.BispectrumSpeed.Run(args);
     return;
 }
 if (args.Length >= 1 && args[0] == "--error-honesty")

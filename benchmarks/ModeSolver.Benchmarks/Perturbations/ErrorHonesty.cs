@@ -52,7 +52,7 @@ public static class ErrorHonesty
         foreach (var (k, v) in merged.Parameters) i.Parameters[k] = v;
     }
 
-    private static string FindRoot()
+    internal static string FindRoot()
     {
         var d = new DirectoryInfo(AppContext.BaseDirectory);
         while (d is not null && !File.Exists(Path.Combine(d.FullName, "ModeSolver.sln"))) d = d.Parent;

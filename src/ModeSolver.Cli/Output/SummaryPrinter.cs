@@ -86,6 +86,24 @@ public static class SummaryPrinter
         info.AddRow("RHS evals / mode", Num(p.RhsEvaluationsPerMode, "0"), "");
         console.Write(info);
         ObservablesPrinter.Print(console, plain, report.Observables);
+        if (report.Bispectrum is { } b)
+        {
+            Line(console, plain, string.Create(CultureInfo.InvariantCulture,
+                $"bispectrum at k_* = {b.KPivot:G4} /Mpc: f_NL equilateral = {b.Equilateral.FNL:G5} +- {b.Equilateral.Error:G2} (slow roll {b.Equilateral.SlowRoll:G5}), squeezed (k3/k1 = {b.SqueezedRatio:G3}) = {b.Squeezed.FNL:G5} +- {b.Squeezed.Error:G2} (consistency (5/12)(1 - n_s) = {b.Squeezed.SlowRoll:G5})"), null);
+            for (int i = 0; i < b.Triangles.Length && i < 10; i++)
+            {
+                var t = b.Triangles[i];
+                Line(console, plain, string.Create(CultureInfo.InvariantCulture, $"  triangle ({t.K1:G4}, {t.K2:G4}, {t.K3:G4}) /Mpc: f_NL = {t.FNL:G5} +- {t.Error:G2}"), null);
+            }
+            if (b.Triangles.Length > 10) Line(console, plain, $"  ... {b.Triangles.Length - 10} more triangles in summary.json", null);
+            if (b.Curve.K.Length > 0)
+            {
+                double lo = double.PositiveInfinity, hi = double.NegativeInfinity;
+                foreach (double f in b.Curve.FNL) { lo = Math.Min(lo, f); hi = Math.Max(hi, f); }
+                Line(console, plain, string.Create(CultureInfo.InvariantCulture,
+                    $"  equilateral f_NL(k): {b.Curve.K.Length} points over k = {b.Curve.K[0]:G3} .. {b.Curve.K[^1]:G3} /Mpc, f_NL from {lo:G4} to {hi:G4}"), null);
+            }
+        }
         MultiFieldPrinter.Print(console, plain, report);
 
         // Flags and warnings: one line each. Plain output bypasses Spectre's wrapping so a line is never split.

@@ -51,6 +51,9 @@ public sealed record RunReport(
     /// <summary>Distance to the data, peak summary, induced GWs and black holes; null when the run computed none.</summary>
     public Observables.ObservablesReport? Observables { get; init; }
 
+    /// <summary>f_NL at the pivot, the equilateral curve and the shape grid; null when the run computed no bispectrum.</summary>
+    public Bispectrum.BispectrumReport? Bispectrum { get; init; }
+
     /// <summary>Generator name and version written into every file; defaults to this assembly's informational version.</summary>
     public string Generator { get; init; } = DefaultGenerator;
 

@@ -93,4 +93,7 @@ public sealed record RunRequest
 
     /// <summary>Called with a short stage name as the run progresses (for progress displays).</summary>
     public Action<string>? Stage { get; init; }
+
+    /// <summary>The bispectrum stage, or null to skip it.</summary>
+    public Bispectrum.BispectrumRequest? Bispectrum { get; init; }
 }

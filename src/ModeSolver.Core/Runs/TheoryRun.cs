@@ -229,6 +229,15 @@ public static partial class TheoryRun
             Mark("observables");
         }
 
+        Bispectrum.BispectrumReport? bispectrum = null;
+        if (request.Bispectrum is { } bispectrumRequest)
+        {
+            request.Stage?.Invoke("bispectrum");
+            bispectrum = Bispectrum.BispectrumStage.Run(pivot, exact.Ns, kr.KMin, kr.KMax, bispectrumRequest, request.Threads > 0 ? request.Threads : Environment.ProcessorCount);
+            warnings.AddRange(bispectrum.Flags);
+            Mark("bispectrum");
+        }
+
         long rhs = 0;
         foreach (int r in spectrum.RhsEvaluations) rhs += r;
         var statistics = new RunStatistics(clock.Elapsed.TotalSeconds, stages.ToImmutable(), m, rhs,
@@ -236,7 +245,7 @@ public static partial class TheoryRun
 
         return new RunReport(ModelInfoOf(run.Theory), ReportSettingsOf(request), pivotResults,
             pivotSlowRoll, background, spectrumSamples, srSpectra, table, flags, pivot.AmplitudeName, statistics,
-            [.. warnings]) { Derived = derived, Observables = observables };
+            [.. warnings]) { Derived = derived, Observables = observables, Bispectrum = bispectrum };
     }
 
     /// <summary>

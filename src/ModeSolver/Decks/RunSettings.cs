@@ -27,6 +27,9 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>The numbers of the settings as given or defaulted, checked by the schema's validators (<see cref="SettingValues"/>).</summary>
     public SettingValues Values { get; init; } = SettingValues.Empty;
 
+    /// <summary>The `[bispectrum] triangles` in canonical text "k1:k2:k3,..." (1/Mpc; <see cref="TriangleList"/>), or null.</summary>
+    public string? BispectrumTriangles { get; init; }
+
     /// <summary>Thresholds of the slow-roll disagreement flags (deck table [flags]).</summary>
     public Diagnostics.FlagSettings Flags { get; init; } = Diagnostics.FlagSettings.Default;
 

@@ -247,6 +247,7 @@ public static partial class SettingsResolver
             // Every number of the schema checked (the ones above were checked where they are used, so this pass adds
             // no new message for them) and kept for the stage that reads it.
             Values = SettingValues.From(input),
+            BispectrumTriangles = input.GetValue(SettingsSchema.Get("bispectrum.triangles")) is Located<IReadOnlyList<string>> tl ? TriangleList.Canonical(tl) : null,
         };
         if (multi) CheckFieldTheory(settings, input, entry, phi0Values);
         else CheckTheory(settings, input, entry, OneValue(phi0Values, variable));

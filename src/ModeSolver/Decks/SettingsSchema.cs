@@ -139,6 +139,28 @@ public static class SettingsSchema
             Check = v => v >= 0.2 && v <= 2 ? null : $"is the dimensionless Hubble parameter h and must lie in [0.2, 2] (got {v})",
             ReportRank = 280, ReportNumber = true, Report = s => Opt(s.Output.TableH) },
 
+        new() { Path = "bispectrum.equilateral", Option = "--fnl-equilateral", Kind = SettingKind.Whole, Default = "0 (off)", SpectrumOnly = true,
+            Doc = "points of the equilateral f_NL(k) curve across the k range, 0 to 2000; any bispectrum key turns on f_NL at the pivot (equilateral and squeezed)",
+            Check = v => v >= 0 && v <= 2000 ? null : $"must be a whole number from 0 to 2000 (got {v})", ReportRank = 281 },
+        new() { Path = "bispectrum.squeezed_ratio", Option = "--fnl-squeezed-ratio", Kind = SettingKind.Number, Default = "0.01", SpectrumOnly = true,
+            Doc = "k3/k1 of the squeezed triangle (k_*, k_*, ratio k_*), in [0.001, 0.5]",
+            Check = v => v >= 1e-3 && v <= 0.5 ? null : $"must lie in [0.001, 0.5] (got {v})", ReportRank = 282 },
+        new() { Path = "bispectrum.shape_grid", Option = "--fnl-shape-grid", Kind = SettingKind.Whole, Default = "0 (off)", SpectrumOnly = true,
+            Doc = "points per side of the f_NL shape grid over (k2/k1, k3/k1) at k1 = k_*, 0 or 3 to 60",
+            Check = v => v == 0 || (v >= 3 && v <= 60) ? null : $"must be 0 or a whole number from 3 to 60 (got {v})", ReportRank = 283 },
+        new() { Path = "bispectrum.flag_threshold", Option = "--fnl-flag-threshold", Kind = SettingKind.Number, Default = "0.05", SpectrumOnly = true,
+            Doc = "flag f_NL values that leave slow roll by more than this (absolute, beyond their error estimate)",
+            Check = v => v > 0 && double.IsFinite(v) ? null : $"must be a finite positive number (got {v})", ReportRank = 284 },
+        new() { Path = "bispectrum.tolerance", Option = "--fnl-tolerance", Kind = SettingKind.Number, Default = "1e-7", SpectrumOnly = true,
+            Doc = "relative accuracy of the mode histories of the in-in integral, in [1e-10, 1e-4]",
+            Check = v => v >= 1e-10 && v <= 1e-4 ? null : $"must lie in [1e-10, 1e-4] (got {v})", ReportRank = 285 },
+        new() { Path = "bispectrum.triangles", Option = "--fnl-triangles", Kind = SettingKind.List, Default = "none", SpectrumOnly = true,
+            Doc = "f_NL at these triangles, each \"k1:k2:k3\" in 1/Mpc (e.g. [\"0.05:0.05:0.01\"]; comma-separated on the command line), at most 1000",
+            ReportRank = 287, Report = s => s.BispectrumTriangles },
+        new() { Path = "bispectrum.start_depth", Option = "--fnl-start-depth", Kind = SettingKind.Number, Default = "50", SpectrumOnly = true,
+            Doc = "K/aH (K = k1 + k2 + k3) where the numerical in-in integral starts, in [10, 10000]; earlier times are the analytic kappa -> 0 limit of the damping exp(-kappa K/aH)",
+            Check = v => v >= 10 && v <= 1e4 ? null : $"must lie in [10, 10000] (got {v})", ReportRank = 286 },
+
         .. FlagThresholds.Select(f => new SettingDef
         {
             Path = "flags." + f.Key, Option = "--flag-" + f.Key.Replace('_', '-'), Kind = SettingKind.Number, Family = SettingFamily.Flag,

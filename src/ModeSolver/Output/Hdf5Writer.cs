@@ -25,6 +25,7 @@ namespace ModeSolver.Output;
 /// <item>/flags: kind, quantity, message, where (string arrays), lower, upper, exact, slow_roll, difference; attribute count.</item>
 /// <item>/statistics: attributes wall_seconds, modes, rhs_evaluations, workers; datasets stage (strings) and stage_seconds.</item>
 /// <item>/observables (when computed): data_distance, peak, induced_gw (Omega_GW h^2 against f), pbh (beta and f_PBH against M); see ObservablesHdf5.</item>
+/// <item>/bispectrum (when computed): f_NL at the pivot as attributes, the equilateral curve and the shape grid; see BispectrumOutputs.</item>
 /// <item>/multifield (n-field runs): trajectory (fields, velocities, eta_perp, m_s^2/H^2, R_fs against N) and delta_N;
 /// /isocurvature: P_S, C_RS, cos_delta, beta_iso, T_RS against k and the spectra matrix; see MultiFieldHdf5.</item>
 /// </list>
@@ -196,6 +197,7 @@ public static class Hdf5Writer
         stats.Attributes["workers"] = st.Workers;
         file["statistics"] = stats;
         ObservablesHdf5.Add(file, report.Observables);
+        BispectrumOutputs.AddHdf5(file, report.Bispectrum);
         MultiFieldHdf5.Add(file, report);
         return file;
     }

@@ -40,6 +40,28 @@ public static class RunOutputs
     /// <summary>black-holes.svg.</summary>
     public static OutputFile PbhSvg { get; } = new("black-holes.svg", (r, p) => ObservablesPlots.SavePbh(r, p, PlotFormat.Svg));
 
+    /// <summary>fnl.png: P_s(k) above the equilateral f_NL(k).</summary>
+    public static OutputFile FnlPng { get; } = new("fnl.png", (r, p) => BispectrumPlots.SaveCurve(r, p, PlotFormat.Png));
+
+    /// <summary>fnl.svg.</summary>
+    public static OutputFile FnlSvg { get; } = new("fnl.svg", (r, p) => BispectrumPlots.SaveCurve(r, p, PlotFormat.Svg));
+
+    /// <summary>fnl-shape.png: f_NL over (k2/k1, k3/k1).</summary>
+    public static OutputFile FnlShapePng { get; } = new("fnl-shape.png", (r, p) => BispectrumPlots.SaveShape(r, p, PlotFormat.Png));
+
+    /// <summary>fnl-shape.svg.</summary>
+    public static OutputFile FnlShapeSvg { get; } = new("fnl-shape.svg", (r, p) => BispectrumPlots.SaveShape(r, p, PlotFormat.Svg));
+
+    /// <summary>The bispectrum plots a run with this request writes (none without a bispectrum; the shape only with a grid).</summary>
+    public static IReadOnlyList<OutputFile> BispectrumFiles(Bispectrum.BispectrumRequest? request)
+    {
+        var list = new List<OutputFile>();
+        if (request is null) return list;
+        list.AddRange([FnlPng, FnlSvg]);
+        if (request.ShapeGrid > 0) list.AddRange([FnlShapePng, FnlShapeSvg]);
+        return list;
+    }
+
     /// <summary>trajectory.png: the two-field trajectory over contours of ln V.</summary>
     public static OutputFile TrajectoryPng { get; } = new("trajectory.png", (r, p) => MultiFieldPlots.SaveTrajectory(r, p, PlotFormat.Png));
 

@@ -387,7 +387,7 @@ public static class RunPlots
         return ticks;
     }
 
-    private static void SaveStackedPng(string path, Plot top, int hTop, Plot bottom, int hBottom)
+    internal static void SaveStackedPng(string path, Plot top, int hTop, Plot bottom, int hBottom)
     {
         // Each panel is rendered on its own (a plot render clears the whole canvas it is given), then composed.
         var info = new SKImageInfo(Width, hTop + hBottom);
@@ -406,7 +406,7 @@ public static class RunPlots
     }
 
     /// <summary>Two SVG plots stacked into one SVG document (nested svg elements, ids of the second prefixed).</summary>
-    private static string StackedSvg(Plot top, int hTop, Plot bottom, int hBottom)
+    internal static string StackedSvg(Plot top, int hTop, Plot bottom, int hBottom)
     {
         string a = InnerSvg(top.GetSvgXml(Width, hTop), 0, "p1-");
         string b = InnerSvg(bottom.GetSvgXml(Width, hBottom), hTop, "p2-");

@@ -74,6 +74,7 @@ public static class SummaryJsonWriter
         w.WriteString("amplitude_method", r.AmplitudeMethod);
         WriteDerived(w, r.Derived);
         ObservablesJson.Write(w, r.Observables);
+        BispectrumOutputs.WriteJson(w, r.Bispectrum);
         MultiFieldJson.Write(w, r);
 
         w.WriteStartObject("slow_roll");

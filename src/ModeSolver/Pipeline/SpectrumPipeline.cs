@@ -2,6 +2,7 @@ using System.Collections.Immutable;
 using System.Diagnostics;
 using System.Globalization;
 using ModeSolver.Background;
+using ModeSolver.Bispectrum;
 using ModeSolver.Decks;
 using ModeSolver.Diagnostics;
 using ModeSolver.Matching;
@@ -148,12 +149,34 @@ public static class SpectrumPipeline
             KMinIsDefault = kr.KMinIsDefault,
             Flags = options.Flags ?? settings.Flags,
             Observables = settings.Observables,
+            Bispectrum = BispectrumRequestFor(settings),
             TableH = settings.Output.TableH,
             Threads = options.Threads,
             BackgroundSamples = options.BackgroundSamples,
             TablePointsPerDecade = options.TablePointsPerDecade,
             Warnings = settings.Warnings,
             Stage = options.Stage,
+        };
+    }
+
+    /// <summary>The bispectrum stage the settings ask for: on when any key of [bispectrum] was given; null otherwise.</summary>
+    public static BispectrumRequest? BispectrumRequestFor(RunSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        var v = settings.Values;
+        double? points = v.Number("bispectrum.equilateral"), ratio = v.Number("bispectrum.squeezed_ratio"), grid = v.Number("bispectrum.shape_grid"),
+            flag = v.Number("bispectrum.flag_threshold"), tol = v.Number("bispectrum.tolerance"), start = v.Number("bispectrum.start_depth");
+        var triangles = TriangleList.Parse(settings.BispectrumTriangles);
+        if (points is null && ratio is null && grid is null && flag is null && tol is null && start is null && triangles.Count == 0) return null;
+        var defaults = new BispectrumRequest();
+        return new BispectrumRequest
+        {
+            EquilateralPoints = (int)(points ?? 0),
+            SqueezedRatio = ratio ?? defaults.SqueezedRatio,
+            ShapeGrid = (int)(grid ?? 0),
+            FlagThreshold = flag ?? defaults.FlagThreshold,
+            Triangles = [.. triangles.Select(t => new Triangle(t.K1, t.K2, t.K3))],
+            Numerics = defaults.Numerics with { Tolerance = tol ?? defaults.Numerics.Tolerance, StartDepth = start ?? defaults.Numerics.StartDepth },
         };
     }
 

@@ -184,6 +184,14 @@ public class SettingsSchemaTests
             [reheating]
             efolds = 5
             w = 0.2
+            [bispectrum]
+            equilateral = 10
+            squeezed_ratio = 0.02
+            shape_grid = 5
+            flag_threshold = 0.1
+            tolerance = 1e-6
+            start_depth = 60
+            triangles = ["0.05:0.04:0.03"]
             """,
             "[model]\ncatalogue = \"monomial\"\n[pivot]\nefolds = 55\n",
             "[model]\nfields = [\"phi\", \"chi\"]\npotential = \"phi^2 + chi^2\"\nmetric = [[\"1\", \"0\"], [\"0\", \"exp(phi)\"]]\nend = \"chi - 0.1\"\n[start]\nphi0 = [10.0, 1.0]\ndphi0 = [-0.1, 0.0]\n",

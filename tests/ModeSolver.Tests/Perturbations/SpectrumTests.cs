@@ -18,9 +18,10 @@ public class SpectrumTests
             Phi0 = phi0, PhiEnd = phiEnd, Tolerance = 1e-12, InflationMethod = new DormandPrince853(),
         });
 
-    private static readonly Lazy<BackgroundSolution> QuadraticBackground = new(() => Solve(new Quadratic(1e-10), 17.5));
+    internal static readonly Lazy<BackgroundSolution> QuadraticBackground = new(() => Solve(new Quadratic(1e-10), 17.5));
 
-    private static double PivotK(BackgroundSolution bg, double efoldsBeforeEnd)
+    /// <summary>The k (background units) that leaves the horizon <paramref name="efoldsBeforeEnd"/> e-folds before the end.</summary>
+    internal static double PivotK(IBackground bg, double efoldsBeforeEnd)
     {
         double n = bg.NEnd - efoldsBeforeEnd;
         return Math.Exp(n) * bg.At(n).H;
