@@ -58,6 +58,7 @@ public static class BackgroundCommand
 
     private static int Print(RunSettings settings, TextWriter output, TextWriter error, bool progress)
     {
+        if (settings.Model.IsMultiField) return FieldBackgroundPrinter.Print(settings, output, error, progress);
         var options = new PipelineOptions { Stage = progress ? stage => error.WriteLine($"modesolver: {stage} ...") : null };
         var run = SpectrumPipeline.RunPivot(settings, options);
         settings = run.Settings;

@@ -61,6 +61,10 @@ public static class FrameCommand
 
     private static ModelSpec ResolveModel(RunInput input, out double? phi0, out IReadOnlyList<string> warnings)
     {
+        // The canonical field chi(phi) is a one-field map; a model of several fields has a field-space metric instead.
+        var fields = input.Fields?.Value ?? (input.ModelId is { } id ? Models.ModelCatalogue.Find(id.Value.Trim())?.Fields : null);
+        if (fields is { Count: > 1 })
+            throw new DeckException($"frame maps one field to its canonical field; a model of {fields.Count} fields ({string.Join(", ", fields)}) has a field-space metric instead (see `modesolver background`, which prints its curvature)", "--fields");
         // Reuse the full resolver for model validation (parameters, formulas); a start value is needed by it, so a
         // formula model without --phi0 gets a neutral one here only when the range is given explicitly.
         if (input.Phi0 is null && input.ModelId is null)

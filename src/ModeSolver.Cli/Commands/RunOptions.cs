@@ -170,6 +170,8 @@ public sealed class RunOptions
         if (def.Family == SettingFamily.Observable) { r.SetValue(def, new Located<string>(value, name)); return; }
         object raw = def.Kind switch
         {
+            SettingKind.Number when def.PerField && value.Contains(',', StringComparison.Ordinal) =>
+                new Located<IReadOnlyList<double>>([.. value.Split(',').Select(v => ParseNumber(v, name, "numbers separated by commas, one per field"))], name),
             SettingKind.Number => new Located<double>(ParseNumber(value, name), name),
             SettingKind.Whole => long.TryParse(value.Trim(), NumberStyles.Integer, CultureInfo.InvariantCulture, out long n)
                 ? new Located<long>(n, name)

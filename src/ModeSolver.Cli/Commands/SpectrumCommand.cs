@@ -122,6 +122,16 @@ public static class SpectrumCommand
     public static int Check(RunSettings settings, TextWriter output, TextWriter error, bool spectrum = true)
     {
         ArgumentNullException.ThrowIfNull(settings);
+        if (settings.Model.IsMultiField)
+        {
+            // The several-field theory was built and checked at the start by the resolver; its valid region is bounded by surfaces.
+            var fields = TheoryFactory.BuildFields(settings.Model);
+            foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + TextSafety.Printable(w));
+            output.WriteLine(TextSafety.Printable(settings.Summary(spectrum)));
+            if (fields.Boundaries.Count > 0)
+                output.WriteLine("The valid region is bounded by: " + string.Join("; ", fields.Boundaries.Select(b => b.Name)) + ".");
+            return 0;
+        }
         var theory = TheoryFactory.Build(settings);
         foreach (string w in settings.Warnings) error.WriteLine("modesolver: warning: " + TextSafety.Printable(w));
         output.WriteLine(TextSafety.Printable(settings.Summary(spectrum)));

@@ -177,6 +177,44 @@ public static class FieldGeometry
                     }
     }
 
+    /// <summary>The scratch length <see cref="ChristoffelFromMetric"/> needs: 2 n^2.</summary>
+    public static int ChristoffelFromMetricScratch(int n) => 2 * n * n;
+
+    /// <summary>
+    /// Gamma^I_JK from the metric and d_K G_IJ: the inverse through the Cholesky factor, then <see cref="Christoffel"/>.
+    /// Returns false (and fills <paramref name="christoffel"/> with NaN) where G is not positive definite.
+    /// </summary>
+    public static bool ChristoffelFromMetric(int n, ReadOnlySpan<double> metric, ReadOnlySpan<double> metricDerivative, Span<double> christoffel, Span<double> scratch)
+    {
+        int n2 = n * n;
+        var inverse = scratch[..n2];
+        if (!Inverse(metric, n, inverse, scratch.Slice(n2, n2))) { christoffel[..(n2 * n)].Fill(double.NaN); return false; }
+        Christoffel(n, inverse, metricDerivative, christoffel);
+        return true;
+    }
+
+    /// <summary>The scratch length <see cref="RiemannFromMetric"/> needs: 2 n^2 + n^3 + n^4 + <see cref="ChristoffelDerivativeScratch"/>.</summary>
+    public static int RiemannFromMetricScratch(int n) => 2 * n * n + n * n * n + n * n * n * n + ChristoffelDerivativeScratch(n);
+
+    /// <summary>
+    /// R^I_JKL from the metric, d_K G_IJ and d_M d_K G_IJ (inverse, Christoffel symbols and their derivatives, then
+    /// <see cref="Riemann"/>). Returns false (and fills <paramref name="riemann"/> with NaN) where G is not positive definite.
+    /// </summary>
+    public static bool RiemannFromMetric(int n, ReadOnlySpan<double> metric, ReadOnlySpan<double> metricDerivative,
+        ReadOnlySpan<double> metricSecondDerivative, Span<double> riemann, Span<double> scratch)
+    {
+        int n2 = n * n, n3 = n2 * n, n4 = n3 * n;
+        var inverse = scratch[..n2];
+        var gamma = scratch.Slice(n2, n3);
+        var dgamma = scratch.Slice(n2 + n3, n4);
+        var rest = scratch.Slice(n2 + n3 + n4, Math.Max(n2, ChristoffelDerivativeScratch(n)));
+        if (!Inverse(metric, n, inverse, rest[..n2])) { riemann[..n4].Fill(double.NaN); return false; }
+        Christoffel(n, inverse, metricDerivative, gamma);
+        ChristoffelDerivative(n, inverse, metricDerivative, metricSecondDerivative, dgamma, rest);
+        Riemann(n, gamma, dgamma, riemann);
+        return true;
+    }
+
     /// <summary>The Ricci tensor R_JL = R^I_JIL (n x n).</summary>
     public static void Ricci(int n, ReadOnlySpan<double> riemann, Span<double> ricci)
     {

@@ -57,6 +57,30 @@ public sealed record ModelEntry(
     /// <summary>A short note (what is special, how defaults were chosen).</summary>
     public string Note { get; init; } = "";
 
+    /// <summary>The field names of a several-field model in field order (null: one field, phi).</summary>
+    public IReadOnlyList<string>? Fields { get; init; }
+
+    /// <summary>The field-space metric G_IJ (K^J_IJ with a coupling) as rows of formulas; null for the identity.</summary>
+    public IReadOnlyList<IReadOnlyList<string>>? Metric { get; init; }
+
+    /// <summary>The default start of a several-field model, one value per field (null for one field: <see cref="DefaultPhi0"/>).</summary>
+    public IReadOnlyList<double>? DefaultFields0 { get; init; }
+
+    /// <summary>An end surface formula (inflation ends where it crosses zero), or null: the epsilon_1 = 1 crossing.</summary>
+    public string? End { get; init; }
+
+    /// <summary>
+    /// The parameter that sets the number of fields (e.g. N of the equal-mass N-field model), or null. It appears in no
+    /// formula: <see cref="Expand"/> writes the fields, the formulas and the start for its value.
+    /// </summary>
+    public string? CountParameter { get; init; }
+
+    /// <summary>The entry for these parameter values (the fields and formulas of <see cref="CountParameter"/>), or null when fixed.</summary>
+    public Func<IReadOnlyDictionary<string, double>, ModelEntry>? Expand { get; init; }
+
+    /// <summary>The number of fields (of the default parameters for an entry with a <see cref="CountParameter"/>).</summary>
+    public int FieldCount => Fields?.Count ?? 1;
+
     /// <summary>The default parameter values as a dictionary.</summary>
     public IReadOnlyDictionary<string, double> DefaultParameters
     {
@@ -74,7 +98,7 @@ public sealed record ModelEntry(
 /// the pipeline rescales V to the requested A_s. Default phi0 values give comfortably more than 60 e-folds by
 /// the slow-roll estimate N = int K V / |V_phi| dphi (checked by the catalogue tests).
 /// </summary>
-public static class ModelCatalogue
+public static partial class ModelCatalogue
 {
     /// <summary>
     /// Catalogue models start this many e-folds before the end of inflation by default: enough for the pivot
@@ -158,21 +182,26 @@ public static class ModelCatalogue
         },
     ];
 
-    /// <summary>All entries, in catalogue order.</summary>
+    /// <summary>All one-field entries, in catalogue order (the several-field ones are <see cref="FieldModels"/>).</summary>
     public static IReadOnlyList<ModelEntry> All => Entries;
 
-    /// <summary>The ids, in catalogue order.</summary>
+    /// <summary>The ids of the one-field entries, in catalogue order.</summary>
     public static IEnumerable<string> Ids => Entries.Select(e => e.Id);
 
-    /// <summary>The entry with this id (case-insensitive), or null.</summary>
+    /// <summary>The entry with this id (case-insensitive), one-field or several-field, or null.</summary>
     public static ModelEntry? Find(string id)
     {
         foreach (var e in Entries)
             if (string.Equals(e.Id, id, StringComparison.OrdinalIgnoreCase)) return e;
+        foreach (var e in FieldEntries)
+            if (string.Equals(e.Id, id, StringComparison.OrdinalIgnoreCase)) return e;
         return null;
     }
 
+    /// <summary>Every id, the one-field entries first, then the several-field ones.</summary>
+    public static IEnumerable<string> AllIds => Entries.Concat(FieldEntries).Select(e => e.Id);
+
     /// <summary>The entry with this id; throws <see cref="TheoryException"/> (exit code 2) naming the valid ids otherwise.</summary>
     public static ModelEntry Get(string id) =>
-        Find(id) ?? throw new TheoryException($"unknown model '{id}' (catalogue: {string.Join(", ", Ids)})");
+        Find(id) ?? throw new TheoryException($"unknown model '{id}' (catalogue: {string.Join(", ", AllIds)})");
 }

@@ -159,7 +159,17 @@ public static class DeckReader
             switch (def.Kind)
             {
                 case SettingKind.Text: _input.SetValue(def, new Located<string>(String(table, key, full, value), full, file, line)); break;
-                case SettingKind.Number: _input.SetValue(def, Number(table, key, full, value)); break;
+                case SettingKind.Number when def.PerField && value is TomlArray values:
+                    var numbers = new List<double>();
+                    foreach (var item in values)
+                        numbers.Add(Number(table, key, full, item, "an array of numbers, one per field (e.g. [12.0, 0.5])").Value);
+                    if (numbers.Count == 0) throw Error(table, key, full, "is an empty array; give one number per field");
+                    _input.SetValue(def, new Located<IReadOnlyList<double>>(numbers, full, file, line));
+                    break;
+                case SettingKind.Number: _input.SetValue(def, Number(table, key, full, value, def.PerField ? "a number, or an array of numbers (one per field)" : "a number")); break;
+                case SettingKind.Matrix:
+                    _input.SetValue(def, new Located<string>(Matrix(table, key, full, value), full, file, line));
+                    break;
                 case SettingKind.Switch:
                     if (value is not bool b) throw Error(table, key, full, $"must be true or false (got {Describe(value)})");
                     _input.SetValue(def, new Located<bool>(b, full, file, line));
@@ -201,6 +211,28 @@ public static class DeckReader
                 _ => throw Error(table, key, full, $"must be {expected} (got {Describe(value)})"),
             };
             return new Located<double>(x, full, file, LineOf(table, key));
+        }
+
+        // A matrix of formulas: an array of arrays of strings (or the text form of FormulaMatrix), kept as text.
+        private string Matrix(TomlTable table, string key, string full, object? value)
+        {
+            const string expected = "an array of rows of formulas, e.g. [[\"1\", \"0\"], [\"0\", \"exp(2*b*phi)\"]]";
+            if (value is string text) return text;
+            if (value is not TomlArray rows || rows.Count == 0) throw Error(table, key, full, $"must be {expected} (got {Describe(value)})");
+            var list = new List<IReadOnlyList<string>>();
+            foreach (var row in rows)
+            {
+                if (row is not TomlArray entries) throw Error(table, key, full, $"must be {expected} (found {Describe(row)} as a row)");
+                var r = new List<string>();
+                foreach (var e in entries)
+                {
+                    if (e is string f) r.Add(f);
+                    else if (e is long or double) r.Add(Convert.ToString(e, CultureInfo.InvariantCulture)!);
+                    else throw Error(table, key, full, $"must be {expected} (found {Describe(e)} as an entry)");
+                }
+                list.Add(r);
+            }
+            return FormulaMatrix.Format(list);
         }
 
         // An [observables] value checked for its TOML type and kept as text (the resolver checks its range).

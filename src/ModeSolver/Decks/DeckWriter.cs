@@ -26,7 +26,9 @@ public static class DeckWriter
         else
         {
             if (s.Model.CatalogueId is not null) sb.AppendLine($"# from the catalogue: {s.Model.CatalogueId}");
+            if (s.Model.Fields is { } fields) sb.AppendLine($"fields = [{string.Join(", ", fields.Select(Str))}]");
             sb.AppendLine($"potential = {Str(s.Model.Potential)}");
+            if (s.Model.Metric is { } metric) sb.AppendLine($"metric = [{string.Join(", ", metric.Select(r => "[" + string.Join(", ", r.Select(Str)) + "]"))}]");
             if (s.Model.Kinetic is not null) sb.AppendLine($"kinetic = {Str(s.Model.Kinetic)}");
             if (s.Model.Coupling is not null)
             {
@@ -35,6 +37,7 @@ public static class DeckWriter
             }
         }
         if (s.Model.PhiEnd is double pe) sb.AppendLine($"phi_end = {Num(pe)}");
+        if (s.Model.End is string end) sb.AppendLine($"end = {Str(end)}");
         if (s.Model.Parameters.Count > 0)
         {
             sb.AppendLine();
@@ -45,8 +48,10 @@ public static class DeckWriter
         sb.AppendLine("[start]");
         // A start in e-folds before the end is written as such (phi0 is then only the solver's first guess).
         if (s.Initial.StartEfolds is double se) sb.AppendLine($"efolds = {Num(se)}");
+        else if (s.Initial.Fields0 is { } f0) sb.AppendLine($"phi0 = [{string.Join(", ", f0.Select(Num))}]");
         else sb.AppendLine($"phi0 = {Num(s.Initial.Phi0)}");
-        if (s.Initial.DPhi0 is double d) sb.AppendLine($"dphi0 = {Num(d)}");
+        if (s.Initial.Velocity0 is { } u) sb.AppendLine($"dphi0 = [{string.Join(", ", u.Select(Num))}]");
+        else if (s.Initial.DPhi0 is double d) sb.AppendLine($"dphi0 = {Num(d)}");
         sb.AppendLine();
         sb.AppendLine("[pivot]");
         sb.AppendLine($"k = {Num(s.Pivot.KPivot)}");

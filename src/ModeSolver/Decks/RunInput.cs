@@ -125,7 +125,8 @@ public sealed class RunInput
 
     /// <summary>
     /// The type of a setting's raw value: <see cref="Located{T}"/> of double (Number; Flag family), long (Whole),
-    /// string (Text; Observable family), bool (Switch), double? (NumberOrNone), IReadOnlyList&lt;string&gt; (List).
+    /// string (Text, Matrix; Observable family), bool (Switch), double? (NumberOrNone), IReadOnlyList&lt;string&gt; (List);
+    /// a <see cref="SettingDef.PerField"/> number may also hold IReadOnlyList&lt;double&gt;.
     /// </summary>
     public static Type ValueType(SettingDef def)
     {
@@ -165,7 +166,7 @@ public sealed class RunInput
     public void SetValue(SettingDef def, object? value)
     {
         ArgumentNullException.ThrowIfNull(def);
-        if (value is not null && value.GetType() != ValueType(def))
+        if (value is not null && value.GetType() != ValueType(def) && !(def.PerField && value is Located<IReadOnlyList<double>>))
             throw new ArgumentException($"{def.Path} holds a {ValueType(def).Name}, not a {value.GetType().Name}", nameof(value));
         switch (def.Family)
         {
@@ -187,7 +188,31 @@ public sealed class RunInput
         }
     }
 
-    private Located<T>? Get<T>(string path) => _values.TryGetValue(path, out var o) ? (Located<T>)o : null;
+    private Located<T>? Get<T>(string path) => _values.TryGetValue(path, out var o) && o is Located<T> v ? v : null;
+
+    /// <summary>
+    /// The value of a <see cref="SettingDef.PerField"/> setting as a list (one number per field), whether it was given as
+    /// one number or as several; null when not given.
+    /// </summary>
+    public Located<IReadOnlyList<double>>? PerFieldValues(SettingDef def)
+    {
+        ArgumentNullException.ThrowIfNull(def);
+        return _values.GetValueOrDefault(def.Slot) switch
+        {
+            Located<IReadOnlyList<double>> list => list,
+            Located<double> one => new Located<IReadOnlyList<double>>([one.Value], one.Key, one.File, one.Line),
+            _ => null,
+        };
+    }
+
+    /// <summary>Field names of a several-field model.</summary>
+    public Located<IReadOnlyList<string>>? Fields { get => Get<IReadOnlyList<string>>("model.fields"); set => Put("model.fields", value); }
+
+    /// <summary>The field-space metric (or K^J_IJ with a coupling), in the text form of <see cref="FormulaMatrix"/>.</summary>
+    public Located<string>? Metric { get => Get<string>("model.metric"); set => Put("model.metric", value); }
+
+    /// <summary>The end surface: a formula in the fields; inflation ends where it crosses zero.</summary>
+    public Located<string>? End { get => Get<string>("model.end"); set => Put("model.end", value); }
 
     private void Put<T>(string path, Located<T>? value)
     {

@@ -17,8 +17,8 @@ public static class RunInputKeys
 
     /// <summary>True when the setting takes text through ms_run_set_text.</summary>
     public static bool TakesText(SettingDef def) =>
-        def.Kind is SettingKind.Text or SettingKind.Switch or SettingKind.NumberOrNone or SettingKind.List
-        || def.Family == SettingFamily.Observable;
+        def.Kind is SettingKind.Text or SettingKind.Switch or SettingKind.NumberOrNone or SettingKind.List or SettingKind.Matrix
+        || def.PerField || def.Family == SettingFamily.Observable;
 
     /// <summary>Keys that take a number (the parameters as "model.parameters.NAME").</summary>
     public static IReadOnlyList<string> NumberKeys { get; } =
@@ -77,6 +77,16 @@ public static class RunInputKeys
                 break;
             case SettingKind.List:
                 o.SetValue(def, new Located<IReadOnlyList<string>>([.. value.Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries)], key));
+                break;
+            case SettingKind.Number when def.PerField:
+                var numbers = new List<double>();
+                foreach (string item in value.Split(','))
+                {
+                    if (!double.TryParse(item.Trim(), NumberStyles.Float, CultureInfo.InvariantCulture, out double x))
+                        throw v.Error($"must be numbers separated by commas, one per field (got \"{value}\")");
+                    numbers.Add(x);
+                }
+                o.SetValue(def, new Located<IReadOnlyList<double>>(numbers, key));
                 break;
             default: o.SetValue(def, v); break;
         }

@@ -43,7 +43,10 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
         var c = CultureInfo.InvariantCulture;
         var parts = new List<string>();
         parts.Add($"Model: {Model.Describe()}.");
-        parts.Add(Initial.StartEfolds is double ne
+        parts.Add(Initial.Fields0 is { } f0 && Model.Fields is { } names
+            ? string.Create(c, $"Start at ({string.Join(", ", names)}) = ({string.Join(", ", f0.Select(x => x.ToString("G6", c)))}) ")
+              + (Initial.Velocity0 is { } u ? string.Create(c, $"with dphi/dN = ({string.Join(", ", u.Select(x => x.ToString("G6", c)))}).") : "on the slow-roll attractor direction.")
+            : Initial.StartEfolds is double ne
             ? string.Create(c, $"Start {ne:G6} e-folds before the end of inflation (slow-roll first guess phi0 = {Initial.Phi0:G6}, solved exactly in the run) on the slow-roll attractor.")
             : Initial.DPhi0 is double d
             ? string.Create(c, $"Start at phi0 = {Initial.Phi0:G6} with dphi/dN = {d:G6}.")
@@ -79,13 +82,34 @@ public sealed record ModelSpec(string? CatalogueId, string Potential, string? Ki
     /// <summary>True when the input is in the Jordan frame (a coupling is given).</summary>
     public bool IsJordanFrame => Coupling is not null;
 
+    /// <summary>The field names when given (null: one field, phi); the formulas' variables in field order.</summary>
+    public IReadOnlyList<string>? Fields { get; init; }
+
+    /// <summary>The field-space metric G_IJ (K^J_IJ with a coupling) as rows of formulas, null for the identity (several fields).</summary>
+    public IReadOnlyList<IReadOnlyList<string>>? Metric { get; init; }
+
+    /// <summary>The end surface: a formula in the fields; inflation ends where it crosses zero (several fields).</summary>
+    public string? End { get; init; }
+
+    /// <summary>The number of fields (1 unless <see cref="Fields"/> names more).</summary>
+    public int FieldCount => Fields?.Count ?? 1;
+
+    /// <summary>True for a model of several fields (run on the n-field theory, <see cref="Models.FormulaFieldTheory"/>).</summary>
+    public bool IsMultiField => FieldCount > 1;
+
+    /// <summary>The variable of a one-field model's formulas (phi unless <see cref="Fields"/> names another).</summary>
+    public string Variable => Fields is { Count: 1 } f ? f[0] : "phi";
+
     /// <summary>One-line description: catalogue id or formulas with parameter values.</summary>
     public string Describe()
     {
         var c = CultureInfo.InvariantCulture;
         string head = CatalogueId is null ? "" : CatalogueId + ", ";
         string pot = IsJordanFrame ? $"V_J = {Potential}, Omega^2 = {Coupling}" : $"V = {Potential}";
+        if (IsMultiField) pot = $"fields ({string.Join(", ", Fields!)}), " + pot;
+        if (Metric is not null) pot += (IsJordanFrame ? ", K_J = [" : ", G = [") + Decks.FormulaMatrix.Format(Metric) + "]";
         if (Kinetic is not null) pot += IsJordanFrame ? $", K_J = {Kinetic}" : $", K = {Kinetic}";
+        if (End is not null) pot += $", end where {End} = 0";
         if (IsJordanFrame) pot += Palatini ? " (Jordan frame, Palatini)" : " (Jordan frame, metric)";
         string pars = Parameters.Count == 0 ? "" :
             " with " + string.Join(", ", Parameters.OrderBy(p => p.Key, StringComparer.Ordinal).Select(p => string.Create(c, $"{p.Key} = {p.Value:G6}")));
@@ -96,6 +120,12 @@ public sealed record ModelSpec(string? CatalogueId, string Potential, string? Ki
 /// <summary>Initial field value and, optionally, initial velocity d phi / dN (the slow-roll attractor when null).</summary>
 public sealed record InitialConditions(double Phi0, double? DPhi0)
 {
+    /// <summary>The start values of a several-field model, one per field in field order (null for one field: <see cref="Phi0"/>).</summary>
+    public IReadOnlyList<double>? Fields0 { get; init; }
+
+    /// <summary>The start velocities d phi^I / dN of a several-field model (null: the slow-roll attractor direction -G^IJ V_J / V).</summary>
+    public IReadOnlyList<double>? Velocity0 { get; init; }
+
     /// <summary>
     /// When set, the run starts this many e-folds before the end of inflation: <see cref="Phi0"/> is then the slow-roll
     /// first guess, and the pipeline solves for the field value whose exact background gives this N_total.

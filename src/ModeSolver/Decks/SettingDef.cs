@@ -17,6 +17,11 @@ public enum SettingKind
     List,
     /// <summary>A table of NAME = number (the model parameters).</summary>
     Table,
+    /// <summary>
+    /// A square matrix of formulas (a TOML array of arrays of strings; on the command line rows separated by ';' and
+    /// entries by ','), kept as its text form (<see cref="FormulaMatrix"/>).
+    /// </summary>
+    Matrix,
 }
 
 /// <summary>Where a setting's raw value is kept in <see cref="RunInput"/>.</summary>
@@ -75,6 +80,12 @@ public sealed record SettingDef
 
     /// <summary>What to tell the user when both forms are given ("give A_s in one form").</summary>
     public string? BothFormsHint { get; init; }
+
+    /// <summary>
+    /// True for a number that may also be given per field: an array of numbers in a deck (one per field, in field order),
+    /// comma-separated on the command line; kept as a list of numbers when it is one.
+    /// </summary>
+    public bool PerField { get; init; }
 
     /// <summary>True when only the spectrum needs it (the background command refuses the option).</summary>
     public bool SpectrumOnly { get; init; }

@@ -6,7 +6,7 @@ using ModeSolver.Physics;
 namespace ModeSolver.Decks;
 
 /// <summary>Turns <see cref="RunInput"/> (deck merged with command line) into validated <see cref="RunSettings"/>.</summary>
-public static class SettingsResolver
+public static partial class SettingsResolver
 {
     /// <summary>Smallest accepted reheating temperature, GeV: the one limit the matching stage also applies (a few MeV for nucleosynthesis, common practice).</summary>
     public const double MinReheatingTemperatureGeV = Matching.ReheatingHistory.MinimumTemperatureGeV;
@@ -32,8 +32,10 @@ public static class SettingsResolver
         ModelEntry? entry = null;
         if (input.ModelId is { } id)
         {
-            entry = ModelCatalogue.Find(id.Value.Trim()) ?? throw id.Error($"names no catalogue model '{id.Value}' (catalogue: {string.Join(", ", ModelCatalogue.Ids)})");
+            entry = ModelCatalogue.Find(id.Value.Trim()) ?? throw id.Error($"names no catalogue model '{id.Value}' (catalogue: {string.Join(", ", ModelCatalogue.AllIds)})");
             if (input.Potential is { } p) throw p.Error($"cannot be given together with {id.Key} = {entry.Id}; choose one model source");
+            if (input.Fields is { } fl) throw fl.Error($"cannot be given together with {id.Key} = {entry.Id}: the catalogue model names its fields");
+            if (input.Metric is { } mt) throw mt.Error($"cannot be given together with {id.Key} = {entry.Id}: the catalogue model gives its metric");
         }
         else if (input.Potential is null)
         {
@@ -58,24 +60,66 @@ public static class SettingsResolver
             pars[name] = v.Value;
         }
 
+        // ---- fields (several-field models) ----
+        if (entry?.Expand is { } expand)
+        {
+            try
+            {
+                entry = expand(pars);
+            }
+            catch (TheoryException e)
+            {
+                if (input.Parameters.TryGetValue(entry.CountParameter ?? "", out var cp)) throw cp.Error($"does not give a model: {e.Message}");
+                throw input.ModelId!.Value.Error($"does not give a model: {e.Message}");
+            }
+            potential = entry.Potential;
+        }
+        var fields = ResolveFields(input, entry);
+        var metric = ResolveMetric(input, entry, fields);
+        string? end = input.End?.Value ?? entry?.End;
+        CheckText(input.End, "is empty");
+        bool multi = fields is { Count: > 1 };
+        string variable = fields is { Count: 1 } one ? one[0] : "phi";
+        if (!multi && metric is not null)
+        {
+            // One field: the 1 x 1 metric is the kinetic function.
+            if (kinetic is not null) throw input.Metric!.Value.Error($"cannot be combined with {input.Kinetic?.Key ?? "the catalogue's kinetic function"} for one field: K is the 1 x 1 metric");
+            kinetic = metric[0][0];
+            metric = null;
+        }
+        if (multi && input.Kinetic is { } kin)
+            throw kin.Error($"is the kinetic function of one field; a model of {fields!.Count} fields gives its kinetic matrix as model.metric (K^J_IJ when a coupling is given)");
+        if (multi && input.PhiEnd is { } pe1)
+            throw pe1.Error($"ends a one-field model; a model of {fields!.Count} fields ends on a surface: model.end = \"a formula in {string.Join(", ", fields)}\" (inflation ends where it crosses zero)");
+        if (!multi && input.End is { } e1)
+            throw e1.Error("is an end surface of a several-field model; one field ends at model.phi_end (or where epsilon_1 = 1)");
+
         // Every formula must parse with these parameters; report the key whose formula fails.
         var formulas = new List<(string Text, Located<string>? Source, string Role)>
         {
             (potential, input.Potential, "potential"),
         };
-        if (kinetic is not null) formulas.Add((kinetic, input.Kinetic, "kinetic"));
+        if (kinetic is not null) formulas.Add((kinetic, input.Kinetic ?? input.Metric, "kinetic"));
         if (coupling is not null) formulas.Add((coupling, input.Coupling, "coupling"));
+        if (metric is not null)
+            foreach (var row in metric)
+                foreach (string entryText in row) formulas.Add((entryText, input.Metric, "metric"));
+        if (end is not null) formulas.Add((end, input.End, "end"));
         var referenced = new HashSet<string>(StringComparer.Ordinal);
+        if (entry?.CountParameter is string countParameter) referenced.Add(countParameter);
         foreach (var (text, source, role) in formulas)
         {
             try
             {
-                _ = Formula.Parse(text, pars);
-                foreach (string nm in Formula.ReferencedNames(text)) referenced.Add(nm);
+                if (multi) _ = Formula.Compile(text, fields!, pars);
+                else _ = Formula.Parse(text, pars, variable);
+                foreach (string nm in Formula.ReferencedNames(text, variable))
+                    if (fields is null || !fields.Contains(nm)) referenced.Add(nm);
             }
             catch (FormulaException e)
             {
-                if (source is { } s) throw s.Error($"is not a valid formula: {e.Message}");
+                string inFields = multi ? $" (fields: {string.Join(", ", fields!)})" : "";
+                if (source is { } s) throw s.Error($"is not a valid formula{(role == "metric" ? $" in its entry \"{text}\"" : "")}: {e.Message}{inFields}");
                 throw input.ModelId!.Value.Error($"has a {role} formula that does not work with these parameters: {e.Message}");
             }
         }
@@ -89,30 +133,14 @@ public static class SettingsResolver
         }
 
         double? phiEnd = Check("model.phi_end", input.PhiEnd) ?? entry?.PhiEnd;
-        var model = new ModelSpec(entry?.Id, potential, kinetic, coupling, palatini, pars, phiEnd);
+        var model = new ModelSpec(entry?.Id, potential, kinetic, coupling, palatini, pars, phiEnd) { Fields = fields, Metric = metric, End = end };
 
         // ---- start ----
-        double phi0;
-        double? startEfolds = null;
-        if (input.StartEfolds is { } se)
-        {
-            if (input.Phi0 is { } both) throw both.Error($"cannot be combined with {se.Key}: start at a field value or a number of e-folds before the end, not both");
-            if (input.DPhi0 is { } dv) throw dv.Error($"cannot be combined with {se.Key}: a start given in e-folds is on the slow-roll attractor");
-            startEfolds = Check("start.efolds", se);
-            phi0 = StartGuess(model, se, entry);
-        }
-        else if (input.Phi0 is { } ph)
-        {
-            phi0 = Check("start.phi0", ph)!.Value;
-        }
-        else if (entry?.DefaultStartEfolds is double catalogueStart && input.DPhi0 is null)
-        {
-            startEfolds = catalogueStart;
-            phi0 = StartGuess(model, new Located<double>(catalogueStart, $"start.efolds (catalogue default for {entry.Id})"), entry);
-        }
-        else if (entry is not null) phi0 = entry.DefaultPhi0;
-        else throw new DeckException($"{where}: start.phi0 or start.efolds (or --phi0 or --start-efolds) is required when the model is given by formulas", "start.phi0");
-        var initial = new InitialConditions(phi0, Check("start.dphi0", input.DPhi0)) { StartEfolds = startEfolds };
+        var phi0Values = input.PerFieldValues(SettingsSchema.Get("start.phi0"));
+        var dphi0Values = input.PerFieldValues(SettingsSchema.Get("start.dphi0"));
+        InitialConditions initial;
+        if (multi) initial = ResolveFieldStart(input, entry, fields!, phi0Values, dphi0Values, where);
+        else initial = ResolveStart(input, entry, model, OneValue(phi0Values, variable), OneValue(dphi0Values, variable), where);
 
         // ---- pivot and reheating ----
         double kPivot = Check("pivot.k", input.KPivot)!.Value;
@@ -221,8 +249,35 @@ public static class SettingsResolver
             Values = SettingValues.From(input),
             BispectrumTriangles = input.GetValue(SettingsSchema.Get("bispectrum.triangles")) is Located<IReadOnlyList<string>> tl ? TriangleList.Canonical(tl) : null,
         };
-        CheckTheory(settings, input, entry);
+        if (multi) CheckFieldTheory(settings, input, entry, phi0Values);
+        else CheckTheory(settings, input, entry, OneValue(phi0Values, variable));
         return settings;
+    }
+
+    // The one-field start: phi0 (or a start in e-folds before the end), dphi0.
+    private static InitialConditions ResolveStart(RunInput input, ModelEntry? entry, ModelSpec model, Located<double>? phi0Given, Located<double>? dphi0Given, string where)
+    {
+        double phi0;
+        double? startEfolds = null;
+        if (input.StartEfolds is { } se)
+        {
+            if (phi0Given is { } both) throw both.Error($"cannot be combined with {se.Key}: start at a field value or a number of e-folds before the end, not both");
+            if (dphi0Given is { } dv) throw dv.Error($"cannot be combined with {se.Key}: a start given in e-folds is on the slow-roll attractor");
+            startEfolds = Check("start.efolds", se);
+            phi0 = StartGuess(model, se, entry);
+        }
+        else if (phi0Given is { } ph)
+        {
+            phi0 = Check("start.phi0", ph)!.Value;
+        }
+        else if (entry?.DefaultStartEfolds is double catalogueStart && dphi0Given is null)
+        {
+            startEfolds = catalogueStart;
+            phi0 = StartGuess(model, new Located<double>(catalogueStart, $"start.efolds (catalogue default for {entry.Id})"), entry);
+        }
+        else if (entry is not null) phi0 = entry.DefaultPhi0;
+        else throw new DeckException($"{where}: start.phi0 or start.efolds (or --phi0 or --start-efolds) is required when the model is given by formulas", "start.phi0");
+        return new InitialConditions(phi0, Check("start.dphi0", dphi0Given)) { StartEfolds = startEfolds };
     }
 
     /// <summary>
@@ -247,9 +302,9 @@ public static class SettingsResolver
     }
 
     /// <summary>The theory must be valid at phi0 with V &gt; 0 there, and phi_end must lie ahead in the roll direction.</summary>
-    private static void CheckTheory(RunSettings settings, RunInput input, ModelEntry? entry)
+    private static void CheckTheory(RunSettings settings, RunInput input, ModelEntry? entry, Located<double>? phi0Given)
     {
-        var phi0Key = input.Phi0 ?? new Located<double>(settings.Initial.Phi0, entry is null ? "start.phi0" : $"start.phi0 (catalogue default for {entry.Id})");
+        var phi0Key = phi0Given ?? new Located<double>(settings.Initial.Phi0, entry is null ? "start.phi0" : $"start.phi0 (catalogue default for {entry.Id})");
         IValidatedTheory theory;
         try
         {

@@ -37,12 +37,13 @@ public static class TheoryFactory
     {
         ArgumentNullException.ThrowIfNull(spec);
         var pars = spec.Parameters;
-        var potential = Formula.Parse(spec.Potential, pars);
-        var kinetic = spec.Kinetic is null ? null : Formula.Parse(spec.Kinetic, pars);
+        string x = spec.Variable;
+        var potential = Formula.Parse(spec.Potential, pars, x);
+        var kinetic = spec.Kinetic is null ? null : Formula.Parse(spec.Kinetic, pars, x);
         string description = spec.Describe();
         if (spec.Coupling is null)
             return new EinsteinFrameTheory(potential, kinetic, description);
-        var coupling = Formula.Parse(spec.Coupling, pars);
+        var coupling = Formula.Parse(spec.Coupling, pars, x);
         return JordanFrameTheory.FromFormulas(coupling, kinetic, potential, spec.Palatini, description);
     }
 
@@ -54,6 +55,8 @@ public static class TheoryFactory
     public static IValidatedTheory Build(RunSettings settings)
     {
         ArgumentNullException.ThrowIfNull(settings);
+        if (settings.Model.IsMultiField)
+            throw new DeckException($"{settings.DeckPath ?? "command line"}: a model of {settings.Model.FieldCount} fields has no one-field theory here; it runs on the n-field theory (BuildFields)", "model.fields");
         var theory = Build(settings.Model, settings.Initial.Phi0);
         var range = theory.FindValidInterval(settings.Initial.Phi0);
         return theory switch
@@ -62,6 +65,33 @@ public static class TheoryFactory
             JordanFrameTheory j => j.WithValidRange(range),
             _ => theory,
         };
+    }
+
+    /// <summary>
+    /// The n-field theory of a several-field model (<see cref="ModelSpec.IsMultiField"/>): a <see cref="FormulaFieldTheory"/>
+    /// in the Einstein frame (V, G_IJ) or, with a coupling, mapped from the Jordan frame (V_J, Omega^2, K^J_IJ).
+    /// </summary>
+    /// <exception cref="FormulaException">a formula does not parse.</exception>
+    /// <exception cref="TheoryException">the metric is not n x n or not symmetric.</exception>
+    public static FormulaFieldTheory BuildFields(ModelSpec spec)
+    {
+        ArgumentNullException.ThrowIfNull(spec);
+        var fields = spec.Fields ?? ["phi"];
+        return spec.Coupling is null
+            ? FormulaFieldTheory.Einstein(fields, spec.Potential, spec.Metric, spec.Parameters, spec.Describe())
+            : FormulaFieldTheory.Jordan(fields, spec.Potential, spec.Coupling, spec.Metric, spec.Palatini, spec.Parameters, spec.Describe());
+    }
+
+    /// <summary>The end surface of a several-field model (inflation ends where the formula crosses zero), or null.</summary>
+    /// <exception cref="FormulaException">the formula does not parse.</exception>
+    public static FieldSurface? EndSurface(ModelSpec spec)
+    {
+        ArgumentNullException.ThrowIfNull(spec);
+        if (spec.End is not string text) return null;
+        var fields = spec.Fields ?? ["phi"];
+        var g = Formula.Compile(text, fields, spec.Parameters);
+        int n = fields.Count;
+        return FieldSurface.FromFunction($"{text} = 0", phi => g.Value(phi[..n]));
     }
 
     /// <summary>A formula as an <see cref="IDerivativeFunction"/> (five derivatives, enough for the metric frame map).</summary>

@@ -21,12 +21,13 @@ public static class NormalisedParameters
     public static (string Name, int Power)? AmplitudeParameter(ModelSpec model)
     {
         ArgumentNullException.ThrowIfNull(model);
+        if (model.IsMultiField) return null; // the probes below are one-field values
         var others = new HashSet<string>(StringComparer.Ordinal);
         try
         {
-            if (model.Kinetic is not null) others.UnionWith(Formula.ReferencedNames(model.Kinetic));
-            if (model.Coupling is not null) others.UnionWith(Formula.ReferencedNames(model.Coupling));
-            foreach (string name in Formula.ReferencedNames(model.Potential))
+            if (model.Kinetic is not null) others.UnionWith(Formula.ReferencedNames(model.Kinetic, model.Variable));
+            if (model.Coupling is not null) others.UnionWith(Formula.ReferencedNames(model.Coupling, model.Variable));
+            foreach (string name in Formula.ReferencedNames(model.Potential, model.Variable))
             {
                 if (others.Contains(name) || !model.Parameters.TryGetValue(name, out double p) || p == 0) continue;
                 foreach (int q in (int[])[1, 2, 4])
@@ -63,11 +64,11 @@ public static class NormalisedParameters
     private static bool Scales(ModelSpec model, string name, double p, int q)
     {
         var pars = new Dictionary<string, double>(model.Parameters, StringComparer.Ordinal);
-        var f1 = Formula.Parse(model.Potential, pars);
+        var f1 = Formula.Parse(model.Potential, pars, model.Variable);
         pars[name] = 2 * p;
-        var f2 = Formula.Parse(model.Potential, pars);
+        var f2 = Formula.Parse(model.Potential, pars, model.Variable);
         pars[name] = 3 * p;
-        var f3 = Formula.Parse(model.Potential, pars);
+        var f3 = Formula.Parse(model.Potential, pars, model.Variable);
         double r2 = Math.Pow(2, q), r3 = Math.Pow(3, q);
         int nonZero = 0;
         foreach (double phi in Probes)

@@ -72,6 +72,7 @@ public static class SpectrumPipeline
     {
         ArgumentNullException.ThrowIfNull(settings);
         options ??= new PipelineOptions();
+        if (settings.Model.IsMultiField) throw FieldPipeline.NotYet(settings, "the one-field pivot record (PivotRun)");
         if (settings.Amplitude.SolveFor is not null)
         {
             options.Stage?.Invoke("background");
@@ -101,6 +102,7 @@ public static class SpectrumPipeline
     {
         ArgumentNullException.ThrowIfNull(settings);
         options ??= new PipelineOptions();
+        if (settings.Model.IsMultiField) return FieldPipeline.Run(settings, options);
         var clock = Stopwatch.StartNew();
         var run = RunPivot(settings, options);
         var flagSettings = options.Flags ?? settings.Flags;
@@ -213,7 +215,7 @@ public static class SpectrumPipeline
     }
 
     // The settings list the outputs record, made from the settings schema (SettingsSchema.ReportEntries).
-    private static ReportSettings ReportSettingsFor(RunSettings s, FlagSettings flags)
+    internal static ReportSettings ReportSettingsFor(RunSettings s, FlagSettings flags)
     {
         var e = ImmutableArray.CreateBuilder<Setting>();
         foreach (var (key, value, number) in SettingsSchema.ReportEntries(s)) e.Add(new Setting(key, value, number));

@@ -264,12 +264,23 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                     K = [.. report.Spectrum.K], Ps = [.. report.Spectrum.Ps], Pt = [.. report.Spectrum.Pt],
                 };
             }
-            var run = SpectrumPipeline.RunPivot(settings, _options);
-            var pivot = run.Pivot;
-            var exact = run.Exact;
+            // A several-field model runs Core's n-field pivot stages; both give the matching numbers, exact values and slow roll.
+            Matching.PivotMatch pivot;
+            Spectra.PivotValues exact;
+            Estimates.SlowRollSet slowRoll;
+            if (settings.Model.IsMultiField)
+            {
+                var stage = FieldPipeline.RunPivot(settings, _options);
+                (pivot, exact, slowRoll) = (stage.Match, stage.Exact, stage.SlowRoll);
+            }
+            else
+            {
+                var run = SpectrumPipeline.RunPivot(settings, _options);
+                (pivot, exact, slowRoll) = (run.Pivot.Numbers, run.Exact, run.SlowRoll);
+            }
             var results = new PivotResults(exact.Ns, exact.AlphaS, exact.R, exact.Nt, exact.Ps, pivot.KPivot, pivot.NStar, pivot.PhiStar,
                 pivot.HStar, pivot.VStarQuarterGeV, pivot.VScale, pivot.NTotal, pivot.NReh, exact.ErrorEstimate, double.NaN);
-            var sr = run.SlowRoll.SecondOrder;
+            var sr = slowRoll.SecondOrder;
             var flags = Flags.PivotDeviations(results, sr, "second-order slow roll", _options.Flags ?? settings.Flags);
             return new SweepRecord
             {
@@ -307,7 +318,9 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
     {
         try
         {
-            TheoryFactory.Build(SettingsFor(point));
+            var settings = SettingsFor(point);
+            if (settings.Model.IsMultiField) TheoryFactory.BuildFields(settings.Model);
+            else TheoryFactory.Build(settings);
             return null;
         }
         catch (Exception e) when (e is DeckException or Formulas.FormulaException or TheoryException)

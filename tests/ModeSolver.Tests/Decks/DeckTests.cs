@@ -164,7 +164,7 @@ public class DeckTests
     }
 
     [Theory]
-    [InlineData("[model]\ncatalogue = \"t-model\"\n[start]\nphi0 = \"six\"\n", "test.toml:4: start.phi0 must be a number (got the string \"six\")")]
+    [InlineData("[model]\ncatalogue = \"t-model\"\n[start]\nphi0 = \"six\"\n", "test.toml:4: start.phi0 must be a number, or an array of numbers (one per field) (got the string \"six\")")]
     [InlineData("[model]\ncatalogue = \"no-such\"\n", "test.toml:2: model.catalogue names no catalogue model 'no-such'")]
     [InlineData("[model]\npotential = \"phi^2\"\npalatini = true\n[start]\nphi0 = 3\n", "test.toml:3: model.palatini needs a coupling")]
     [InlineData("[model]\npotential = \"phi^2 +\"\n[start]\nphi0 = 3\n", "test.toml:2: model.potential is not a valid formula: ")]
