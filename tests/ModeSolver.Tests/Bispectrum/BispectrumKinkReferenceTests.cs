@@ -74,8 +74,8 @@ public class BispectrumKinkReferenceTests(ITestOutputHelper log)
     public void LinearKink_EquilateralAndSqueezedFNLMatchTheKinkReference()
     {
         // The reference leaves out O(e1) terms (the e1^2 and e1^3 vertices, the change of H, e2 = O(e1) before the kink);
-        // e1 = 2e-6 before the kink here. Found: differences up to 1.3e-5 relative to 1 + |f_NL| (at k = k0/2, where
-        // P_s dips and f_NL = -7.25); with both slopes 10x smaller (e1 100x smaller) they fell 50-100x, so they are these
+        // e1 = 2e-6 before the kink here. Found: differences up to 1.0e-5 of 1 + |f_NL| for equilateral triangles (at
+        // k = k0/2, where P_s dips and f_NL = -7.25) and 4.1e-5 for the squeezed one at k0/2; with both slopes 10x smaller (e1 100x smaller) they fell 50-100x, so they are these
         // e1 terms, not numerical error. Tolerance 1e-4 (1 + |f_NL|) plus the reported numerical error.
         var r = new KinkReference(D);
         (double, double, double)[] triangles =
