@@ -70,4 +70,24 @@ public class TwoFieldSpectrumCommandTests : IClassFixture<TwoFieldDemoRun>
         Assert.Equal([beta], dumped);
         Assert.Equal(16, ExternalTools.H5DumpDataValues(ExternalTools.Run(h5dump!, "-d /isocurvature/k -m %.17g " + path)).Length);
     }
+
+    [Fact]
+    public void TooShortAStartNamesEveryFieldsStartValue()
+    {
+        // Started at phi = 11 the demo inflates about 33 e-folds, fewer than the pivot needs: the one-line error names
+        // the start of both fields, not only the first.
+        string dir = CliRunner.TempDir("two-field-short");
+        Directory.CreateDirectory(dir);
+        try
+        {
+            string deck = Path.Combine(dir, "short.toml");
+            File.WriteAllText(deck, File.ReadAllText(Decks.DeckTests.RepoFile("runs/two-field-demo.toml")).Replace("phi0 = [17.0, 2.0]", "phi0 = [11.0, 2.0]", StringComparison.Ordinal));
+            var (code, _, err) = CliRunner.Run("spectrum", deck, "--out", Path.Combine(dir, "out"), "--quiet");
+            Assert.NotEqual(0, code);
+            Assert.Contains("phi0 = [11, 2] for (phi, chi)", err);
+            Assert.Single(err.Trim().Split('\n'));
+            Assert.False(Directory.Exists(Path.Combine(dir, "out")), "nothing is written after a refused run");
+        }
+        finally { Directory.Delete(dir, true); }
+    }
 }
