@@ -26,7 +26,7 @@ for deck in "$root"/runs/*.toml; do
   grep -q '^\[sweep' "$deck" && continue
   run "deck-$(basename "$deck" .toml)" "$deck"
 done
-for id in $(dotnet "$dll" models | awk 'NR>1 && $1 ~ /^[a-z]/ && NF>2 {print $1}'); do
+for id in $(dotnet "$dll" models | awk 'NR>1 && $1 ~ /^[a-z]/ && $2 ~ /^([0-9]+|N)$/ {print $1}'); do
   run "model-$id" --model "$id"
 done
 for xi in ${PALATINI_XI:-}; do
