@@ -1,6 +1,5 @@
 using System.Collections.Immutable;
 using System.Globalization;
-using ModeSolver.Diagnostics;
 
 namespace ModeSolver.Results;
 
@@ -49,14 +48,4 @@ public sealed record FrozenComparison(ImmutableArray<string> Frozen, ImmutableAr
         return string.Join(", ", parts);
     }
 
-    /// <summary>The flag of a one-field reduction that misses the n-field n_s or r beyond the errors; null when it does not.</summary>
-    public Flag? FlagFor(PivotResults pivot)
-    {
-        ArgumentNullException.ThrowIfNull(pivot);
-        if (!Differs(pivot)) return null;
-        string where = string.Create(Inv, $"k = {pivot.KPivot:0.000e+00} /Mpc");
-        return new Flag(FlagKinds.FrozenReductionDiffers, "n_s", string.Create(Inv,
-            $"the one-field model with {Describe()} held fixed (at the pivot's exit) gives n_s = {Ns:0.000000} +- {NsError:0.0e+00}, r = {R:0.00000e+00} +- {RError:0.0e+00}, against the {Frozen.Length + 1}-field n_s = {pivot.Ns:0.000000} +- {pivot.Errors.Ns:0.0e+00}, r = {pivot.R:0.00000e+00} +- {pivot.Errors.R:0.0e+00}: freezing {string.Join(", ", Frozen)} changes the predictions beyond the errors"),
-            where, pivot.KPivot, pivot.KPivot, pivot.Ns, Ns, pivot.Ns - Ns);
-    }
 }

@@ -89,7 +89,7 @@ public static class FieldPipeline
             report = TheoryRun.Complete(stage, request, clock);
             options.Stage?.Invoke("one-field comparison");
             var frozen = FrozenReduction.Run(settings, stage, options);
-            report = report with { Frozen = frozen, Flags = frozen.FlagFor(report.Pivot) is { } f ? report.Flags.Add(f) : report.Flags };
+            report = report with { Frozen = frozen, Flags = Diagnostics.FrozenReductionFlag.For(frozen, report.Pivot) is { } f ? report.Flags.Add(f) : report.Flags };
         }
         return report with { Model = ModelInfoFor(settings.Model, report.Pivot.VScale), Settings = SpectrumPipeline.ReportSettingsFor(settings, flags) };
     }
