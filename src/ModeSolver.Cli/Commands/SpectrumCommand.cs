@@ -109,6 +109,7 @@ public static class SpectrumCommand
         {
             files.Add(RunOutputs.SpectraPng); files.Add(RunOutputs.SpectraSvg);
             files.Add(RunOutputs.BackgroundPng); files.Add(RunOutputs.BackgroundSvg);
+            files.AddRange(RunOutputs.FieldPlots(settings.Model.FieldCount));
             files.AddRange(RunOutputs.ObservablePlots(settings.Observables));
             files.AddRange(RunOutputs.BispectrumFiles(Pipeline.SpectrumPipeline.BispectrumRequestFor(settings)));
         }

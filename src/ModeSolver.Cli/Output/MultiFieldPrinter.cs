@@ -30,6 +30,14 @@ internal static class MultiFieldPrinter
         string turnText = turn < 0 ? "n/a" : string.Create(Inv, $"{t.TurnRate[turn]:G3} at N = {t.N[turn]:0.00}");
         string massText = mass < 0 ? "" : string.Create(Inv, $", smallest m_s^2/H^2 = {t.EntropicMass[mass]:G3} at N = {t.N[mass]:0.00}");
         Say($"trajectory ({string.Join(", ", t.FieldNames)}): largest eta_perp = {turnText}{massText}");
+        if (report.Frozen is { Note: { } note }) Say($"{note}", "yellow");
+        else if (report.Frozen is { } f)
+        {
+            var p = report.Pivot;
+            bool differs = f.Differs(p);
+            Say($"one field ({f.Free}; {f.Describe()} frozen at the pivot's exit): n_s = {f.Ns:0.000000} +- {f.NsError:0.0e+00}, r = {f.R:0.00000e+00} +- {f.RError:0.0e+00} against n_s = {p.Ns:0.000000}, r = {p.R:0.00000e+00} with {f.Frozen.Length + 1} fields (differences {p.Ns - f.Ns:+0.0e+00;-0.0e+00}, {p.R - f.R:+0.0e+00;-0.0e+00}: {(differs ? "beyond the errors" : "within the errors")})",
+                differs ? "yellow" : null);
+        }
     }
 
     // Exponents as the rest of the summary writes them (1.5e+13, not 1.5E+13).

@@ -69,6 +69,20 @@ public sealed class AdiabaticBackground : IScalableBackground
         return a;
     }
 
+    /// <inheritdoc/>
+    public string StartDescription => $"phi0 = [{Values(_shared.Fields.NStart)}] for ({string.Join(", ", _shared.Fields.Theory.FieldNames)})";
+
+    /// <inheritdoc/>
+    public string FieldsDescription(double n) => $"({string.Join(", ", _shared.Fields.Theory.FieldNames)}) = ({Values(n + _shared.Origin)})";
+
+    private string Values(double fieldN)
+    {
+        double[] at = _shared.Fields.FieldsAt(fieldN);
+        var text = new string[at.Length];
+        for (int i = 0; i < at.Length; i++) text[i] = at[i].ToString("G6", System.Globalization.CultureInfo.InvariantCulture);
+        return string.Join(", ", text);
+    }
+
     /// <summary>The n-field solution this view reads.</summary>
     public FieldBackgroundSolution Fields => _shared.Fields;
 

@@ -24,4 +24,14 @@ public interface IScalableBackground : IShapeSharedBackground, IHorizonExitLooku
 
     /// <summary>The logarithms of <see cref="KRange"/>.</summary>
     (double LnKMin, double LnKMax) LnKRange(double startDepth, double endDepth);
+
+    /// <summary>
+    /// The start in the user's words, for messages: "phi0 = 17" for one field, every field's start value for several
+    /// ("phi0 = [17, 2] for (phi, chi)").
+    /// </summary>
+    string StartDescription => string.Create(System.Globalization.CultureInfo.InvariantCulture, $"phi0 = {At(NStart).Phi:G6}");
+
+    /// <summary>The field values at N, for messages: "phi = 14.7" for one field, "(phi, chi) = (14.7, 1.9)" for several.</summary>
+    string FieldsDescription(double n) => string.Create(System.Globalization.CultureInfo.InvariantCulture, $"phi = {At(n).Phi:G6}");
+
 }

@@ -45,6 +45,9 @@ public static class FlagKinds
 
     /// <summary>delta N and the mode equations disagree on P_zeta beyond their errors and the expected slow-roll difference.</summary>
     public const string DeltaNDisagreement = "delta-n-disagreement";
+
+    /// <summary>The one-field model with the named fields frozen at the pivot's exit misses the n-field n_s or r beyond the errors.</summary>
+    public const string FrozenReductionDiffers = "frozen-reduction-differs";
 }
 
 /// <summary>Which slow-roll estimate the exact results are compared against.</summary>

@@ -46,14 +46,14 @@ public static class PivotMatcher
 
         double nTotal = background.NTotal;
         double nEnd = background.NEnd;
+        string phi0 = background.StartDescription;
         double s = background.VScale;
         if (settings.EFolds is double given && (!(given > 0) || given > nTotal))
             throw new PhysicsException(given > 0
-                ? $"Only {nTotal:G6} e-folds of inflation before the end, N_* = {given:G6} needs more; start the field further up the potential (phi0) or lower N_*."
+                ? $"Only {nTotal:G6} e-folds of inflation before the end, N_* = {given:G6} needs more ({phi0}); start the field further up the potential or lower N_*."
                 : $"N_* = {given:G6} is not positive; give the e-folds between the pivot's horizon exit and the end of inflation (> 0).");
 
         double lnKStar = Math.Log(settings.KPivot);
-        double phi0 = background.At(background.NStart).Phi;
         int iterations = 0;
         double sAt = s, psPivot = double.NaN;
 
@@ -76,7 +76,7 @@ public static class PivotMatcher
             var (kMinServed, _) = bgs.KRange(settings.PivotStartDepth, 1.0);
             if (kbg < kMinServed)
                 throw new PhysicsException(string.Create(CultureInfo.InvariantCulture,
-                    $"Only {nPiv - background.NStart:G4} e-folds of inflation before the pivot leaves the horizon (N_* = {x:G6} of N_total = {nTotal:G6}, phi0 = {phi0:G6}): the pivot mode must start at least {settings.PivotStartDepth:G3} times inside the horizon, about {Math.Log(settings.PivotStartDepth):G2} e-folds earlier; start the field further up the potential (phi0) or lower N_*."));
+                    $"Only {nPiv - background.NStart:G4} e-folds of inflation before the pivot leaves the horizon (N_* = {x:G6} of N_total = {nTotal:G6}, {phi0}): the pivot mode must start at least {settings.PivotStartDepth:G3} times inside the horizon, about {Math.Log(settings.PivotStartDepth):G2} e-folds earlier; start the field further up the potential (phi0) or lower N_*."));
             double ps;
             try
             {
@@ -84,10 +84,10 @@ public static class PivotMatcher
             }
             catch (PhysicsException e)
             {
-                throw new PhysicsException($"The pivot mode (N_* = {x:G6}, {nPiv - background.NStart:G8} e-folds after the start, phi = {pt.Phi:G6}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
+                throw new PhysicsException($"The pivot mode (N_* = {x:G6}, {nPiv - background.NStart:G8} e-folds after the start, {background.FieldsDescription(nPiv)}) cannot be computed: {e.Message}; the pivot must leave the horizon well inside the inflating part of the background (change phi0 or N_*).", e);
             }
             if (!(ps > 0) || !double.IsFinite(ps))
-                throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {ps} at the pivot (N_* = {x:G8}, phi = {pt.Phi:G6}); the pivot cannot be normalised there.");
+                throw new PhysicsException($"The amplitude provider '{amplitude.Name}' returned P_s = {ps} at the pivot (N_* = {x:G8}, {background.FieldsDescription(nPiv)}); the pivot cannot be normalised there.");
             sAt = s * (target / ps);
             if (!(sAt > 0) || !double.IsFinite(sAt))
                 throw new PhysicsException($"Normalising to A_s = {target:G4} needs the potential scaled by {target / ps:G3}, beyond the double-precision range (P_s = {ps:G3} at the pivot before scaling); give the potential a scale nearer A_s.");
@@ -125,7 +125,7 @@ public static class PivotMatcher
                 return next - x;
             }
             string Fewer(double asked) => string.Create(CultureInfo.InvariantCulture,
-                $"Only {nTotal:G6} e-folds of inflation before the end (phi0 = {phi0:G6}), the reheating history needs N_* = {asked:G4} and the pivot mode about {Math.Log(settings.PivotStartDepth):G2} more to start inside the horizon; start the field further up the potential.");
+                $"Only {nTotal:G6} e-folds of inflation before the end ({phi0}), the reheating history needs N_* = {asked:G4} and the pivot mode about {Math.Log(settings.PivotStartDepth):G2} more to start inside the horizon; start the field further up the potential.");
             double lowest = Math.Min(1e-3, 0.5 * nTotal);
             // First guess: the usual N_*, or as early as leaves the pivot mode room to start inside the horizon.
             double a = Math.Min(settings.InitialEFolds, Math.Max(0.5 * nTotal, nTotal - 2 * Math.Log(settings.PivotStartDepth))), fa = G(a);
@@ -172,7 +172,7 @@ public static class PivotMatcher
             ValidateTemperature(reh, tReh, rhoEnd, settings, nEnd, final);
         }
         if (nStar > nTotal || nStar <= 0)
-            throw new PhysicsException($"Only {nTotal:G6} e-folds of inflation before the end, N_* needs {nStar:G6}; start the field further up the potential (phi0).");
+            throw new PhysicsException($"Only {nTotal:G6} e-folds of inflation before the end, N_* needs {nStar:G6} ({background.StartDescription}); start the field further up the potential.");
 
         double nPivot = nEnd - nStar;
         var p = final.At(nPivot);
@@ -180,7 +180,7 @@ public static class PivotMatcher
         // The pivot must leave the horizon for the last time at nPivot and have room to start inside it.
         var (kMinServe, _) = final.KRange(settings.PivotStartDepth, 1.0);
         if (!final.TryNAtHorizonExit(kbgStar, out double nExit) || Math.Abs(nExit - nPivot) > 1e-6 || kbgStar < kMinServe)
-            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, {nPivot - background.NStart:G8} e-folds after the start, phi = {p.Phi:G6}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (phi0).");
+            throw new PhysicsException($"The pivot (N_* = {nStar:G6}, {nPivot - background.NStart:G8} e-folds after the start, {background.FieldsDescription(nPivot)}) lies outside the range the background serves (it must leave the horizon after being at least {settings.PivotStartDepth:G3} times inside it); start the field further up the potential (now {background.StartDescription}).");
 
         double lnKUnit = Math.Log(kbgStar) - lnKStar;
         var (lnKMin, lnKMax) = final.LnKRange(settings.RangeStartDepth, settings.RangeEndDepth);
@@ -238,7 +238,7 @@ public static class PivotMatcher
     {
         double tEnd = TemperatureGeV(rhoEnd, s.GReh);
         if (tReh > tEnd * (1 + 1e-12))
-            throw new PhysicsException($"The reheating temperature T_reh = {tReh:G6} GeV is above the temperature at the end of inflation ({tEnd:G6} GeV, N = {nEnd:G8}, phi = {bg.At(nEnd).Phi:G6}); lower T_reh.");
+            throw new PhysicsException($"The reheating temperature T_reh = {tReh:G6} GeV is above the temperature at the end of inflation ({tEnd:G6} GeV, N = {nEnd:G8}, {bg.FieldsDescription(nEnd)}); lower T_reh.");
         if (tReh < ReheatingHistory.MinimumTemperatureGeV)
             throw TooCold(reh, tReh);
     }

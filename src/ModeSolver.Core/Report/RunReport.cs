@@ -48,6 +48,9 @@ public sealed record RunReport(
     /// <summary>The n-field trajectory kinematics and delta N at the pivot; null for one field.</summary>
     public MultiFieldResults? MultiField { get; init; }
 
+    /// <summary>The one-field model with the `[compare] freeze` fields held at their pivot-exit values; null when not asked.</summary>
+    public FrozenComparison? Frozen { get; init; }
+
     /// <summary>Distance to the data, peak summary, induced GWs and black holes; null when the run computed none.</summary>
     public Observables.ObservablesReport? Observables { get; init; }
 

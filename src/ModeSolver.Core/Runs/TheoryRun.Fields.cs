@@ -52,6 +52,19 @@ public static partial class TheoryRun
         return CompleteFields(stage, request, clock);
     }
 
+    /// <summary>
+    /// The rest of an n-field run from its pivot stage (<see cref="RunPivot(IFieldTheory, RunRequest)"/> of a theory of
+    /// several fields): the modes across k, the slow-roll comparison, delta N and the trajectory. <paramref name="clock"/>,
+    /// started before the pivot stage, times the whole run (null: from here).
+    /// </summary>
+    public static RunReport Complete(FieldPivotStage stage, RunRequest request, Stopwatch? clock = null)
+    {
+        ArgumentNullException.ThrowIfNull(stage);
+        ArgumentNullException.ThrowIfNull(request);
+        if (stage.Background is null) throw new ArgumentException("a one-field stage completes on the single-field path (Run)", nameof(stage));
+        return CompleteFields(stage, request, clock ?? Stopwatch.StartNew());
+    }
+
     /// <summary>The n-field background, the pivot matching and the exact pivot values (with the isocurvature) only.</summary>
     public static FieldPivotStage RunPivot(IFieldTheory theory, RunRequest request)
     {

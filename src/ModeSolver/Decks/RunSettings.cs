@@ -30,6 +30,12 @@ public sealed record RunSettings(ModelSpec Model, InitialConditions Initial, Piv
     /// <summary>The `[bispectrum] triangles` in canonical text "k1:k2:k3,..." (1/Mpc; <see cref="TriangleList"/>), or null.</summary>
     public string? BispectrumTriangles { get; init; }
 
+    /// <summary>
+    /// The `[compare] freeze` fields of a several-field model (every field but one, in field order), or null: the run also
+    /// solves the one-field model with them held at their values at the pivot's horizon exit.
+    /// </summary>
+    public IReadOnlyList<string>? Freeze { get; init; }
+
     /// <summary>Thresholds of the slow-roll disagreement flags (deck table [flags]).</summary>
     public Diagnostics.FlagSettings Flags { get; init; } = Diagnostics.FlagSettings.Default;
 

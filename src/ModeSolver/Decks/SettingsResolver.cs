@@ -248,6 +248,7 @@ public static partial class SettingsResolver
             // no new message for them) and kept for the stage that reads it.
             Values = SettingValues.From(input),
             BispectrumTriangles = input.GetValue(SettingsSchema.Get("bispectrum.triangles")) is Located<IReadOnlyList<string>> tl ? TriangleList.Canonical(tl) : null,
+            Freeze = FreezeList(input, model),
         };
         if (multi) CheckFieldTheory(settings, input, entry, phi0Values);
         else CheckTheory(settings, input, entry, OneValue(phi0Values, variable));

@@ -160,6 +160,9 @@ public static class SettingsSchema
         new() { Path = "bispectrum.start_depth", Option = "--fnl-start-depth", Kind = SettingKind.Number, Default = "50", SpectrumOnly = true,
             Doc = "K/aH (K = k1 + k2 + k3) where the numerical in-in integral starts, in [10, 10000]; earlier times are the analytic kappa -> 0 limit of the damping exp(-kappa K/aH)",
             Check = v => v >= 10 && v <= 1e4 ? null : $"must lie in [10, 10000] (got {v})", ReportRank = 286 },
+        new() { Path = "compare.freeze", Option = "--freeze", Kind = SettingKind.List, Default = "none", SpectrumOnly = true,
+            Doc = "several fields: also run the one-field model with these fields held at their values at the pivot's horizon exit (every field but one, e.g. `[\"chi\"]`; comma-separated on the command line) and report its n_s, r, A_s beside the n-field ones",
+            ReportRank = 289, Report = s => s.Freeze is { } f ? string.Join(",", f) : null },
 
         .. FlagThresholds.Select(f => new SettingDef
         {

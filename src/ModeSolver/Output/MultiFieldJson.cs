@@ -10,7 +10,8 @@ namespace ModeSolver.Output;
 /// difference, the slow-roll allowance and whether they agree, N_I with errors, the slice and start velocity used; null
 /// with "delta_N_note" saying why when it could not be computed) and "trajectory" (field names, the largest eta_perp and
 /// the smallest m_s^2/H^2 during inflation and where); and "isocurvature" at the pivot from the modes (P_S, P_S_error,
-/// beta_iso, cos_delta, T_RS, C_RS, P_R_exit). The arrays against N and k are in run.h5 (/multifield, /isocurvature).
+/// beta_iso, cos_delta, T_RS, C_RS, P_R_exit); with `[compare] freeze`, "frozen_comparison" (the one-field model's n_s,
+/// r with errors, A_s, N_*, the frozen fields and values, the differences and whether they exceed the errors). The arrays against N and k are in run.h5 (/multifield, /isocurvature).
 /// </summary>
 internal static class MultiFieldJson
 {
@@ -31,6 +32,29 @@ internal static class MultiFieldJson
             w.WriteEndObject();
         }
         Write(w, report.MultiField);
+        if (report.Frozen is { } f)
+        {
+            // The one-field model with the [compare] freeze fields held at their values at the pivot's exit.
+            w.WriteStartObject("frozen_comparison");
+            w.WriteStartArray("frozen");
+            foreach (var name in f.Frozen) w.WriteStringValue(name);
+            w.WriteEndArray();
+            Array(w, "values", f.Values);
+            w.WriteString("held_at", "pivot-exit");
+            w.WriteString("free", f.Free);
+            Num(w, "n_s", f.Ns);
+            Num(w, "n_s_error", f.NsError);
+            Num(w, "r", f.R);
+            Num(w, "r_error", f.RError);
+            Num(w, "A_s", f.As);
+            Num(w, "N_star", f.NStar);
+            Num(w, "n_s_difference", report.Pivot.Ns - f.Ns);
+            Num(w, "r_difference", report.Pivot.R - f.R);
+            w.WriteBoolean("differs", f.Differs(report.Pivot));
+            if (f.Note is null) w.WriteNull("note");
+            else w.WriteString("note", f.Note);
+            w.WriteEndObject();
+        }
     }
 
     private static void Write(Utf8JsonWriter w, MultiFieldResults? m)

@@ -79,7 +79,18 @@ public static class FieldPipeline
         NoParameterSolve(settings);
         var theory = TheoryFactory.BuildFields(settings.Model);
         var flags = options.Flags ?? settings.Flags;
-        var report = TheoryRun.Run(theory, RequestFor(settings, options) with { Flags = flags });
+        var request = RequestFor(settings, options) with { Flags = flags };
+        RunReport report;
+        if (settings.Freeze is null) report = TheoryRun.Run(theory, request);
+        else
+        {
+            var clock = System.Diagnostics.Stopwatch.StartNew();
+            var stage = TheoryRun.RunPivot(theory, request);
+            report = TheoryRun.Complete(stage, request, clock);
+            options.Stage?.Invoke("one-field comparison");
+            var frozen = FrozenReduction.Run(settings, stage, options);
+            report = report with { Frozen = frozen, Flags = Diagnostics.FrozenReductionFlag.For(frozen, report.Pivot) is { } f ? report.Flags.Add(f) : report.Flags };
+        }
         return report with { Model = ModelInfoFor(settings.Model, report.Pivot.VScale), Settings = SpectrumPipeline.ReportSettingsFor(settings, flags) };
     }
 

@@ -256,10 +256,13 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             {
                 var report = SpectrumPipeline.Run(settings, _options);
                 var p = report.Pivot;
+                var iso = report.Isocurvature?.Pivot;
                 return new SweepRecord
                 {
                     Index = point.Index, Ok = true,
                     Ns = p.Ns, R = p.R, AlphaS = p.AlphaS, Nt = p.Nt, As = p.As, NStar = p.NStar, VScale = p.VScale,
+                    BetaIso = iso?.BetaIso ?? double.NaN, CosDelta = iso?.CosDelta ?? double.NaN, Trs = iso?.Trs ?? double.NaN,
+                    FNlLocal = report.MultiField?.DeltaN?.FNL ?? double.NaN,
                     Flags = FlagNames(report.Flags),
                     K = [.. report.Spectrum.K], Ps = [.. report.Spectrum.Ps], Pt = [.. report.Spectrum.Pt],
                 };
@@ -268,10 +271,18 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
             Matching.PivotMatch pivot;
             Spectra.PivotValues exact;
             Estimates.SlowRollSet slowRoll;
+            Spectra.FieldIsocurvature? isocurvature = null;
+            Results.MultiFieldResults? multiField = null;
+            var extraFlags = System.Collections.Immutable.ImmutableArray<Diagnostics.Flag>.Empty;
             if (settings.Model.IsMultiField)
             {
                 var stage = FieldPipeline.RunPivot(settings, _options);
                 (pivot, exact, slowRoll) = (stage.Match, stage.Exact, stage.SlowRoll);
+                isocurvature = stage.Isocurvature;
+                // delta N (f_NL_local) and the trajectory flags, from the pivot's exit to the end (no spectrum window here).
+                var bg = stage.Background!;
+                (multiField, extraFlags) = Runs.MultiFieldStage.Compute(bg.Fields, FieldPipeline.BackgroundSettingsFor(settings), bg.Origin,
+                    pivot.NPivot, pivot.VScale, pivot.NPivot, exact.Ps, exact.Errors.As, pivot.KPivot);
             }
             else
             {
@@ -282,10 +293,13 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 pivot.HStar, pivot.VStarQuarterGeV, pivot.VScale, pivot.NTotal, pivot.NReh, exact.ErrorEstimate, double.NaN);
             var sr = slowRoll.SecondOrder;
             var flags = Flags.PivotDeviations(results, sr, "second-order slow roll", _options.Flags ?? settings.Flags);
+            flags.AddRange(extraFlags);
             return new SweepRecord
             {
                 Index = point.Index, Ok = true,
                 Ns = exact.Ns, R = exact.R, AlphaS = exact.AlphaS, Nt = exact.Nt, As = exact.Ps, NStar = pivot.NStar, VScale = pivot.VScale,
+                BetaIso = isocurvature?.BetaIso ?? double.NaN, CosDelta = isocurvature?.CosDelta ?? double.NaN, Trs = isocurvature?.Trs ?? double.NaN,
+                FNlLocal = multiField?.DeltaN?.FNL ?? double.NaN,
                 Flags = FlagNames(flags),
             };
         }
@@ -336,7 +350,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
 
     /// <summary>
     /// Short names of flags for the sweep files: <c>n_s-deviation</c> (pivot, exact vs second-order slow roll),
-    /// <c>P_s-spectrum-deviation</c>, <c>epsilon_1-phase</c>, <c>epsilon_2-phase</c>; each at most once, in order.
+    /// <c>P_s-spectrum-deviation</c>, <c>epsilon_1-phase</c>, <c>epsilon_2-phase</c>, and the n-field kinds as they are (<c>light-entropic-turn</c>, <c>entropic-instability</c>, <c>delta-n-disagreement</c>); each at most once, in order.
     /// </summary>
     public static IReadOnlyList<string> FlagNames(IEnumerable<Flag> flags)
     {
@@ -349,6 +363,7 @@ public sealed class PipelineSweepEvaluator : ISweepEvaluator
                 FlagKinds.PivotDeviation => q + "-deviation",
                 FlagKinds.SpectrumDeviation => q + "-spectrum-deviation",
                 FlagKinds.BackgroundPhase => q + "-phase",
+                FlagKinds.LightEntropicTurn or FlagKinds.EntropicInstability or FlagKinds.DeltaNDisagreement => f.Kind,
                 _ => q + "-" + f.Kind,
             };
             if (!names.Contains(name)) names.Add(name);

@@ -29,7 +29,8 @@ public static class SweepFiles
 public static class SweepOutputs
 {
     /// <summary>The result columns of the CSV after the index and the swept keys.</summary>
-    public static readonly IReadOnlyList<string> ResultColumns = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "delta_chi2", "flags", "status", "message"];
+    public static readonly IReadOnlyList<string> ResultColumns =
+        ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "delta_chi2", "beta_iso", "cos_delta", "T_RS", "f_NL_local", "flags", "status", "message"];
 
     /// <summary>
     /// Delta chi^2 of a point's (n_s, r) in the Gaussian approximation of the data with its default values
@@ -155,13 +156,15 @@ public static class SweepOutputs
         if (r.Ok)
         {
             foreach (var v in new[] { r.Ns, r.R, r.AlphaS, r.Nt, r.As, r.NStar, r.VScale, DeltaChi2(r) }) { w.Write(','); w.Write(F(v)); }
+            // The n-field columns are empty where the point has no such value (one field; cos Delta not resolved).
+            foreach (var v in new[] { r.BetaIso, r.CosDelta, r.Trs, r.FNlLocal }) { w.Write(','); if (double.IsFinite(v)) w.Write(F(v)); }
             w.Write(',');
             w.Write(Quote(string.Join(';', r.Flags)));
             w.Write(",ok,");
         }
         else
         {
-            w.Write(",,,,,,,,,,failed,");
+            w.Write(",,,,,,,,,,,,,,failed,");
             w.Write(Quote(r.Message));
         }
         w.Write('\n');
@@ -223,7 +226,7 @@ public static class SweepOutputs
     {
         public readonly long[] Index = new long[RowBlock];
         public readonly double[][] Settings;
-        public readonly double[][] Results = new double[8][];
+        public readonly double[][] Results = new double[12][];
         public readonly string[] Status = new string[RowBlock], Message = new string[RowBlock], Flags = new string[RowBlock];
         public int Count;
 
@@ -247,6 +250,10 @@ public static class SweepOutputs
             Results[5][i] = r.Ok ? r.NStar : double.NaN;
             Results[6][i] = r.Ok ? r.VScale : double.NaN;
             Results[7][i] = DeltaChi2(r);
+            Results[8][i] = r.Ok ? r.BetaIso : double.NaN;
+            Results[9][i] = r.Ok ? r.CosDelta : double.NaN;
+            Results[10][i] = r.Ok ? r.Trs : double.NaN;
+            Results[11][i] = r.Ok ? r.FNlLocal : double.NaN;
             Status[i] = r.Ok ? "ok" : "failed";
             Message[i] = r.Message;
             Flags[i] = r.Flags.Count == 0 ? "" : string.Join(';', r.Flags);
@@ -258,12 +265,12 @@ public static class SweepOutputs
     /// <summary>
     /// The HDF5 layout: root attributes (format, fingerprint, keys, counts), /grid/&lt;key&gt; (each axis' values),
     /// /points/index, /points/settings/&lt;key&gt;, /points/{n_s, r, alpha_s, n_t, A_s, N_star, V_scale, delta_chi2} (NaN for
-    /// failed points), /points/{status, message, flags} (strings), and /spectra/&lt;index, 8 digits&gt;/{k, P_s, P_t}.
+    /// failed points), /points/{beta_iso, cos_delta, T_RS, f_NL_local} (NaN for one field and failed points), /points/{status, message, flags} (strings), and /spectra/&lt;index, 8 digits&gt;/{k, P_s, P_t}.
     /// The /points datasets are declared with their final length and filled block by block.
     /// </summary>
     private sealed class Hdf5Layout
     {
-        private static readonly string[] ResultNames = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "delta_chi2"];
+        private static readonly string[] ResultNames = ["n_s", "r", "alpha_s", "n_t", "A_s", "N_star", "V_scale", "delta_chi2", "beta_iso", "cos_delta", "T_RS", "f_NL_local"];
         private readonly H5Dataset<long[]> _index;
         private readonly H5Dataset<double[]>[] _settings, _results;
         private readonly H5Dataset<string[]> _status, _message, _flags;

@@ -29,6 +29,14 @@ public sealed class SweepRecord
     public double NStar { get; init; } = double.NaN;
     /// <summary>V scale.</summary>
     public double VScale { get; init; } = double.NaN;
+    /// <summary>beta_iso = P_S/(P_zeta + P_S) at the pivot at the end of inflation; NaN for one field.</summary>
+    public double BetaIso { get; init; } = double.NaN;
+    /// <summary>The correlation cos Delta at the pivot; NaN for one field, or when P_S is not resolved above its error.</summary>
+    public double CosDelta { get; init; } = double.NaN;
+    /// <summary>The transfer T_RS at the pivot; NaN for one field.</summary>
+    public double Trs { get; init; } = double.NaN;
+    /// <summary>The local f_NL from delta N at the pivot; NaN for one field, or when delta N could not be computed.</summary>
+    public double FNlLocal { get; init; } = double.NaN;
     /// <summary>Flags.</summary>
     public IReadOnlyList<string> Flags { get; init; } = [];
     /// <summary>Spectrum wavenumbers, if stored.</summary>
@@ -48,6 +56,7 @@ public sealed class SweepRecord
         return new SweepRecord
         {
             Index = index, Ok = true, Ns = Ns, R = R, AlphaS = AlphaS, Nt = Nt, As = As, NStar = NStar, VScale = VScale,
+            BetaIso = BetaIso, CosDelta = CosDelta, Trs = Trs, FNlLocal = FNlLocal,
             Flags = Flags.Select(f => SweepDeck.OneLine(f).Replace(';', ',')).ToArray(),
             K = keepSpectrum ? K : null, Ps = keepSpectrum ? Ps : null, Pt = keepSpectrum ? Pt : null,
         };
@@ -57,6 +66,7 @@ public sealed class SweepRecord
     public SweepRecord WithoutSpectrum() => K is null && Ps is null && Pt is null ? this : new SweepRecord
     {
         Index = Index, Ok = Ok, Message = Message, Ns = Ns, R = R, AlphaS = AlphaS, Nt = Nt, As = As, NStar = NStar, VScale = VScale, Flags = Flags,
+        BetaIso = BetaIso, CosDelta = CosDelta, Trs = Trs, FNlLocal = FNlLocal,
     };
 
     /// <summary>A failed point.</summary>
@@ -77,6 +87,8 @@ public sealed class SweepRecord
             {
                 Num(w, "n_s", Ns); Num(w, "r", R); Num(w, "alpha_s", AlphaS); Num(w, "n_t", Nt);
                 Num(w, "A_s", As); Num(w, "N_star", NStar); Num(w, "V_scale", VScale);
+                // The n-field values only where they exist: a one-field line is as before, and an older journal reads as NaN.
+                Optional(w, "beta_iso", BetaIso); Optional(w, "cos_delta", CosDelta); Optional(w, "T_RS", Trs); Optional(w, "f_NL_local", FNlLocal);
                 if (Flags.Count > 0)
                 {
                     w.WriteStartArray("flags");
@@ -106,6 +118,7 @@ public sealed class SweepRecord
             Index = i, Ok = true,
             Ns = Value(e, "n_s"), R = Value(e, "r"), AlphaS = Value(e, "alpha_s"), Nt = Value(e, "n_t"), As = Value(e, "A_s"),
             NStar = Value(e, "N_star"), VScale = Value(e, "V_scale"),
+            BetaIso = OptionalValue(e, "beta_iso"), CosDelta = OptionalValue(e, "cos_delta"), Trs = OptionalValue(e, "T_RS"), FNlLocal = OptionalValue(e, "f_NL_local"),
             Flags = e.TryGetProperty("flags", out var f) ? f.EnumerateArray().Select(x => x.GetString() ?? "").ToArray() : [],
             K = A(e, "k"), Ps = A(e, "P_s"), Pt = A(e, "P_t"),
         };
@@ -116,6 +129,13 @@ public sealed class SweepRecord
         if (double.IsFinite(x)) w.WriteNumber(name, x);
         else w.WriteString(name, x.ToString(CultureInfo.InvariantCulture));
     }
+
+    private static void Optional(Utf8JsonWriter w, string name, double x)
+    {
+        if (double.IsFinite(x)) w.WriteNumber(name, x);
+    }
+
+    private static double OptionalValue(JsonElement e, string name) => e.TryGetProperty(name, out var x) ? D(x) : double.NaN;
 
     private static void Arr(Utf8JsonWriter w, string name, double[]? a)
     {

@@ -2,6 +2,7 @@ using ModeSolver.Background;
 using ModeSolver.Decks;
 using ModeSolver.Models;
 using ModeSolver.Pipeline;
+using PureHDF;
 
 namespace ModeSolver.Tests.Decks;
 
@@ -164,6 +165,27 @@ public class FieldDeckTests
             var rows = File.ReadAllLines(Path.Combine(dir, "out", "points.csv"));
             Assert.Equal(3, rows.Length);
             Assert.All(rows.Skip(1), r => Assert.Contains(",ok,", r, StringComparison.Ordinal));
+
+            // The n-field columns: beta_iso, cos_delta, T_RS, f_NL_local, equal to a single run's pivot values.
+            var header = rows[0].Split(',');
+            int Col(string name) => Array.IndexOf(header, name);
+            var cells = rows[2].Split(','); // R = 3
+            var one = SettingsResolver.Resolve(DeckReader.Parse("[model]\ncatalogue = \"double-quadratic\"\n[model.parameters]\nR = 3.0\n[pivot]\nefolds = 55\n", "one.toml"));
+            var stage = FieldPipeline.RunPivot(one);
+            double Cell(string name) => double.Parse(cells[Col(name)], System.Globalization.CultureInfo.InvariantCulture);
+            Assert.Equal(stage.Isocurvature!.BetaIso, Cell("beta_iso"));
+            Assert.Equal(stage.Isocurvature.Trs, Cell("T_RS"));
+            if (double.IsFinite(stage.Isocurvature.CosDelta)) Assert.Equal(stage.Isocurvature.CosDelta, Cell("cos_delta"));
+            else Assert.Equal("", cells[Col("cos_delta")]);
+            Assert.True(Cell("T_RS") > 0.01, $"T_RS = {Cell("T_RS")}: the trajectory turns at R = 3");
+            double fnl = Cell("f_NL_local");
+            Assert.True(double.IsFinite(fnl) && Math.Abs(fnl) < 1, $"f_NL_local = {fnl}"); // slow-roll size for the double quadratic (Vernizzi & Wands 2006)
+            using var h5 = H5File.OpenRead(Path.Combine(dir, "out", "sweep.h5"));
+            Assert.Equal(fnl, h5.Group("points").Dataset("f_NL_local").Read<double[]>()[1]);
+            Assert.Equal(Cell("beta_iso"), h5.Group("points").Dataset("beta_iso").Read<double[]>()[1]);
+            // The trajectory flag of a light turning field keeps its own name in the sweep files.
+            Assert.Contains("light-entropic-turn", cells[Col("flags")], StringComparison.Ordinal);
+            Assert.DoesNotContain("m_s^2", cells[Col("flags")], StringComparison.Ordinal);
         }
         finally
         {

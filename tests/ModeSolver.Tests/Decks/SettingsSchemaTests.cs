@@ -195,6 +195,7 @@ public class SettingsSchemaTests
             """,
             "[model]\ncatalogue = \"monomial\"\n[pivot]\nefolds = 55\n",
             "[model]\nfields = [\"phi\", \"chi\"]\npotential = \"phi^2 + chi^2\"\nmetric = [[\"1\", \"0\"], [\"0\", \"exp(phi)\"]]\nend = \"chi - 0.1\"\n[start]\nphi0 = [10.0, 1.0]\ndphi0 = [-0.1, 0.0]\n",
+            "[model]\ncatalogue = \"double-quadratic\"\n[compare]\nfreeze = [\"chi\"]\n",
         };
         var keys = new HashSet<string>(StringComparer.Ordinal);
         foreach (var text in decks)

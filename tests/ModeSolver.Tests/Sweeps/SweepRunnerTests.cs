@@ -19,11 +19,11 @@ public class SweepRunnerTests
         Assert.Equal(1, summary.Failed);
 
         var lines = File.ReadAllLines(Path.Combine(dir, SweepFiles.Csv));
-        Assert.Equal("index,param.alpha,efolds,n_s,r,alpha_s,n_t,A_s,N_star,V_scale,delta_chi2,flags,status,message", lines[0]);
+        Assert.Equal("index,param.alpha,efolds,n_s,r,alpha_s,n_t,A_s,N_star,V_scale,delta_chi2,beta_iso,cos_delta,T_RS,f_NL_local,flags,status,message", lines[0]);
         Assert.Equal(16, lines.Length);
         for (int i = 1; i < lines.Length; i++) Assert.StartsWith($"{i - 1},", lines[i]);
         // Point 7 = alpha index 2 (alpha = 1), efolds index 1 (N = 55): the synthetic failure, on one line.
-        Assert.Equal("7,1,55,,,,,,,,,,failed,\"synthetic failure at alpha=1, N=55 second line\"", lines[8]);
+        Assert.Equal("7,1,55,,,,,,,,,,,,,,failed,\"synthetic failure at alpha=1, N=55 second line\"", lines[8]);
         // Point 5 = alpha index 1 (0.1), efolds index 2 (N = 60): n_s = 1 - 2/60, r = 12 * 0.1 / 3600.
         var cells = lines[6].Split(',');
         Assert.Equal(0.1, double.Parse(cells[1], CultureInfo.InvariantCulture), 15);
@@ -34,7 +34,9 @@ public class SweepRunnerTests
         double ns = 1 - 2 / 60.0, r = 12 * Spec.Axes[0].Values[1] / 3600.0;
         double chi2 = Math.Pow((ns - 0.9649) / 0.0042, 2) + Math.Pow(r / 0.018, 2);
         Assert.Equal(chi2, double.Parse(cells[10], CultureInfo.InvariantCulture), 1e-9);
-        Assert.Equal("ok", cells[12]);
+        // One field: the n-field columns (beta_iso, cos_delta, T_RS, f_NL_local) are empty.
+        Assert.Equal(["", "", "", ""], cells[11..15]);
+        Assert.Equal("ok", cells[16]);
         Assert.EndsWith(",large-alpha,ok,", lines[15]);
 
         using var h5 = H5File.OpenRead(Path.Combine(dir, SweepFiles.Hdf5));
