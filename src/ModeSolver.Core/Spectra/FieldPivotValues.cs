@@ -14,11 +14,12 @@ namespace ModeSolver.Spectra;
 public sealed record FieldIsocurvature(double Ps, double Crs, double CosDelta, double BetaIso, double Trs, double PrExit, double PsError)
 {
     /// <summary>
-    /// The record of mode <paramref name="m"/>; cos Delta is NaN where P_S is not resolved (its error at least P_S: a
-    /// decayed isocurvature at the level of the integration error, whose correlation with R means nothing).
+    /// The record of mode <paramref name="m"/> solved at <paramref name="tolerance"/>; cos Delta is NaN where P_S is not
+    /// resolved: its error at least P_S, or P_S below what the integration error leaves in the normal direction
+    /// (<see cref="Resolved"/>, the rule of the per-k arrays) - a decayed isocurvature whose correlation with R means nothing.
     /// </summary>
-    internal static FieldIsocurvature Of(in FieldModeResult m, double psError) =>
-        new(m.Ps, m.Crs, psError < m.Ps ? m.CosDelta : double.NaN, m.BetaIso, m.Trs, m.PrExit, psError);
+    internal static FieldIsocurvature Of(in FieldModeResult m, double psError, double tolerance) =>
+        new(m.Ps, m.Crs, psError < m.Ps && Resolved(m.Ps, m.Pr, tolerance) ? m.CosDelta : double.NaN, m.BetaIso, m.Trs, m.PrExit, psError);
 
     /// <summary>
     /// True when P_S of a mode solved at <paramref name="tolerance"/> is resolved: above (10 tol)^2 P_R, the power an
@@ -56,7 +57,7 @@ public static class FieldPivotValues
             Nt: 2.0 * Math.Abs(main.Nt - tight.Nt) + main.NtError);
         var values = new PivotValues(k, m.Pr, m.Pt, ns, nt, r, alpha, m.ErrorEstimate, work) { Errors = errors, StartDepth = m.StartDepth };
         double psErr = m.Ps * m.ErrorEstimate + 2.0 * Math.Abs(m.Ps - t.Ps);
-        return (values, FieldIsocurvature.Of(m, psErr));
+        return (values, FieldIsocurvature.Of(m, psErr, tol));
     }
 
     private readonly record struct StencilResult(FieldModeResult[] Modes, double Ns, double NsError, double Alpha, double AlphaError, double Nt, double NtError);
