@@ -33,9 +33,7 @@ public static class BispectrumPlots
     /// <summary>Saves the shape heat map.</summary>
     public static void SaveShape(RunReport report, string path, PlotFormat format)
     {
-        var plot = BuildShape(report);
-        if (format == PlotFormat.Png) File.WriteAllBytes(path, plot.GetImageBytes(ShapeHeight, ShapeHeight, ImageFormat.Png));
-        else File.WriteAllText(path, plot.GetSvgXml(ShapeHeight, ShapeHeight), new UTF8Encoding(false));
+        RunPlots.SaveSingle(BuildShape(report), path, format, ShapeHeight, ShapeHeight);
     }
 
     /// <summary>P_s(k) (top) and the equilateral f_NL(k) (bottom) over the curve's k range.</summary>

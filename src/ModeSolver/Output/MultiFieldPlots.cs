@@ -170,9 +170,5 @@ public static class MultiFieldPlots
         mk.LegendText = label;
     }
 
-    private static void Save(Plot plot, string path, PlotFormat format)
-    {
-        if (format == PlotFormat.Png) File.WriteAllBytes(path, plot.GetImageBytes(RunPlots.Width, Height, ImageFormat.Png));
-        else File.WriteAllText(path, plot.GetSvgXml(RunPlots.Width, Height), new UTF8Encoding(false));
-    }
+    private static void Save(Plot plot, string path, PlotFormat format) => RunPlots.SaveSingle(plot, path, format, RunPlots.Width, Height);
 }

@@ -80,9 +80,5 @@ public static class ObservablesPlots
         plot.Layout.Fixed(new PixelPadding(95, 30, 55, 45));
     }
 
-    private static void Save(Plot plot, string path, PlotFormat format)
-    {
-        if (format == PlotFormat.Png) File.WriteAllBytes(path, plot.GetImageBytes(RunPlots.Width, Height, ImageFormat.Png));
-        else File.WriteAllText(path, plot.GetSvgXml(RunPlots.Width, Height), new UTF8Encoding(false));
-    }
+    private static void Save(Plot plot, string path, PlotFormat format) => RunPlots.SaveSingle(plot, path, format, RunPlots.Width, Height);
 }

@@ -69,13 +69,14 @@ public static class RunPlots
     /// <summary>Saves the background figure.</summary>
     public static void SaveBackground(RunReport report, string path, PlotFormat format)
     {
-        var plot = BuildBackground(report);
-        if (format == PlotFormat.Png)
-        {
-            var bytes = plot.GetImageBytes(Width, BackgroundHeight, ImageFormat.Png);
-            File.WriteAllBytes(path, bytes);
-        }
-        else File.WriteAllText(path, plot.GetSvgXml(Width, BackgroundHeight), new UTF8Encoding(false));
+        SaveSingle(BuildBackground(report), path, format, Width, BackgroundHeight);
+    }
+
+    /// <summary>Writes one plot of <paramref name="width"/> x <paramref name="height"/> pixels as PNG or SVG (UTF-8, no BOM).</summary>
+    internal static void SaveSingle(Plot plot, string path, PlotFormat format, int width, int height)
+    {
+        if (format == PlotFormat.Png) File.WriteAllBytes(path, plot.GetImageBytes(width, height, ImageFormat.Png));
+        else File.WriteAllText(path, plot.GetSvgXml(width, height), new UTF8Encoding(false));
     }
 
     /// <summary>Builds the upper (spectra) and lower (relative difference) plots of the spectra figure.</summary>
